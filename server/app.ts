@@ -1,0 +1,68 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import express from 'express';
+import helmet from 'helmet';
+import type { MikroORM } from '@mikro-orm/sqlite';
+import type { AppConfig } from './env.ts';
+import type { AppContext } from './context.ts';
+import { createLucia } from './modules/auth/lucia.ts';
+import { errorHandler, notFoundHandler } from './http/errors.ts';
+import { originCheck, sessionMiddleware } from './http/session.ts';
+import { healthRouter } from './modules/health/health.router.ts';
+import { authRouter, meRouter } from './modules/auth/auth.router.ts';
+
+export interface CreateAppOptions {
+  orm: MikroORM;
+  config: AppConfig;
+  /** Folder of the built client; served when it exists. */
+  clientDir?: string;
+}
+
+export function createApp({ orm, config, clientDir = path.resolve('dist') }: CreateAppOptions) {
+  const closers: (() => Promise<void> | void)[] = [];
+  const ctx: AppContext = { orm, config, lucia: createLucia(orm, config.secureCookies), onClose: (fn) => closers.push(fn) };
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          // The map library builds its worker from a blob and injects its own styles.
+          workerSrc: ["'self'", 'blob:'],
+          childSrc: ["'self'", 'blob:'],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          upgradeInsecureRequests: config.secureCookies ? [] : null,
+        },
+      },
+      strictTransportSecurity: config.secureCookies,
+    }),
+  );
+  app.use(express.json({ limit: '1mb' }));
+  app.use('/api', sessionMiddleware(ctx), originCheck(ctx));
+
+  app.use('/api/health', healthRouter());
+  app.use('/api/auth', authRouter(ctx));
+  app.use('/api/me', meRouter(ctx));
+
+  app.use('/api', notFoundHandler);
+
+  if (fs.existsSync(path.join(clientDir, 'index.html'))) {
+    app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
+    app.get('/{*splat}', (_req, res) => {
+      res.sendFile(path.join(clientDir, 'index.html'), { headers: { 'Cache-Control': 'no-cache' } });
+    });
+  }
+  app.use(notFoundHandler);
+  app.use(errorHandler);
+
+  const close = async () => {
+    for (const fn of closers.reverse()) await fn();
+  };
+  return { app, ctx, close };
+}

@@ -1,0 +1,46 @@
+import path from 'node:path';
+
+export interface AppConfig {
+  port: number;
+  databasePath: string;
+  uploadsDir: string;
+  seedDemo: boolean;
+  smtpUrl: string | null;
+  /** Public origin used in e-mailed links; the Origin check compares against the request's own host. */
+  publicOrigin: string | null;
+  /** Cookies get `Secure` when true (behind HTTPS). */
+  secureCookies: boolean;
+  /** Failed sign-ins allowed per IP in the window before 429. */
+  signInBurst: number;
+  signInWindowMs: number;
+  logRequests: boolean;
+}
+
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
+  const port = Number(env.PORT ?? 3000);
+  return {
+    port,
+    databasePath: path.resolve(env.DATABASE_PATH ?? './data/roostline.sqlite'),
+    uploadsDir: path.resolve(env.UPLOADS_DIR ?? './uploads'),
+    seedDemo: (env.SEED_DEMO ?? 'true') !== 'false',
+    smtpUrl: env.SMTP_URL || null,
+    publicOrigin: env.PUBLIC_ORIGIN || null,
+    secureCookies: env.COOKIE_SECURE ? env.COOKIE_SECURE === 'true' : (env.PUBLIC_ORIGIN ?? '').startsWith('https:'),
+    signInBurst: Number(env.SIGN_IN_BURST ?? 10),
+    signInWindowMs: Number(env.SIGN_IN_WINDOW_MS ?? 15 * 60_000),
+    logRequests: env.LOG_REQUESTS === 'true',
+  };
+}
+
+/** A config for tests: in-memory database, temp uploads, no seeding unless asked. */
+export function testConfig(overrides: Partial<AppConfig> = {}): AppConfig {
+  return {
+    ...loadConfig({}),
+    databasePath: ':memory:',
+    uploadsDir: path.resolve('tmp/test-uploads', String(process.pid)),
+    seedDemo: false,
+    secureCookies: false,
+    logRequests: false,
+    ...overrides,
+  };
+}

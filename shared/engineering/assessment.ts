@@ -1,0 +1,269 @@
+// Perch assessment of a span: pass/fail gates for landing and harvesting, plus a weighted 0..100 suitability score.
+import { harvest, type HarvesterProfile } from './ct-harvester.ts';
+import { ampacityA as ieeeAmpacityA, conductorTempC as ieeeConductorTempC, type ThermalWeather } from './ieee738.ts';
+import { approachDistanceM as oshaApproachDistanceM, codeGroundClearanceM } from './clearance.ts';
+import { chargeTimeMin as energyChargeTimeMin, DEFAULT_BATTERY_EFFICIENCY } from './charge-time.ts';
+import { DEFAULT_EMISSIVITY, DEFAULT_ABSORPTIVITY } from './conductors.ts';
+import type { DroneProfile } from './demo-profiles.ts';
+
+/** Bumped whenever a gate, factor, default or weight changes, so stored assessments can be recomputed. */
+export const METHOD_VERSION = 'perch-assessment/1.0.0';
+
+export type HazardSeverity = 'low' | 'medium' | 'high';
+
+export interface SpanAssessmentInput {
+  conductor: {
+    diameterMm: number;
+    resistanceLowOhmPerM: number;
+    tempLowC: number;
+    resistanceHighOhmPerM: number;
+    tempHighC: number;
+    emissivity?: number;
+    absorptivity?: number;
+    /** Sub-conductors per phase; the core encloses one, so it sees I/n (Ampère's law). */
+    subConductors?: number;
+  };
+  /** Measured ground clearance at worst-case sag, m; null when not surveyed. */
+  clearanceM: number | null;
+  loadCurrentA: { min: number; typical: number; peak: number };
+  /** Line-to-line voltage, kV. */
+  voltageKv: number;
+  frequencyHz: number;
+  lengthM: number;
+  hazards: ReadonlyArray<{ severity: HazardSeverity }>;
+  /** Which survey fields are filled in (true) or missing (false). */
+  completeness: Readonly<Record<string, boolean>>;
+  /** Days since the span was last surveyed; null when never. */
+  surveyAgeDays: number | null;
+  zones: { inExclude: boolean; inCautionCount: number };
+  /** Overrides of the design weather for this span (e.g. its latitude, elevation, azimuth). */
+  weather?: Partial<ThermalWeather>;
+}
+
+export type FactorId = 'power-margin' | 'clearance-margin' | 'hazards' | 'span-exposure' | 'data-quality';
+export type GateId = 'gripper-fit' | 'contact-temperature' | 'clearance' | 'no-perch-zone' | 'ampacity' | 'useful-harvest';
+
+export interface ScoringSettings {
+  weights: Record<FactorId, number>;
+  /** Conductor temperature at which the ampacity check is made, °C. */
+  ampacityMaxConductorC: number;
+  /** Harvest / useful minimum at which the power-margin factor is full. */
+  powerMarginFullRatio: number;
+  /** Clearance above the requirement at which the clearance-margin factor is full, m. */
+  clearanceMarginFullM: number;
+  hazardPenalty: Record<HazardSeverity, number>;
+  cautionZonePenalty: number;
+  /** Span lengths scoring full marks, m; the score falls linearly to 0 at zero and at spanLengthMaxM. */
+  spanLengthIdealM: { min: number; max: number };
+  spanLengthMaxM: number;
+  /** Survey ages: full freshness up to freshDays, none at staleDays. */
+  surveyFreshDays: number;
+  surveyStaleDays: number;
+  /** Multiplier on the data-quality factor when the load estimate exceeds the ampacity. */
+  ampacityFlagFactor: number;
+  batteryEfficiency: number;
+}
+
+export const DEFAULT_SCORING_SETTINGS: ScoringSettings = {
+  weights: { 'power-margin': 30, 'clearance-margin': 20, hazards: 20, 'span-exposure': 15, 'data-quality': 15 },
+  ampacityMaxConductorC: 100,
+  powerMarginFullRatio: 4,
+  clearanceMarginFullM: 3,
+  hazardPenalty: { low: 0.1, medium: 0.25, high: 0.5 },
+  cautionZonePenalty: 0.2,
+  spanLengthIdealM: { min: 100, max: 400 },
+  spanLengthMaxM: 1200,
+  surveyFreshDays: 180,
+  surveyStaleDays: 1825,
+  ampacityFlagFactor: 0.5,
+  batteryEfficiency: DEFAULT_BATTERY_EFFICIENCY,
+};
+
+/**
+ * Design weather: a hot, still summer noon, the IEEE Std 738-2012 sample's conservative conditions —
+ * 40 °C air, 0.61 m/s wind perpendicular to the line, sea level, 30° N, east–west line, 21 June, solar noon, clear sky.
+ */
+export const DEFAULT_DESIGN_WEATHER: ThermalWeather = {
+  ambientC: 40,
+  windSpeedMps: 0.61,
+  windAngleDeg: 90,
+  elevationM: 0,
+  latitudeDeg: 30,
+  lineAzimuthDeg: 90,
+  dayOfYear: 172,
+  solarHour: 12,
+  atmosphere: 'clear',
+};
+
+export interface Gate {
+  id: GateId;
+  passed: boolean;
+  /** False for data-quality flags that inform but do not stop a perch. */
+  blocking: boolean;
+  detail: string;
+}
+
+export interface Factor {
+  id: FactorId;
+  /** 0..1 */
+  value: number;
+  weight: number;
+  /** Points of the 0..100 score; contributions sum to the score. */
+  contribution: number;
+}
+
+export interface SpanAssessment {
+  perchable: boolean;
+  score: number;
+  gates: Gate[];
+  factors: Factor[];
+  /** Converter output at typical, minimum and peak load, W. */
+  harvestW: number;
+  harvestMinW: number;
+  harvestPeakW: number;
+  /** Minutes to restore the drone's reserve at typical load; Infinity when nothing is harvested. */
+  chargeTimeMin: number;
+  /** Conductor temperature at peak load in the design weather, °C. */
+  conductorTempC: number;
+  ampacityA: number;
+  codeClearanceM: number;
+  approachDistanceM: number;
+  methodVersion: string;
+}
+
+const clamp01 = (x: number) => (Number.isFinite(x) ? Math.min(1, Math.max(0, x)) : 0);
+const fmt = (x: number, digits = 1) => (Number.isFinite(x) ? x.toFixed(digits) : '∞');
+
+// Perch assessment: IEEE Std 738-2012 thermal checks, CT harvester model, NESC Table 232-1 and OSHA 29 CFR 1910.333(c)(3) distances.
+export function assessSpan(
+  span: SpanAssessmentInput,
+  harvester: HarvesterProfile,
+  drone: DroneProfile,
+  designWeather: ThermalWeather = DEFAULT_DESIGN_WEATHER,
+  settings: ScoringSettings = DEFAULT_SCORING_SETTINGS,
+): SpanAssessment {
+  const weather: ThermalWeather = { ...designWeather, ...span.weather };
+  const thermalConductor = {
+    diameterMm: span.conductor.diameterMm,
+    resistanceLowOhmPerM: span.conductor.resistanceLowOhmPerM,
+    tempLowC: span.conductor.tempLowC,
+    resistanceHighOhmPerM: span.conductor.resistanceHighOhmPerM,
+    tempHighC: span.conductor.tempHighC,
+    emissivity: span.conductor.emissivity ?? DEFAULT_EMISSIVITY,
+    absorptivity: span.conductor.absorptivity ?? DEFAULT_ABSORPTIVITY,
+  };
+  const bundle = Math.max(1, Math.floor(span.conductor.subConductors ?? 1));
+  // The core closes around one sub-conductor, which carries I/n of the phase current.
+  const harvestAt = (phaseA: number) =>
+    harvest({ currentA: phaseA / bundle, frequencyHz: span.frequencyHz, harvester }).powerW * harvester.converterEfficiency;
+
+  const harvestW = harvestAt(span.loadCurrentA.typical);
+  const harvestMinW = harvestAt(span.loadCurrentA.min);
+  const harvestPeakW = harvestAt(span.loadCurrentA.peak);
+  const chargeTimeMin = energyChargeTimeMin({
+    deltaSoc: 1 - drone.reservePercent / 100,
+    batteryWh: drone.batteryWh,
+    harvestW,
+    converterEfficiency: 1, // harvestW is already the converter's output
+    batteryEfficiency: settings.batteryEfficiency,
+  });
+  const conductorTempC = ieeeConductorTempC(thermalConductor, weather, span.loadCurrentA.peak / bundle);
+  const ampacityA = ieeeAmpacityA(thermalConductor, weather, settings.ampacityMaxConductorC) * bundle;
+  const codeClearanceM = codeGroundClearanceM(span.voltageKv);
+  const approachDistanceM = oshaApproachDistanceM(span.voltageKv);
+  const requiredClearanceM = Math.max(codeClearanceM, drone.approachClearanceM);
+
+  const d = span.conductor.diameterMm;
+  const gates: Gate[] = [
+    {
+      id: 'gripper-fit',
+      passed: d >= harvester.gripperMinDiameterMm && d <= harvester.gripperMaxDiameterMm,
+      blocking: true,
+      detail: `conductor ${fmt(d)} mm; gripper ${fmt(harvester.gripperMinDiameterMm)}–${fmt(harvester.gripperMaxDiameterMm)} mm`,
+    },
+    {
+      id: 'contact-temperature',
+      passed: conductorTempC < harvester.contactTempLimitC,
+      blocking: true,
+      detail: `conductor ${fmt(conductorTempC)} °C at peak load ${fmt(span.loadCurrentA.peak, 0)} A; contact limit ${fmt(harvester.contactTempLimitC, 0)} °C`,
+    },
+    {
+      id: 'clearance',
+      passed: span.clearanceM !== null && span.clearanceM >= requiredClearanceM,
+      blocking: true,
+      detail:
+        span.clearanceM === null
+          ? `clearance not surveyed; needs ${fmt(requiredClearanceM, 2)} m`
+          : `clearance ${fmt(span.clearanceM, 2)} m; code ${fmt(codeClearanceM, 2)} m, drone ${fmt(drone.approachClearanceM, 2)} m`,
+    },
+    {
+      id: 'no-perch-zone',
+      passed: !span.zones.inExclude,
+      blocking: true,
+      detail: span.zones.inExclude ? 'inside an active no-perch zone' : 'outside every active no-perch zone',
+    },
+    {
+      // A load above the thermal rating says the load estimate (or the conductor record) is doubtful;
+      // it lowers data quality instead of blocking, since the line owner, not the drone, manages loading.
+      id: 'ampacity',
+      passed: span.loadCurrentA.peak <= ampacityA,
+      blocking: false,
+      detail: `peak load ${fmt(span.loadCurrentA.peak, 0)} A; ampacity ${fmt(ampacityA, 0)} A at ${fmt(settings.ampacityMaxConductorC, 0)} °C`,
+    },
+    {
+      id: 'useful-harvest',
+      passed: harvestW >= harvester.usefulMinHarvestW,
+      blocking: true,
+      detail: `${fmt(harvestW)} W at typical load ${fmt(span.loadCurrentA.typical, 0)} A; useful minimum ${fmt(harvester.usefulMinHarvestW)} W`,
+    },
+  ];
+  const ampacityOk = gates.find((g) => g.id === 'ampacity')!.passed;
+
+  const powerMargin = clamp01((harvestW / harvester.usefulMinHarvestW - 1) / (settings.powerMarginFullRatio - 1));
+  const clearanceMargin = span.clearanceM === null ? 0 : clamp01((span.clearanceM - requiredClearanceM) / settings.clearanceMarginFullM);
+  const hazardPenalty =
+    span.hazards.reduce((sum, h) => sum + settings.hazardPenalty[h.severity], 0) +
+    settings.cautionZonePenalty * Math.max(0, span.zones.inCautionCount);
+  const hazards = clamp01(1 - hazardPenalty);
+  const { min: idealMin, max: idealMax } = settings.spanLengthIdealM;
+  const L = span.lengthM;
+  const lengthScore = L < idealMin ? L / idealMin : L <= idealMax ? 1 : (settings.spanLengthMaxM - L) / (settings.spanLengthMaxM - idealMax);
+  const windScore = 1 - weather.windSpeedMps / drone.windLimitMps;
+  const spanExposure = clamp01(lengthScore) * clamp01(windScore);
+  const fields = Object.values(span.completeness);
+  const completeness = fields.length === 0 ? 0 : fields.filter(Boolean).length / fields.length;
+  const age = span.surveyAgeDays;
+  const freshness =
+    age === null ? 0 : age <= settings.surveyFreshDays ? 1 : clamp01((settings.surveyStaleDays - age) / (settings.surveyStaleDays - settings.surveyFreshDays));
+  const dataQuality = clamp01(((completeness + freshness) / 2) * (ampacityOk ? 1 : settings.ampacityFlagFactor));
+
+  const values: Record<FactorId, number> = {
+    'power-margin': powerMargin,
+    'clearance-margin': clearanceMargin,
+    hazards,
+    'span-exposure': spanExposure,
+    'data-quality': dataQuality,
+  };
+  const totalWeight = Object.values(settings.weights).reduce((a, b) => a + Math.max(0, b), 0);
+  const factors: Factor[] = (Object.keys(values) as FactorId[]).map((id) => {
+    const weight = Math.max(0, settings.weights[id]);
+    return { id, value: values[id], weight, contribution: totalWeight > 0 ? (100 * values[id] * weight) / totalWeight : 0 };
+  });
+  const score = factors.reduce((sum, f) => sum + f.contribution, 0);
+
+  return {
+    perchable: gates.every((g) => g.passed || !g.blocking),
+    score,
+    gates,
+    factors,
+    harvestW,
+    harvestMinW,
+    harvestPeakW,
+    chargeTimeMin,
+    conductorTempC,
+    ampacityA,
+    codeClearanceM,
+    approachDistanceM,
+    methodVersion: METHOD_VERSION,
+  };
+}

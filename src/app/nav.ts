@@ -1,0 +1,21 @@
+import type { Role } from '#shared/roles.ts';
+
+export interface NavItem {
+  to: string;
+  label: string;
+  /** Roles that see the item; omitted = every signed-in user. */
+  roles?: Role[];
+}
+
+// The one list of places; a feature adds its entry here and its route in router.tsx.
+export const NAV_ITEMS: NavItem[] = [
+  { to: '/field', label: 'My spans', roles: ['surveyor'] },
+  { to: '/review', label: 'Review desk', roles: ['safety'] },
+  { to: '/planning', label: 'Planning', roles: ['planner'] },
+  { to: '/admin', label: 'Admin', roles: ['admin'] },
+  { to: '/account', label: 'Account' },
+];
+
+export function navFor(roles: readonly Role[]) {
+  return NAV_ITEMS.filter((i) => !i.roles || i.roles.some((r) => roles.includes(r)));
+}

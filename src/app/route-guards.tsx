@@ -1,0 +1,51 @@
+import type { ReactNode } from 'react';
+import { redirect, isRouteErrorResponse, useRouteError, type LoaderFunctionArgs } from 'react-router';
+import type { Role } from '#shared/roles.ts';
+import { homeFor } from '#shared/roles.ts';
+import { queryClient } from '../lib/query-client.ts';
+import { authQueries, useMe } from '../features/auth/queries.ts';
+import { StatusPage } from '../components/status-page.tsx';
+import { ApiError } from '../lib/api.ts';
+
+/** Loader of the signed-in layout: no session → the sign-in page, remembering where the user was going. */
+export async function requireSession({ request }: LoaderFunctionArgs) {
+  const me = await queryClient.ensureQueryData(authQueries.me());
+  if (!me) {
+    const url = new URL(request.url);
+    throw redirect(`/sign-in?next=${encodeURIComponent(url.pathname + url.search)}`);
+  }
+  return null;
+}
+
+export async function homeRedirect() {
+  const me = await queryClient.ensureQueryData(authQueries.me());
+  return redirect(me ? homeFor(me.roles) : '/sign-in');
+}
+
+export async function signInLoader() {
+  const me = await queryClient.ensureQueryData(authQueries.me());
+  return me ? redirect(homeFor(me.roles)) : null;
+}
+
+/** Shows its children only to the given roles (the server enforces the same rule). */
+export function RoleGate({ roles, children }: { roles: Role[]; children: ReactNode }) {
+  const me = useMe();
+  if (!roles.some((r) => me.roles.includes(r))) {
+    return <StatusPage code={403} title="Not part of your role" message="This page belongs to another role. Ask an admin if you need it." />;
+  }
+  return <>{children}</>;
+}
+
+/** Error boundary for routes: expected API statuses get a plain page, anything else a generic one. */
+export function RouteErrorBoundary() {
+  const error = useRouteError();
+  if (isRouteErrorResponse(error) && error.status === 404) {
+    return <StatusPage code={404} title="Nothing here" message="That page does not exist." />;
+  }
+  if (error instanceof ApiError) {
+    if (error.status === 404) return <StatusPage code={404} title="Not found" message={error.message} />;
+    if (error.status === 403) return <StatusPage code={403} title="Not part of your role" message={error.message} />;
+    return <StatusPage code={error.status} title="The server refused" message={error.message} />;
+  }
+  return <StatusPage title="Something went wrong" message="This page failed to load. Try again; if it keeps failing, tell an admin." />;
+}

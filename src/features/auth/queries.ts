@@ -1,0 +1,30 @@
+import { queryOptions, useQuery } from '@tanstack/react-query';
+import type { MeUser, SignInInput } from '#shared/schemas/auth.ts';
+import { api, ApiError } from '../../lib/api.ts';
+
+export const authQueries = {
+  me: () =>
+    queryOptions({
+      queryKey: ['me'],
+      // A 401 means "not signed in", which is an answer, not an error.
+      queryFn: async (): Promise<MeUser | null> => {
+        try {
+          return (await api.get<{ user: MeUser }>('/api/me')).user;
+        } catch (err) {
+          if (err instanceof ApiError && err.status === 401) return null;
+          throw err;
+        }
+      },
+      staleTime: 60_000,
+    }),
+};
+
+export const signIn = (input: SignInInput) => api.post<{ user: MeUser }>('/api/auth/sign-in', input);
+export const signOut = () => api.post<void>('/api/auth/sign-out');
+
+/** The signed-in user; only used below the authenticated layout, where it is always loaded. */
+export function useMe(): MeUser {
+  const { data } = useQuery(authQueries.me());
+  if (!data) throw new Error('useMe() outside the signed-in layout');
+  return data;
+}

@@ -1,0 +1,49 @@
+import type { ApiErrorBody, ApiIssue } from '#shared/api-error.ts';
+
+/** An error answer from the API, in the shared error shape. */
+export class ApiError extends Error {
+  constructor(
+    readonly status: number,
+    readonly code: string,
+    message: string,
+    readonly issues: ApiIssue[] = [],
+    readonly body?: unknown,
+  ) {
+    super(message);
+  }
+  issueFor(path: string) {
+    return this.issues.find((i) => i.path === path)?.message;
+  }
+}
+
+async function request<T>(method: string, url: string, body?: unknown): Promise<T> {
+  const res = await fetch(url, {
+    method,
+    credentials: 'same-origin',
+    headers: body === undefined ? {} : { 'Content-Type': 'application/json' },
+    body: body === undefined ? undefined : JSON.stringify(body),
+  });
+  if (res.status === 204) return undefined as T;
+  const data = await res.json().catch(() => null);
+  if (!res.ok) {
+    const err = (data as ApiErrorBody | null)?.error;
+    throw new ApiError(res.status, err?.code ?? 'unknown', err?.message ?? `Request failed (${res.status})`, err?.issues, data);
+  }
+  return data as T;
+}
+
+export const api = {
+  get: <T>(url: string) => request<T>('GET', url),
+  post: <T>(url: string, body: unknown = {}) => request<T>('POST', url, body),
+  put: <T>(url: string, body: unknown) => request<T>('PUT', url, body),
+  patch: <T>(url: string, body: unknown) => request<T>('PATCH', url, body),
+  delete: <T>(url: string) => request<T>('DELETE', url),
+};
+
+/** Builds a query string from the set values only. */
+export function qs(params: Record<string, string | number | boolean | null | undefined>) {
+  const p = new URLSearchParams();
+  for (const [k, v] of Object.entries(params)) if (v !== undefined && v !== null && v !== '') p.set(k, String(v));
+  const s = p.toString();
+  return s ? `?${s}` : '';
+}

@@ -1,0 +1,87 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import net from 'node:net';
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+
+export const DEMO_PASSWORD = 'roostline-demo';
+const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+
+async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const srv = net.createServer();
+    srv.listen(0, '127.0.0.1', () => {
+      const port = (srv.address() as net.AddressInfo).port;
+      srv.close(() => resolve(port));
+    });
+    srv.on('error', reject);
+  });
+}
+
+export interface Harness {
+  baseUrl: string;
+  browser: Browser;
+  dataDir: string;
+  /** Every URL the browser requested, for the "no other host" check. */
+  requests: string[];
+  newPage: (opts?: { viewport?: { width: number; height: number }; hasTouch?: boolean }) => Promise<{ context: BrowserContext; page: Page }>;
+  signIn: (page: Page, role: string, password?: string) => Promise<void>;
+  stop: () => Promise<void>;
+}
+
+/** Starts the real server (npm start's server entry) on a fresh SQLite file with the demo scenario, and Chromium. */
+export async function startHarness(env: Record<string, string> = {}): Promise<Harness> {
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-e2e-'));
+  const port = await freePort();
+  const baseUrl = `http://127.0.0.1:${port}`;
+  const server: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+    env: { ...process.env, PORT: String(port), DATABASE_PATH: path.join(dataDir, 'e2e.sqlite'), UPLOADS_DIR: path.join(dataDir, 'uploads'), SEED_DEMO: 'true', ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let log = '';
+  server.stdout!.on('data', (d) => (log += d));
+  server.stderr!.on('data', (d) => (log += d));
+  const deadline = Date.now() + 90_000;
+  for (;;) {
+    if (server.exitCode !== null) throw new Error(`server exited early:\n${log}`);
+    try {
+      const res = await fetch(`${baseUrl}/api/health`);
+      if (res.ok) break;
+    } catch {
+      /* not listening yet */
+    }
+    if (Date.now() > deadline) throw new Error(`server did not answer /api/health within 90 s:\n${log}`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  const browser = await chromium.launch({
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ['--no-sandbox', '--disable-quic', '--no-first-run', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--use-angle=swiftshader', '--enable-unsafe-swiftshader'],
+  });
+  const requests: string[] = [];
+  return {
+    baseUrl,
+    browser,
+    dataDir,
+    requests,
+    newPage: async (opts = {}) => {
+      const context = await browser.newContext({ baseURL: baseUrl, viewport: opts.viewport ?? { width: 1280, height: 900 }, hasTouch: opts.hasTouch });
+      const page = await context.newPage();
+      page.on('request', (r) => requests.push(r.url()));
+      return { context, page };
+    },
+    signIn: async (page, role, password = DEMO_PASSWORD) => {
+      await page.goto('/sign-in');
+      await page.getByLabel('E-mail').fill(role.includes('@') ? role : `${role}@roostline.test`);
+      await page.getByLabel('Password').fill(password);
+      await page.getByRole('button', { name: 'Sign in' }).click();
+    },
+    stop: async () => {
+      await browser.close();
+      server.kill('SIGTERM');
+      await new Promise((r) => server.once('exit', r));
+      fs.rmSync(dataDir, { recursive: true, force: true });
+    },
+  };
+}

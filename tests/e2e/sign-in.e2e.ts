@@ -1,0 +1,57 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startHarness, type Harness } from './harness.ts';
+
+let h: Harness;
+beforeAll(async () => {
+  h = await startHarness();
+});
+afterAll(() => h?.stop());
+
+const HOMES = [
+  { role: 'surveyor', path: '/field', heading: 'Field queue' },
+  { role: 'safety', path: '/review', heading: 'Review desk' },
+  { role: 'planner', path: '/planning', heading: 'Planning' },
+  { role: 'admin', path: '/admin', heading: 'Admin' },
+];
+
+describe('sign-in journeys', () => {
+  it.each(HOMES)('when the $role signs in through the page, then they land on $path', async ({ role, path, heading }) => {
+    const { context, page } = await h.newPage();
+    await h.signIn(page, role);
+    await page.waitForURL((u) => u.pathname === path);
+    const title = page.getByRole('heading', { level: 1, name: heading });
+    await title.waitFor();
+    expect(await title.innerText()).toBe(heading);
+    // Navigation shows only what the role may do.
+    const nav = await page.getByRole('navigation', { name: 'Main' }).innerText();
+    for (const other of HOMES.filter((x) => x.role !== role)) {
+      expect(nav).not.toContain(other.heading === 'Field queue' ? 'My spans' : other.heading);
+    }
+    await page.getByRole('button', { name: 'Sign out' }).click();
+    await page.waitForURL((u) => u.pathname === '/sign-in');
+    await context.close();
+  });
+
+  it('when the password is wrong, then the page shows the error and stays on sign-in', async () => {
+    const { context, page } = await h.newPage();
+    await h.signIn(page, 'planner', 'not-the-password');
+    const alert = page.getByRole('alert');
+    await alert.waitFor();
+    expect(await alert.innerText()).toContain('E-mail or password is incorrect');
+    expect(new URL(page.url()).pathname).toBe('/sign-in');
+    await context.close();
+  });
+
+  it('when a signed-out visitor opens a deep link, then sign-in brings them back to it', async () => {
+    const { context, page } = await h.newPage();
+    await page.goto('/account');
+    await page.waitForURL((u) => u.pathname === '/sign-in');
+    await page.getByLabel('E-mail').fill('planner@roostline.test');
+    await page.getByLabel('Password').fill('roostline-demo');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL((u) => u.pathname === '/account');
+    await page.goto('/no-such-page');
+    await page.getByText('That page does not exist.').waitFor();
+    await context.close();
+  });
+});

@@ -1,0 +1,144 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { makeTestApp, ORIGIN, HOST, type TestApp } from './helpers.ts';
+import { ROLES } from '../../shared/roles.ts';
+import { DEMO_PASSWORD } from '../../server/seeders/demo-users.ts';
+import { routeTable } from '../../server/http/access.ts';
+import { Session } from '../../server/modules/auth/session.entity.ts';
+
+let t: TestApp;
+beforeAll(async () => {
+  t = await makeTestApp({ signInBurst: 1000 });
+});
+afterAll(() => t.close());
+
+describe('health', () => {
+  it('when migrations have run, then GET /api/health answers ok', async () => {
+    const res = await t.client().get('/api/health');
+    expect(res.status).toBe(200);
+    expect(res.body).toEqual({ status: 'ok' });
+  });
+});
+
+describe('sign-in', () => {
+  it.each(ROLES)('when the %s demo account signs in, then /api/me names its role', async (role) => {
+    const c = t.client();
+    const res = await c.post('/api/auth/sign-in', { email: `${role}@roostline.test`, password: DEMO_PASSWORD });
+    expect(res.status).toBe(200);
+    const cookie = String(res.headers['set-cookie']);
+    expect(cookie).toMatch(/HttpOnly/i);
+    expect(cookie).toMatch(/SameSite=Lax/i);
+    expect(cookie).not.toMatch(/Secure/);
+    const me = await c.get('/api/me');
+    expect(me.status).toBe(200);
+    expect(me.body.user).toMatchObject({ email: `${role}@roostline.test`, roles: [role] });
+    expect(me.body.user.id).toEqual(expect.any(String));
+  });
+
+  it('when the e-mail is unknown or the password wrong, then both get 401 with the same message', async () => {
+    const a = await t.client().post('/api/auth/sign-in', { email: 'nobody@roostline.test', password: 'whatever-it-is' });
+    const b = await t.client().post('/api/auth/sign-in', { email: 'admin@roostline.test', password: 'not-the-password' });
+    expect(a.status).toBe(401);
+    expect(b.status).toBe(401);
+    expect(a.body.error.message).toBe(b.body.error.message);
+    expect(a.body.error.code).toBe('unauthenticated');
+  });
+
+  it('when the body is not valid, then 400 names the field', async () => {
+    const res = await t.client().post('/api/auth/sign-in', { email: 'not-an-email', password: '' });
+    expect(res.status).toBe(400);
+    const paths = res.body.error.issues.map((i: { path: string }) => i.path);
+    expect(paths).toEqual(expect.arrayContaining(['email', 'password']));
+  });
+
+  it('when the JSON is malformed, then 400 not 500', async () => {
+    const res = await t.client().agent.post('/api/auth/sign-in').set('Host', HOST).set('Origin', ORIGIN).set('Content-Type', 'application/json').send('{"email":');
+    expect(res.status).toBe(400);
+    expect(res.body.error.code).toBe('bad_request');
+  });
+
+  it('when the body is over 1 MB, then 413', async () => {
+    const res = await t.client().post('/api/auth/sign-in', { email: 'a@b.test', password: 'x'.repeat(1_100_000) });
+    expect(res.status).toBe(413);
+  });
+});
+
+describe('origin check', () => {
+  it('when a POST carries no Origin, then 403', async () => {
+    const res = await t.client().agent.post('/api/auth/sign-in').set('Host', HOST).send({ email: 'admin@roostline.test', password: DEMO_PASSWORD });
+    expect(res.status).toBe(403);
+    expect(res.body.error.code).toBe('forbidden');
+  });
+  it('when a POST carries a foreign Origin, then 403', async () => {
+    const res = await t.client().agent.post('/api/auth/sign-in').set('Host', HOST).set('Origin', 'http://evil.test').send({ email: 'admin@roostline.test', password: DEMO_PASSWORD });
+    expect(res.status).toBe(403);
+  });
+});
+
+describe('sessions', () => {
+  it('when a user signs out, then the session ends server-side and the cookie no longer works', async () => {
+    const c = await t.as('planner');
+    const cookie = (await c.get('/api/me')).request.cookies;
+    expect((await c.get('/api/me')).status).toBe(200);
+    const before = await t.orm.em.fork().count(Session, {});
+    expect((await c.post('/api/auth/sign-out')).status).toBe(204);
+    expect(await t.orm.em.fork().count(Session, {})).toBe(before - 1);
+    expect((await c.get('/api/me')).status).toBe(401);
+    expect(cookie).toBeDefined();
+  });
+
+  it('when a user changes the password, then the old one stops working and the new one works', async () => {
+    const c = await t.as('surveyor');
+    const bad = await c.post('/api/me/password', { currentPassword: 'wrong-one-here', newPassword: 'a-new-long-secret' });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.issues[0].path).toBe('currentPassword');
+    const common = await c.post('/api/me/password', { currentPassword: DEMO_PASSWORD, newPassword: 'password123' });
+    expect(common.status).toBe(400);
+    const ok = await c.post('/api/me/password', { currentPassword: DEMO_PASSWORD, newPassword: 'a-new-long-secret' });
+    expect(ok.status).toBe(204);
+    expect((await t.client().post('/api/auth/sign-in', { email: 'surveyor@roostline.test', password: DEMO_PASSWORD })).status).toBe(401);
+    expect((await t.client().post('/api/auth/sign-in', { email: 'surveyor@roostline.test', password: 'a-new-long-secret' })).status).toBe(200);
+    await c.post('/api/me/password', { currentPassword: 'a-new-long-secret', newPassword: DEMO_PASSWORD + '-x' });
+  });
+
+  it('when a user updates name and unit system, then /api/me returns them', async () => {
+    const c = await t.as('admin');
+    const res = await c.patch('/api/me', { name: 'Imogen T.', unitSystem: 'us' });
+    expect(res.status).toBe(200);
+    expect((await c.get('/api/me')).body.user).toMatchObject({ name: 'Imogen T.', unitSystem: 'us' });
+    expect((await c.patch('/api/me', { unitSystem: 'imperial' })).body.error.issues[0].path).toBe('unitSystem');
+  });
+});
+
+describe('route guards', () => {
+  it('when a route is called without a session, then every non-public route answers 401', async () => {
+    const guarded = routeTable.filter((r) => r.access !== 'public');
+    expect(guarded.length).toBeGreaterThan(2);
+    for (const route of guarded) {
+      const url = route.path.replace(/:(\w+)/g, 'x');
+      const res = await t.client()[route.method](url);
+      expect(res.status, `${route.method} ${route.path}`).toBe(401);
+    }
+  });
+
+  it('when an unknown API path is called, then a JSON 404', async () => {
+    const res = await t.client().get('/api/no-such-thing');
+    expect(res.status).toBe(404);
+    expect(res.body.error.code).toBe('not_found');
+  });
+});
+
+describe('rate limit', () => {
+  it('when sign-in fails a burst of times, then 429', async () => {
+    const own = await makeTestApp({ signInBurst: 5 });
+    const c = own.client();
+    const statuses: number[] = [];
+    for (let i = 0; i < 7; i++) {
+      statuses.push((await c.post('/api/auth/sign-in', { email: 'admin@roostline.test', password: `wrong-${i}` })).status);
+    }
+    expect(statuses.slice(0, 5).every((s) => s === 401)).toBe(true);
+    expect(statuses.at(-1)).toBe(429);
+    // The right password is refused too while the limit holds.
+    expect((await c.post('/api/auth/sign-in', { email: 'admin@roostline.test', password: DEMO_PASSWORD })).status).toBe(429);
+    await own.close();
+  });
+});

@@ -1,0 +1,64 @@
+import supertest from 'supertest';
+import type { MikroORM } from '@mikro-orm/sqlite';
+import { initORM } from '../../server/db.ts';
+import { createApp } from '../../server/app.ts';
+import { testConfig, type AppConfig } from '../../server/env.ts';
+import { seedDemoUsers, DEMO_PASSWORD } from '../../server/seeders/demo-users.ts';
+import type { Role } from '../../shared/roles.ts';
+
+export const HOST = 'roostline.test:3000';
+export const ORIGIN = `http://${HOST}`;
+
+export interface TestApp {
+  app: ReturnType<typeof createApp>['app'];
+  orm: MikroORM;
+  config: AppConfig;
+  close: () => Promise<void>;
+  /** A cookie-keeping client that sends the app's own Host and Origin. */
+  client: () => Client;
+  /** A client already signed in as the demo account of that role. */
+  as: (role: Role) => Promise<Client>;
+}
+
+export type Client = ReturnType<typeof makeClient>;
+
+function makeClient(app: TestApp['app']) {
+  const agent = supertest.agent(app);
+  const withHeaders = (t: supertest.Test) => t.set('Host', HOST).set('Origin', ORIGIN);
+  return {
+    agent,
+    get: (url: string) => agent.get(url).set('Host', HOST),
+    post: (url: string, body?: object) => withHeaders(agent.post(url)).send(body ?? {}),
+    put: (url: string, body?: object) => withHeaders(agent.put(url)).send(body ?? {}),
+    patch: (url: string, body?: object) => withHeaders(agent.patch(url)).send(body ?? {}),
+    delete: (url: string) => withHeaders(agent.delete(url)),
+    /** A multipart POST; build the body with .attach()/.field() on the returned request. */
+    upload: (url: string) => withHeaders(agent.post(url)),
+  };
+}
+
+/** A fresh app on its own in-memory database, with the four demo accounts. */
+export async function makeTestApp(overrides: Partial<AppConfig> = {}, opts: { seed?: (orm: MikroORM) => Promise<void> } = {}): Promise<TestApp> {
+  const config = testConfig(overrides);
+  const orm = await initORM(config.databasePath);
+  await seedDemoUsers(orm.em.fork());
+  if (opts.seed) await opts.seed(orm);
+  const { app, close } = createApp({ orm, config, clientDir: '/nonexistent' });
+  const client = () => makeClient(app);
+  return {
+    app,
+    orm,
+    config,
+    client,
+    close: async () => {
+      await close();
+      await orm.close();
+    },
+    as: async (role) => {
+      const c = client();
+      const res = await c.post('/api/auth/sign-in', { email: `${role}@roostline.test`, password: DEMO_PASSWORD });
+      if (res.status !== 200) throw new Error(`sign-in as ${role} failed: ${res.status} ${JSON.stringify(res.body)}`);
+      return c;
+    },
+  };
+}
