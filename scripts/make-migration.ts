@@ -1,5 +1,6 @@
 // Writes a migration for whatever the entity schemas have that the migrations do not yet create.
-// Usage: npx tsx scripts/make-migration.ts   (then review the file and commit it)
+// Usage: npx tsx scripts/make-migration.ts [--tables a,b]   (then review the file and commit it)
+// --tables keeps only statements about those tables, so two features in progress do not share a migration.
 import fs from 'node:fs';
 import path from 'node:path';
 import { MikroORM } from '@mikro-orm/sqlite';
@@ -15,12 +16,19 @@ if (!sql.trim()) {
 }
 const stamp = new Date().toISOString().replace(/\D/g, '').slice(0, 14);
 const name = `Migration${stamp}`;
+const tablesArg = process.argv.indexOf('--tables');
+const tables = tablesArg > 0 ? process.argv[tablesArg + 1].split(',') : null;
 const statements = sql
   .split(/;\s*\n/)
   .map((s) => s.trim())
   .filter(Boolean)
+  .filter((s) => !tables || tables.some((t) => new RegExp(`(table|on) \`${t}\``).test(s)))
   .map((s) => `    this.addSql(${JSON.stringify(s.replace(/;$/, ''))});`)
   .join('\n');
+if (!statements) {
+  console.log('Nothing for those tables: no migration written.');
+  process.exit(0);
+}
 const dir = path.resolve('server/migrations');
 fs.writeFileSync(
   path.join(dir, `${name}.ts`),
