@@ -2,5 +2,11 @@
 import { UserSchema, CrewSchema } from './modules/auth/user.entity.ts';
 import { SessionSchema } from './modules/auth/session.entity.ts';
 import { AuditEntrySchema } from './modules/audit/audit.entity.ts';
+import { LineSchema } from './modules/inventory/line.entity.ts';
+import { StructureSchema } from './modules/inventory/structure.entity.ts';
+import { SpanSchema } from './modules/inventory/span.entity.ts';
+import { HazardSchema } from './modules/inventory/hazard.entity.ts';
+import { HazardKindSchema } from './modules/inventory/hazard-kind.entity.ts';
+import { ConductorTypeSchema } from './modules/inventory/conductor-type.entity.ts';
 
-export const entities = [UserSchema, CrewSchema, SessionSchema, AuditEntrySchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema];
