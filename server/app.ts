@@ -10,6 +10,8 @@ import { errorHandler, notFoundHandler } from './http/errors.ts';
 import { originCheck, sessionMiddleware } from './http/session.ts';
 import { healthRouter } from './modules/health/health.router.ts';
 import { authRouter, meRouter } from './modules/auth/auth.router.ts';
+import { zonesRouter } from './modules/zones/zones.router.ts';
+import { mapRouter } from './modules/map/map.router.ts';
 
 export interface CreateAppOptions {
   orm: MikroORM;
@@ -50,6 +52,8 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api/auth', authRouter(ctx));
   app.use('/api/me', meRouter(ctx));
 
+  app.use('/api/zones', zonesRouter(ctx));
+  app.use(mapRouter(ctx));
   app.use('/api', notFoundHandler);
 
   if (fs.existsSync(path.join(clientDir, 'index.html'))) {

@@ -8,5 +8,6 @@ import { SpanSchema } from './modules/inventory/span.entity.ts';
 import { HazardSchema } from './modules/inventory/hazard.entity.ts';
 import { HazardKindSchema } from './modules/inventory/hazard-kind.entity.ts';
 import { ConductorTypeSchema } from './modules/inventory/conductor-type.entity.ts';
+import { ZoneSchema } from './modules/zones/zone.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, ZoneSchema];

@@ -4,6 +4,8 @@ export interface AppConfig {
   port: number;
   databasePath: string;
   uploadsDir: string;
+  /** Vector basemap served to the map (PMTiles v3 file); drop in your own region's file. */
+  basemapPath: string;
   seedDemo: boolean;
   smtpUrl: string | null;
   /** Public origin used in e-mailed links; the Origin check compares against the request's own host. */
@@ -22,6 +24,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     port,
     databasePath: path.resolve(env.DATABASE_PATH ?? './data/roostline.sqlite'),
     uploadsDir: path.resolve(env.UPLOADS_DIR ?? './uploads'),
+    basemapPath: path.resolve(env.BASEMAP_PATH ?? './server/map-assets/basemap.pmtiles'),
     seedDemo: (env.SEED_DEMO ?? 'true') !== 'false',
     smtpUrl: env.SMTP_URL || null,
     publicOrigin: env.PUBLIC_ORIGIN || null,
