@@ -2,6 +2,9 @@
 import { UserSchema, CrewSchema } from './modules/auth/user.entity.ts';
 import { SessionSchema } from './modules/auth/session.entity.ts';
 import { AuditEntrySchema } from './modules/audit/audit.entity.ts';
+import { OutboxMessageSchema } from './modules/mail/outbox.entity.ts';
+import { InvitationSchema } from './modules/auth/invitation.entity.ts';
+import { PasswordResetSchema } from './modules/auth/reset.entity.ts';
 import { LineSchema } from './modules/inventory/line.entity.ts';
 import { StructureSchema } from './modules/inventory/structure.entity.ts';
 import { SpanSchema } from './modules/inventory/span.entity.ts';
@@ -10,4 +13,4 @@ import { HazardKindSchema } from './modules/inventory/hazard-kind.entity.ts';
 import { ConductorTypeSchema } from './modules/inventory/conductor-type.entity.ts';
 import { ZoneSchema } from './modules/zones/zone.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, ZoneSchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema];

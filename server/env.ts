@@ -4,10 +4,16 @@ export interface AppConfig {
   port: number;
   databasePath: string;
   uploadsDir: string;
+  /** Largest accepted photo file, bytes (MAX_UPLOAD_BYTES; default 25 MiB); larger → 413. */
+  maxUploadBytes: number;
   /** Vector basemap served to the map (PMTiles v3 file); drop in your own region's file. */
   basemapPath: string;
   seedDemo: boolean;
   smtpUrl: string | null;
+  /** Port of the built-in local mail catcher used when SMTP_URL is unset (0 = any free port). */
+  mailCatcherPort: number;
+  /** Sender of the app's e-mails. */
+  mailFrom: string;
   /** Public origin used in e-mailed links; the Origin check compares against the request's own host. */
   publicOrigin: string | null;
   /** Cookies get `Secure` when true (behind HTTPS). */
@@ -24,9 +30,12 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     port,
     databasePath: path.resolve(env.DATABASE_PATH ?? './data/roostline.sqlite'),
     uploadsDir: path.resolve(env.UPLOADS_DIR ?? './uploads'),
+    maxUploadBytes: Number(env.MAX_UPLOAD_BYTES ?? 25 * 1024 * 1024),
     basemapPath: path.resolve(env.BASEMAP_PATH ?? './server/map-assets/basemap.pmtiles'),
     seedDemo: (env.SEED_DEMO ?? 'true') !== 'false',
     smtpUrl: env.SMTP_URL || null,
+    mailCatcherPort: Number(env.MAIL_CATCHER_PORT ?? 0),
+    mailFrom: env.MAIL_FROM || 'Roostline <no-reply@roostline.local>',
     publicOrigin: env.PUBLIC_ORIGIN || null,
     secureCookies: env.COOKIE_SECURE ? env.COOKIE_SECURE === 'true' : (env.PUBLIC_ORIGIN ?? '').startsWith('https:'),
     signInBurst: Number(env.SIGN_IN_BURST ?? 10),

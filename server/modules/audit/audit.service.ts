@@ -24,3 +24,6 @@ export function audit(em: EntityManager, input: AuditInput): AuditEntry {
   em.persist(entry);
   return entry;
 }
+
+/** Record types the safety role may read in the audit log: the span records and what hangs off them. */
+export const SPAN_RELATED_RECORD_TYPES = ['span', 'hazard', 'hazard-kind', 'hazard_kind', 'zone', 'photo', 'structure', 'line', 'assessment'];
