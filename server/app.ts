@@ -16,6 +16,7 @@ import { adminRouter } from './modules/admin/admin.router.ts';
 import { auditRouter } from './modules/audit/audit.router.ts';
 import { zonesRouter } from './modules/zones/zones.router.ts';
 import { mapRouter } from './modules/map/map.router.ts';
+import { photosRouter } from './modules/photos/photo.router.ts';
 
 export interface CreateAppOptions {
   orm: MikroORM;
@@ -61,6 +62,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
 
   app.use('/api/zones', zonesRouter(ctx));
   app.use(mapRouter(ctx));
+  app.use('/api/photos', photosRouter(ctx));
   app.use('/api', notFoundHandler);
 
   if (fs.existsSync(path.join(clientDir, 'index.html'))) {

@@ -12,5 +12,6 @@ import { HazardSchema } from './modules/inventory/hazard.entity.ts';
 import { HazardKindSchema } from './modules/inventory/hazard-kind.entity.ts';
 import { ConductorTypeSchema } from './modules/inventory/conductor-type.entity.ts';
 import { ZoneSchema } from './modules/zones/zone.entity.ts';
+import { PhotoSchema } from './modules/photos/photo.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema];

@@ -1,0 +1,176 @@
+import type { EntityManager } from '@mikro-orm/core';
+import { generateIdFromEntropySize } from 'lucia';
+import { distance, lineString, point, pointToLineDistance } from '@turf/turf';
+import { Span } from '../inventory/span.entity.ts';
+import { Structure } from '../inventory/structure.entity.ts';
+import { audit } from '../audit/audit.service.ts';
+import { Photo } from './photo.entity.ts';
+import type { PhotoStorage } from './photo.storage.ts';
+import type { ProcessedPhoto } from './photo.pipeline.ts';
+
+/** How far from a span's line a photo may be and still be suggested for it, m. */
+export const SUGGEST_WITHIN_M = 60;
+/** Longest span looked for around a photo, m (prefilter box only; the distance test is exact). */
+const LONGEST_SPAN_M = 3000;
+
+export type PhotoVariant = 'original' | 'display' | 'thumbnail';
+export const VARIANT_SUFFIX: Record<PhotoVariant, string> = { original: '.original', display: '.display.jpg', thumbnail: '.thumb.jpg' };
+
+export const variantKey = (photo: Pick<Photo, 'storageKey'>, v: PhotoVariant) => photo.storageKey + VARIANT_SUFFIX[v];
+
+export interface PhotoApi {
+  id: string;
+  spanId: string | null;
+  hazardId: string | null;
+  uploaderId: string;
+  lat: number | null;
+  lon: number | null;
+  altitudeM: number | null;
+  bearingDeg: number | null;
+  bearingRef: string | null;
+  takenAt: string | null;
+  takenAtHasOffset: boolean;
+  positionSource: Photo['positionSource'];
+  contentType: string;
+  width: number;
+  height: number;
+  bytes: number;
+  thumbnailUrl: string;
+  displayUrl: string;
+  originalUrl: string;
+  createdAt: string;
+}
+
+export function toApi(p: Photo): PhotoApi {
+  const base = `/api/photos/${p.id}`;
+  return {
+    id: p.id,
+    spanId: p.spanId,
+    hazardId: p.hazardId,
+    uploaderId: p.uploaderId,
+    lat: p.lat,
+    lon: p.lon,
+    altitudeM: p.altitudeM,
+    bearingDeg: p.bearingDeg,
+    bearingRef: p.bearingRef,
+    takenAt: p.takenAt,
+    takenAtHasOffset: p.takenAtHasOffset,
+    positionSource: p.positionSource,
+    contentType: p.contentType,
+    width: p.width,
+    height: p.height,
+    bytes: p.bytes,
+    thumbnailUrl: `${base}/thumbnail`,
+    displayUrl: `${base}/display`,
+    originalUrl: `${base}/original`,
+    createdAt: p.createdAt.toISOString(),
+  };
+}
+
+/**
+ * Spans whose line between their two structures passes within SUGGEST_WITHIN_M of the point, nearest first
+ * (geodesic point-to-segment distance, turf).
+ */
+export async function suggestSpans(em: EntityManager, lat: number, lon: number): Promise<{ spanId: string; distanceM: number }[]> {
+  const reachM = LONGEST_SPAN_M + SUGGEST_WITHIN_M;
+  const dLat = reachM / 111_000;
+  const dLon = reachM / (111_000 * Math.max(Math.cos((lat * Math.PI) / 180), 0.01));
+  const near = await em.find(Structure, { lat: { $gte: lat - dLat, $lte: lat + dLat }, lon: { $gte: lon - dLon, $lte: lon + dLon } });
+  if (!near.length) return [];
+  const ids = near.map((s) => s.id);
+  const spans = await em.find(Span, { $or: [{ fromStructureId: { $in: ids } }, { toStructureId: { $in: ids } }] });
+  const byId = new Map(near.map((s) => [s.id, s]));
+  const missing = [...new Set(spans.flatMap((s) => [s.fromStructureId, s.toStructureId]).filter((id) => !byId.has(id)))];
+  if (missing.length) for (const s of await em.find(Structure, { id: { $in: missing } })) byId.set(s.id, s);
+  const pt = point([lon, lat]);
+  const out: { spanId: string; distanceM: number }[] = [];
+  for (const span of spans) {
+    const a = byId.get(span.fromStructureId);
+    const b = byId.get(span.toStructureId);
+    if (!a || !b) continue;
+    const distanceM =
+      a.lat === b.lat && a.lon === b.lon
+        ? distance(pt, point([a.lon, a.lat]), { units: 'meters' })
+        : pointToLineDistance(pt, lineString([[a.lon, a.lat], [b.lon, b.lat]]), { units: 'meters', method: 'geodesic' });
+    if (distanceM <= SUGGEST_WITHIN_M) out.push({ spanId: span.id, distanceM });
+  }
+  return out.sort((x, y) => x.distanceM - y.distanceM || x.spanId.localeCompare(y.spanId));
+}
+
+/**
+ * Writes the files, then the rows (with their audit entries) in one flush. When anything fails, every file
+ * this call wrote is deleted again, so a failed request leaves nothing behind.
+ */
+export async function storePhotos(
+  em: EntityManager,
+  storage: PhotoStorage,
+  items: ProcessedPhoto[],
+  opts: { uploaderId: string; spanId: string | null; hazardId: string | null },
+): Promise<Photo[]> {
+  const written: string[] = [];
+  try {
+    const photos: Photo[] = [];
+    for (const item of items) {
+      const id = generateIdFromEntropySize(10);
+      const photo = em.create(Photo, {
+        id,
+        spanId: opts.spanId,
+        hazardId: opts.hazardId,
+        uploaderId: opts.uploaderId,
+        lat: item.lat,
+        lon: item.lon,
+        altitudeM: item.altitudeM,
+        bearingDeg: item.bearingDeg,
+        bearingRef: item.bearingRef,
+        takenAt: item.takenAt,
+        takenAtHasOffset: item.takenAtHasOffset,
+        positionSource: item.lat !== null ? 'exif' : null,
+        contentType: item.contentType,
+        width: item.width,
+        height: item.height,
+        bytes: item.bytes,
+        storageKey: `photos/${id}`,
+        createdAt: new Date(),
+      });
+      for (const [variant, data, type] of [
+        ['original', item.original, item.contentType],
+        ['display', item.display, 'image/jpeg'],
+        ['thumbnail', item.thumbnail, 'image/jpeg'],
+      ] as const) {
+        const key = variantKey(photo, variant);
+        written.push(key);
+        await storage.put(key, data, type);
+      }
+      audit(em, { actorId: opts.uploaderId, action: 'photo.upload', recordType: 'photo', recordId: id, after: snapshot(photo) });
+      photos.push(photo);
+    }
+    await em.flush();
+    return photos;
+  } catch (err) {
+    em.clear();
+    await Promise.allSettled(written.map((k) => storage.delete(k)));
+    throw err;
+  }
+}
+
+/** The fields an audit entry records for a photo. */
+export function snapshot(p: Photo) {
+  return { spanId: p.spanId, hazardId: p.hazardId, lat: p.lat, lon: p.lon, positionSource: p.positionSource, contentType: p.contentType, bytes: p.bytes };
+}
+
+/** Photo ids per span, oldest first, for the span API's `photoIds`. */
+export async function photoIdsForSpans(em: EntityManager, spanIds: string[]): Promise<Map<string, string[]>> {
+  const map = new Map<string, string[]>(spanIds.map((id) => [id, []]));
+  if (!spanIds.length) return map;
+  const rows = await em.find(Photo, { spanId: { $in: spanIds } }, { fields: ['id', 'spanId', 'createdAt'], orderBy: { createdAt: 'asc', id: 'asc' } });
+  for (const r of rows) map.get(r.spanId!)?.push(r.id);
+  return map;
+}
+
+/** Deletes the row (audited) and then its files. */
+export async function deletePhoto(em: EntityManager, storage: PhotoStorage, photo: Photo, actorId: string) {
+  audit(em, { actorId, action: 'photo.delete', recordType: 'photo', recordId: photo.id, before: snapshot(photo) });
+  em.remove(photo);
+  await em.flush();
+  await Promise.allSettled((Object.keys(VARIANT_SUFFIX) as PhotoVariant[]).map((v) => storage.delete(variantKey(photo, v))));
+}
