@@ -10,6 +10,7 @@ import { errorHandler, notFoundHandler } from './http/errors.ts';
 import { originCheck, sessionMiddleware } from './http/session.ts';
 import { healthRouter } from './modules/health/health.router.ts';
 import { authRouter, meRouter } from './modules/auth/auth.router.ts';
+import { inventoryRouter } from './modules/inventory/inventory.router.ts';
 import { invitationRouter } from './modules/auth/invitation.router.ts';
 import { resetRouter } from './modules/auth/reset.router.ts';
 import { adminRouter } from './modules/admin/admin.router.ts';
@@ -56,6 +57,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api/health', healthRouter());
   app.use('/api/auth', authRouter(ctx));
   app.use('/api/me', meRouter(ctx));
+  app.use('/api', inventoryRouter(ctx));
   app.use('/api/auth', invitationRouter(ctx), resetRouter(ctx));
   app.use('/api/admin', adminRouter(ctx));
   app.use('/api/audit', auditRouter(ctx));

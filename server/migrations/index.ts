@@ -5,6 +5,7 @@ import { Migration20261202032922 } from './Migration20261202032922.ts';
 import { Migration20261202032934 } from './Migration20261202032934.ts';
 import { Migration20261202032920 } from './Migration20261202032920.ts';
 import { Migration20261202033100 } from './Migration20261202033100.ts';
+import { Migration20261202034000 } from './Migration20261202034000.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202031719', class: Migration20261202031719 },
@@ -12,4 +13,5 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202032934', class: Migration20261202032934 },
   { name: 'Migration20261202032920', class: Migration20261202032920 },
   { name: 'Migration20261202033100', class: Migration20261202033100 },
+  { name: 'Migration20261202034000', class: Migration20261202034000 },
 ];

@@ -1,0 +1,122 @@
+// GET /api/spans: server-side filtering, sorting and pagination in one SQL query.
+// The default assessment (first active harvester × drone) is joined when the assessments table exists,
+// so harvest power and score can filter and sort.
+import type { EntityManager } from '@mikro-orm/core';
+import type { Page, Span as SpanView, SpanListQuery, SpanSortKey } from '#shared/schemas/inventory.ts';
+import { Span } from './span.entity.ts';
+import { defaultAssessmentPair, spanViews, tableExists } from './inventory.service.ts';
+
+export interface SpanFilter {
+  status?: string[];
+  lineId?: string;
+  surveyorId?: string;
+  q?: string;
+  minHarvestW?: number;
+  minScore?: number;
+  sort?: string;
+  page: number;
+  pageSize: number;
+}
+
+const STATUS_ORDER = "case s.status when 'returned' then 0 when 'draft' then 1 when 'submitted' then 2 when 'approved' then 3 when 'suspended' then 4 else 5 end";
+
+const SORT_SQL: Record<SpanSortKey, string> = {
+  lengthM: 's.length_m',
+  updatedAt: 's.updated_at',
+  createdAt: 's.created_at',
+  status: STATUS_ORDER,
+  clearanceM: 's.clearance_m',
+  loadCurrentA: 'coalesce(s.load_current_a, l.load_typical_a)',
+  surveyDate: 's.survey_date',
+  harvestW: 'a.harvest_w',
+  score: 'a.score',
+  line: 'l.name',
+};
+
+function likeEscape(q: string) {
+  return `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+}
+
+/** Builds the FROM/WHERE part shared by the page and the count. */
+async function buildQuery(em: EntityManager, f: SpanFilter) {
+  const params: unknown[] = [];
+  let from =
+    'from spans s join lines l on l.id = s.line_id ' +
+    'left join structures fs on fs.id = s.from_structure_id ' +
+    'left join structures ts on ts.id = s.to_structure_id ';
+  const pair = await defaultAssessmentPair(em);
+  const hasAssessment = !!pair && (await tableExists(em, 'assessments'));
+  if (hasAssessment) {
+    from += 'left join assessments a on a.span_id = s.id and a.harvester_profile_id = ? and a.drone_profile_id = ? ';
+    params.push(pair!.harvesterProfileId, pair!.droneProfileId);
+  }
+  const where: string[] = [];
+  if (f.status?.length) {
+    where.push(`s.status in (${f.status.map(() => '?').join(',')})`);
+    params.push(...f.status);
+  }
+  if (f.lineId) {
+    where.push('s.line_id = ?');
+    params.push(f.lineId);
+  }
+  if (f.surveyorId) {
+    where.push('s.surveyor_id = ?');
+    params.push(f.surveyorId);
+  }
+  if (f.q) {
+    const like = likeEscape(f.q);
+    where.push("(fs.label like ? escape '\\' or ts.label like ? escape '\\' or l.name like ? escape '\\' or s.conductor_code_word like ? escape '\\' or s.id = ?)");
+    params.push(like, like, like, like, f.q);
+  }
+  // Without a stored assessment a span has no harvest figure, so it cannot meet a minimum.
+  if (f.minHarvestW !== undefined) {
+    if (hasAssessment) {
+      where.push('a.harvest_w >= ?');
+      params.push(f.minHarvestW);
+    } else where.push('0 = 1');
+  }
+  if (f.minScore !== undefined) {
+    if (hasAssessment) {
+      where.push('a.score >= ?');
+      params.push(f.minScore);
+    } else where.push('0 = 1');
+  }
+  return { sql: from + (where.length ? `where ${where.join(' and ')} ` : ''), params, hasAssessment };
+}
+
+function orderBy(sort: string | undefined, hasAssessment: boolean) {
+  const desc = !!sort?.startsWith('-');
+  const key = (sort?.replace(/^-/, '') || 'updatedAt') as SpanSortKey;
+  let expr = SORT_SQL[key] ?? SORT_SQL.updatedAt;
+  if (!hasAssessment && (key === 'harvestW' || key === 'score')) expr = 'null';
+  const dir = desc || (!sort && key === 'updatedAt') ? 'desc' : 'asc';
+  const tail = key === 'line' ? `, fs.label ${dir}, s.id` : ', l.name, fs.label, s.id';
+  return `order by ${expr} is null, ${expr} ${dir}${tail}`;
+}
+
+export async function listSpans(em: EntityManager, f: SpanFilter): Promise<Page<SpanView>> {
+  const { sql, params, hasAssessment } = await buildQuery(em, f);
+  const conn = em.getConnection();
+  const [{ n }] = (await conn.execute(`select count(*) as n ${sql}`, params)) as { n: number }[];
+  const rows = (await conn.execute(`select s.id as id ${sql}${orderBy(f.sort, hasAssessment)} limit ? offset ?`, [...params, f.pageSize, (f.page - 1) * f.pageSize])) as {
+    id: string;
+  }[];
+  const ids = rows.map((r) => r.id);
+  const spans = ids.length ? await em.find(Span, { id: { $in: ids } }) : [];
+  const byId = new Map(spans.map((s) => [s.id, s]));
+  const items = await spanViews(
+    em,
+    ids.map((id) => byId.get(id)!).filter(Boolean),
+  );
+  return { items, total: Number(n), page: f.page, pageSize: f.pageSize };
+}
+
+/** Every span id matching the filter in the table order (exports): no pagination. */
+export async function matchingSpanIds(em: EntityManager, f: Omit<SpanFilter, 'page' | 'pageSize'>): Promise<string[]> {
+  const { sql, params, hasAssessment } = await buildQuery(em, { ...f, page: 1, pageSize: 1 });
+  const sort = f.sort ?? 'line';
+  const rows = (await em.getConnection().execute(`select s.id as id ${sql}${orderBy(sort, hasAssessment)}`, params)) as { id: string }[];
+  return rows.map((r) => r.id);
+}
+
+export type { SpanListQuery };
