@@ -18,6 +18,7 @@ import { auditRouter } from './modules/audit/audit.router.ts';
 import { zonesRouter } from './modules/zones/zones.router.ts';
 import { mapRouter } from './modules/map/map.router.ts';
 import { photosRouter } from './modules/photos/photo.router.ts';
+import { assessmentRouters } from './modules/assessment/index.ts';
 
 export interface CreateAppOptions {
   orm: MikroORM;
@@ -63,8 +64,9 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api/audit', auditRouter(ctx));
 
   app.use('/api/zones', zonesRouter(ctx));
-  app.use(mapRouter(ctx));
   app.use('/api/photos', photosRouter(ctx));
+  app.use(assessmentRouters(ctx));
+  app.use(mapRouter(ctx));
   app.use('/api', notFoundHandler);
 
   if (fs.existsSync(path.join(clientDir, 'index.html'))) {

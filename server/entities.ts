@@ -5,13 +5,15 @@ import { AuditEntrySchema } from './modules/audit/audit.entity.ts';
 import { OutboxMessageSchema } from './modules/mail/outbox.entity.ts';
 import { InvitationSchema } from './modules/auth/invitation.entity.ts';
 import { PasswordResetSchema } from './modules/auth/reset.entity.ts';
+import { HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema } from './modules/assessment/profile.entity.ts';
+import { AssessmentSchema } from './modules/assessment/assessment.entity.ts';
+import { ZoneSchema } from './modules/zones/zone.entity.ts';
 import { LineSchema } from './modules/inventory/line.entity.ts';
 import { StructureSchema } from './modules/inventory/structure.entity.ts';
 import { SpanSchema } from './modules/inventory/span.entity.ts';
 import { HazardSchema } from './modules/inventory/hazard.entity.ts';
 import { HazardKindSchema } from './modules/inventory/hazard-kind.entity.ts';
 import { ConductorTypeSchema } from './modules/inventory/conductor-type.entity.ts';
-import { ZoneSchema } from './modules/zones/zone.entity.ts';
 import { PhotoSchema } from './modules/photos/photo.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema];

@@ -1,17 +1,19 @@
 // Migrations are handed to the migrator as classes, so they run the same under tsx, vitest and node.
 // Add each new migration here (scripts/make-migration.ts does it for you).
 import { Migration20261202031719 } from './Migration20261202031719.ts';
+import { Migration20261202032845 } from './Migration20261202032845.ts';
+import { Migration20261202032920 } from './Migration20261202032920.ts';
 import { Migration20261202032922 } from './Migration20261202032922.ts';
 import { Migration20261202032934 } from './Migration20261202032934.ts';
-import { Migration20261202032920 } from './Migration20261202032920.ts';
 import { Migration20261202033100 } from './Migration20261202033100.ts';
 import { Migration20261202034000 } from './Migration20261202034000.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202031719', class: Migration20261202031719 },
+  { name: 'Migration20261202032845', class: Migration20261202032845 },
+  { name: 'Migration20261202032920', class: Migration20261202032920 },
   { name: 'Migration20261202032922', class: Migration20261202032922 },
   { name: 'Migration20261202032934', class: Migration20261202032934 },
-  { name: 'Migration20261202032920', class: Migration20261202032920 },
   { name: 'Migration20261202033100', class: Migration20261202033100 },
   { name: 'Migration20261202034000', class: Migration20261202034000 },
 ];

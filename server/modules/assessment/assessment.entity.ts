@@ -1,0 +1,49 @@
+import { EntitySchema } from '@mikro-orm/core';
+
+/** The stored assessment of one span for one harvester × drone pair, with the inputs and method version used. */
+export class Assessment {
+  id!: number;
+  spanId!: string;
+  harvesterProfileId!: string;
+  droneProfileId!: string;
+  perchable!: boolean;
+  score!: number;
+  harvestW!: number;
+  /** Null when nothing is harvested (the battery never recharges). */
+  chargeTimeMin!: number | null;
+  conductorTempC!: number;
+  ampacityA!: number;
+  result!: unknown;
+  inputs!: unknown;
+  methodVersion!: string;
+  settingsVersion!: number;
+  harvesterVersion!: number;
+  droneVersion!: number;
+  computedAt: Date = new Date();
+}
+
+export const AssessmentSchema = new EntitySchema<Assessment>({
+  class: Assessment,
+  tableName: 'assessments',
+  uniques: [{ properties: ['spanId', 'harvesterProfileId', 'droneProfileId'] }],
+  indexes: [{ properties: ['harvesterProfileId', 'droneProfileId', 'harvestW'] }],
+  properties: {
+    id: { type: 'number', primary: true, autoincrement: true },
+    spanId: { type: 'string', index: true },
+    harvesterProfileId: { type: 'string' },
+    droneProfileId: { type: 'string' },
+    perchable: { type: 'boolean' },
+    score: { type: 'double' },
+    harvestW: { type: 'double' },
+    chargeTimeMin: { type: 'double', nullable: true },
+    conductorTempC: { type: 'double' },
+    ampacityA: { type: 'double' },
+    result: { type: 'json' },
+    inputs: { type: 'json' },
+    methodVersion: { type: 'string' },
+    settingsVersion: { type: 'integer' },
+    harvesterVersion: { type: 'integer' },
+    droneVersion: { type: 'integer' },
+    computedAt: { type: 'Date' },
+  },
+});

@@ -1,0 +1,421 @@
+// Span assessment from the inventory records: builds each span's input, runs the pure method for every active
+// harvester × drone pair and stores one row per pair (replacing the previous ones).
+import type { EntityManager } from '@mikro-orm/core';
+import type { LineString } from 'geojson';
+import { bbox as turfBbox, booleanIntersects } from '@turf/turf';
+import {
+  assessSpan as assessSpanPure,
+  DEFAULT_DESIGN_WEATHER,
+  METHOD_VERSION,
+  type ScoringSettings,
+  type SpanAssessment,
+  type SpanAssessmentInput,
+} from '#shared/engineering/assessment.ts';
+import { ACSR_CONDUCTORS, DEFAULT_ABSORPTIVITY, DEFAULT_EMISSIVITY, findConductor, thermalConductorOf } from '#shared/engineering/conductors.ts';
+import { harvestCurve, harvestPowerW, type HarvesterProfile as HarvesterModel } from '#shared/engineering/ct-harvester.ts';
+import type { DroneProfile as DroneModel } from '#shared/engineering/demo-profiles.ts';
+import type { HarvestCurveView, SpanAssessmentView } from '#shared/schemas/assessment.ts';
+import { Span } from '../inventory/span.entity.ts';
+import { Line } from '../inventory/line.entity.ts';
+import { Structure } from '../inventory/structure.entity.ts';
+import { Hazard } from '../inventory/hazard.entity.ts';
+import { Zone } from '../zones/zone.entity.ts';
+import { isZoneActive } from '../zones/zone.service.ts';
+import { Assessment } from './assessment.entity.ts';
+import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
+import { activeDrones, activeHarvesters, currentSettings, defaultPair } from './profiles.service.ts';
+import { AppError } from '../../http/errors.ts';
+
+const BATCH = 500;
+const DAY_MS = 86_400_000;
+
+export interface SpanRecords {
+  span: Span;
+  line: Line;
+  from: Structure | null;
+  to: Structure | null;
+  hazards: Hazard[];
+  zones: { inExclude: boolean; inCautionCount: number; zoneIds: string[] };
+}
+
+/** Load at min/typical/peak: the line's estimate, or the span's own typical value scaled by the line's ratios. */
+export function effectiveLoad(span: Pick<Span, 'loadCurrentA'>, line: Pick<Line, 'loadMinA' | 'loadTypicalA' | 'loadPeakA'>) {
+  if (span.loadCurrentA === null || span.loadCurrentA === undefined) {
+    return { min: line.loadMinA, typical: line.loadTypicalA, peak: line.loadPeakA, source: 'line' as const };
+  }
+  const typical = span.loadCurrentA;
+  const scale = line.loadTypicalA > 0 ? typical / line.loadTypicalA : 1;
+  const min = line.loadTypicalA > 0 ? line.loadMinA * scale : typical;
+  const peak = line.loadTypicalA > 0 ? line.loadPeakA * scale : typical;
+  return { min: Math.min(min, typical), typical, peak: Math.max(peak, typical), source: 'span' as const };
+}
+
+/**
+ * The conductor's thermal data: the span's own resistances when surveyed, else the catalogue row of its code word,
+ * else the catalogue row nearest its diameter (an estimate, flagged in the data completeness).
+ */
+function conductorFor(span: Span) {
+  const own =
+    span.conductorDiameterMm !== null &&
+    span.conductorResistanceLowOhmPerM !== null &&
+    span.conductorTempLowC !== null &&
+    span.conductorResistanceHighOhmPerM !== null &&
+    span.conductorTempHighC !== null &&
+    span.conductorTempHighC > span.conductorTempLowC;
+  if (own) {
+    return {
+      source: 'span' as const,
+      thermal: {
+        diameterMm: span.conductorDiameterMm!,
+        resistanceLowOhmPerM: span.conductorResistanceLowOhmPerM!,
+        tempLowC: span.conductorTempLowC!,
+        resistanceHighOhmPerM: span.conductorResistanceHighOhmPerM!,
+        tempHighC: span.conductorTempHighC!,
+        emissivity: DEFAULT_EMISSIVITY,
+        absorptivity: DEFAULT_ABSORPTIVITY,
+      },
+    };
+  }
+  const byCode = span.conductorCodeWord ? findConductor(span.conductorCodeWord) : undefined;
+  if (byCode) {
+    const thermal = thermalConductorOf(byCode);
+    return { source: 'catalogue' as const, thermal: { ...thermal, diameterMm: span.conductorDiameterMm ?? thermal.diameterMm } };
+  }
+  const d = span.conductorDiameterMm;
+  const nearest = [...ACSR_CONDUCTORS].sort((a, b) => Math.abs(a.diameterMm - (d ?? 21.79)) - Math.abs(b.diameterMm - (d ?? 21.79)))[0];
+  return { source: d === null ? ('unknown' as const) : ('estimate' as const), thermal: { ...thermalConductorOf(nearest), diameterMm: d ?? nearest.diameterMm } };
+}
+
+/** The pure method's input from the inventory records (design weather: the IEEE 738 sample's hot still noon). */
+export function spanInputOf(rec: SpanRecords, now: Date = new Date()): { input: SpanAssessmentInput; conductorSource: string; loadSource: string } {
+  const { span, line } = rec;
+  const conductor = conductorFor(span);
+  const load = effectiveLoad(span, line);
+  const surveyAgeDays = span.surveyDate ? Math.max(0, Math.floor((now.getTime() - Date.parse(`${span.surveyDate}T00:00:00Z`)) / DAY_MS)) : null;
+  return {
+    conductorSource: conductor.source,
+    loadSource: load.source,
+    input: {
+      conductor: conductor.thermal,
+      clearanceM: span.clearanceM,
+      loadCurrentA: { min: load.min, typical: load.typical, peak: load.peak },
+      voltageKv: line.voltageKv,
+      frequencyHz: line.frequencyHz,
+      lengthM: span.lengthM,
+      hazards: rec.hazards.map((h) => ({ severity: h.severity })),
+      completeness: {
+        conductorDiameter: span.conductorDiameterMm !== null,
+        conductorResistance: conductor.source === 'span' || conductor.source === 'catalogue',
+        material: span.conductorMaterial !== null,
+        phasePosition: span.phasePosition !== null && span.phasePosition !== '',
+        clearance: span.clearanceM !== null,
+        lowestClearance: span.lowestClearanceM !== null,
+        terrain: span.terrain !== null,
+        loadProfile: Array.isArray(line.loadProfileA) && line.loadProfileA.length === 24,
+        surveyDate: span.surveyDate !== null,
+      },
+      surveyAgeDays,
+      zones: { inExclude: rec.zones.inExclude, inCautionCount: rec.zones.inCautionCount },
+    },
+  };
+}
+
+export function harvesterModel(p: HarvesterProfile): HarvesterModel {
+  return {
+    id: p.id,
+    name: p.name,
+    coreMaterial: p.coreMaterial,
+    turns: p.turns,
+    coreAreaMm2: p.coreAreaMm2,
+    pathLengthMm: p.pathLengthMm,
+    relativePermeability: p.relativePermeability,
+    airGapMm: p.airGapMm,
+    saturationT: p.saturationT,
+    windingResistanceOhm: p.windingResistanceOhm,
+    converterEfficiency: p.converterEfficiency,
+    massKg: p.massKg,
+    gripperMinDiameterMm: p.gripperMinDiameterMm,
+    gripperMaxDiameterMm: p.gripperMaxDiameterMm,
+    contactTempLimitC: p.contactTempLimitC,
+    usefulMinHarvestW: p.usefulMinHarvestW,
+  };
+}
+
+export function droneModel(p: DroneProfile): DroneModel {
+  return {
+    id: p.id,
+    name: p.name,
+    batteryWh: p.batteryWh,
+    reservePercent: p.reservePercent,
+    cruiseSpeedMps: p.cruiseSpeedMps,
+    windLimitMps: p.windLimitMps,
+    payloadKg: p.payloadKg,
+    approachClearanceM: p.approachClearanceM,
+  };
+}
+
+/** Runs the pure method and applies what only the records know (a diameter never surveyed cannot fit a gripper). */
+export function assessRecords(rec: SpanRecords, harvester: HarvesterProfile, drone: DroneProfile, settings: ScoringSettings, now = new Date()) {
+  const built = spanInputOf(rec, now);
+  const result: SpanAssessment = assessSpanPure(built.input, harvesterModel(harvester), droneModel(drone), DEFAULT_DESIGN_WEATHER, settings);
+  if (rec.span.conductorDiameterMm === null) {
+    const gate = result.gates.find((g) => g.id === 'gripper-fit');
+    if (gate) {
+      gate.passed = false;
+      gate.detail = `conductor diameter not surveyed; gripper ${harvester.gripperMinDiameterMm}–${harvester.gripperMaxDiameterMm} mm`;
+    }
+    result.perchable = result.gates.every((g) => g.passed || !g.blocking);
+  }
+  return { ...built, result };
+}
+
+/** Zones are read once per batch run; a span is in a zone when the polygon touches its line (zones module rule). */
+function zoneIndex(zones: Zone[], at: Date) {
+  const active = zones
+    .filter((z) => isZoneActive(z, at))
+    .map((z) => ({ zone: z, box: turfBbox(z.geometry) as [number, number, number, number] }));
+  return (line: LineString | null) => {
+    if (!line || active.length === 0) return { inExclude: false, inCautionCount: 0, zoneIds: [] as string[] };
+    const [x0, y0, x1, y1] = turfBbox(line) as [number, number, number, number];
+    const hits = active.filter(({ zone, box }) => box[0] <= x1 && box[2] >= x0 && box[1] <= y1 && box[3] >= y0 && booleanIntersects(zone.geometry, line));
+    return {
+      inExclude: hits.some((h) => h.zone.severity === 'exclude'),
+      inCautionCount: hits.filter((h) => h.zone.severity === 'caution').length,
+      zoneIds: hits.map((h) => h.zone.id),
+    };
+  };
+}
+
+function lineStringOf(from: Structure | null, to: Structure | null): LineString | null {
+  if (!from || !to) return null;
+  return { type: 'LineString', coordinates: [[from.lon, from.lat], [to.lon, to.lat]] };
+}
+
+/** Loads everything a batch of spans needs in a handful of queries. */
+async function recordsFor(em: EntityManager, spans: Span[], lineCache: Map<string, Line>, zonesOf: ReturnType<typeof zoneIndex>): Promise<SpanRecords[]> {
+  const missingLines = [...new Set(spans.map((s) => s.lineId))].filter((id) => !lineCache.has(id));
+  if (missingLines.length) for (const l of await em.find(Line, { id: { $in: missingLines } })) lineCache.set(l.id, l);
+  const structureIds = [...new Set(spans.flatMap((s) => [s.fromStructureId, s.toStructureId]))];
+  const structures = new Map((await em.find(Structure, { id: { $in: structureIds } })).map((s) => [s.id, s]));
+  const hazards = await em.find(Hazard, { spanId: { $in: spans.map((s) => s.id) } });
+  const hazardsBySpan = new Map<string, Hazard[]>();
+  for (const h of hazards) hazardsBySpan.set(h.spanId, [...(hazardsBySpan.get(h.spanId) ?? []), h]);
+  const out: SpanRecords[] = [];
+  for (const span of spans) {
+    const line = lineCache.get(span.lineId);
+    if (!line) continue; // a span always has its line (foreign key); skip rather than fail the whole batch
+    const from = structures.get(span.fromStructureId) ?? null;
+    const to = structures.get(span.toStructureId) ?? null;
+    out.push({ span, line, from, to, hazards: hazardsBySpan.get(span.id) ?? [], zones: zonesOf(lineStringOf(from, to)) });
+  }
+  return out;
+}
+
+export interface AssessOptions {
+  /** Progress of a background job: called with the number of spans done in each batch. */
+  onBatch?: (doneInBatch: number) => void;
+  /** Set for long runs on a private EntityManager: frees the identity map between batches. */
+  clearBetweenBatches?: boolean;
+  shouldStop?: () => boolean;
+  now?: Date;
+}
+
+/** Counts the spans a run will cover (for a job's total). */
+export async function countSpans(em: EntityManager, filter: { lineId?: string } = {}): Promise<number> {
+  return em.count(Span, filter.lineId ? { lineId: filter.lineId } : {});
+}
+
+/**
+ * Recomputes the stored assessments of the given spans (all spans when omitted, or a line's spans) for every
+ * active harvester × drone pair. Replaces each span's rows; returns the number of spans assessed.
+ */
+export async function assessSpans(em: EntityManager, spanIds?: readonly string[], opts: AssessOptions & { lineId?: string } = {}): Promise<number> {
+  const now = opts.now ?? new Date();
+  const [harvesters, drones, { version: settingsVersion, settings }, zones] = await Promise.all([
+    activeHarvesters(em),
+    activeDrones(em),
+    currentSettings(em),
+    em.find(Zone, {}),
+  ]);
+  const zonesOf = zoneIndex(zones, now);
+  const lineCache = new Map<string, Line>();
+  let assessed = 0;
+
+  const runBatch = async (spans: Span[]) => {
+    const records = await recordsFor(em, spans, lineCache, zonesOf);
+    const rows: Partial<Assessment>[] = [];
+    for (const rec of records) {
+      for (const h of harvesters) {
+        for (const d of drones) {
+          const { input, result, conductorSource, loadSource } = assessRecords(rec, h, d, settings, now);
+          const chargeTimeMin = Number.isFinite(result.chargeTimeMin) ? result.chargeTimeMin : null;
+          rows.push({
+            spanId: rec.span.id,
+            harvesterProfileId: h.id,
+            droneProfileId: d.id,
+            perchable: result.perchable,
+            score: result.score,
+            harvestW: result.harvestW,
+            chargeTimeMin,
+            conductorTempC: result.conductorTempC,
+            ampacityA: result.ampacityA,
+            result: { ...result, chargeTimeMin },
+            inputs: { span: input, designWeather: DEFAULT_DESIGN_WEATHER, conductorSource, loadSource, zoneIds: rec.zones.zoneIds, spanVersion: rec.span.version, lineVersion: rec.line.version },
+            methodVersion: METHOD_VERSION,
+            settingsVersion,
+            harvesterVersion: h.version,
+            droneVersion: d.version,
+            computedAt: now,
+          });
+        }
+      }
+    }
+    const ids = spans.map((s) => s.id);
+    await em.transactional(async (tx) => {
+      await tx.nativeDelete(Assessment, { spanId: { $in: ids } });
+      if (rows.length) await tx.insertMany(Assessment, rows);
+    });
+    assessed += records.length;
+    opts.onBatch?.(spans.length);
+  };
+
+  if (spanIds) {
+    for (let i = 0; i < spanIds.length; i += BATCH) {
+      if (opts.shouldStop?.()) break;
+      const spans = await em.find(Span, { id: { $in: spanIds.slice(i, i + BATCH) } });
+      // Spans that no longer exist lose their rows.
+      const gone = spanIds.slice(i, i + BATCH).filter((id) => !spans.some((s) => s.id === id));
+      if (gone.length) await em.nativeDelete(Assessment, { spanId: { $in: gone } });
+      if (spans.length) await runBatch(spans);
+      else opts.onBatch?.(0);
+    }
+    return assessed;
+  }
+
+  let after = '';
+  for (;;) {
+    if (opts.shouldStop?.()) break;
+    const where = opts.lineId ? { lineId: opts.lineId, id: { $gt: after } } : { id: { $gt: after } };
+    const spans = await em.find(Span, where, { orderBy: { id: 'asc' }, limit: BATCH });
+    if (spans.length === 0) break;
+    after = spans[spans.length - 1].id;
+    await runBatch(spans);
+    if (opts.clearBetweenBatches) {
+      em.clear();
+      // Lines stay cached by value; they were detached by clear() but are only read.
+    }
+    // Let requests in between batches.
+    await new Promise((r) => setImmediate(r));
+  }
+  // Rows of spans that were deleted meanwhile.
+  if (!opts.lineId && !opts.shouldStop?.()) {
+    await em.getConnection().execute('delete from `assessments` where `span_id` not in (select `id` from `spans`)');
+  }
+  return assessed;
+}
+
+/** Deletes the stored rows of a span (when it is deleted). */
+export async function forgetSpan(em: EntityManager, spanId: string) {
+  await em.nativeDelete(Assessment, { spanId });
+}
+
+export function assessmentView(row: Assessment): SpanAssessmentView {
+  const r = row.result as SpanAssessment & { chargeTimeMin: number | null };
+  return {
+    perchable: row.perchable,
+    score: row.score,
+    gates: r.gates.map((g) => ({ id: g.id, passed: g.passed, blocking: g.blocking, detail: g.detail })),
+    factors: r.factors.map((f) => ({ id: f.id, value: f.value, weight: f.weight, contribution: f.contribution })),
+    harvestW: row.harvestW,
+    harvestMinW: r.harvestMinW,
+    harvestPeakW: r.harvestPeakW,
+    chargeTimeMin: row.chargeTimeMin,
+    conductorTempC: row.conductorTempC,
+    ampacityA: row.ampacityA,
+    codeClearanceM: r.codeClearanceM,
+    approachDistanceM: r.approachDistanceM,
+    methodVersion: row.methodVersion,
+    settingsVersion: row.settingsVersion,
+    harvesterProfileId: row.harvesterProfileId,
+    harvesterVersion: row.harvesterVersion,
+    droneProfileId: row.droneProfileId,
+    droneVersion: row.droneVersion,
+    computedAt: row.computedAt.toISOString(),
+  };
+}
+
+/**
+ * The span API's `assessment` field: each span's row for the default pair (first active harvester and drone),
+ * or null when it has none yet. For the inventory's span views.
+ */
+export async function assessmentForSpans(em: EntityManager, spanIds: readonly string[]): Promise<Map<string, SpanAssessmentView | null>> {
+  const out = new Map<string, SpanAssessmentView | null>(spanIds.map((id) => [id, null]));
+  if (spanIds.length === 0) return out;
+  const pair = await defaultPair(em);
+  if (!pair) return out;
+  for (let i = 0; i < spanIds.length; i += BATCH) {
+    const rows = await em.find(Assessment, { spanId: { $in: spanIds.slice(i, i + BATCH) }, harvesterProfileId: pair.harvester.id, droneProfileId: pair.drone.id });
+    for (const row of rows) out.set(row.spanId, assessmentView(row));
+  }
+  return out;
+}
+
+/** The default pair's ids, for the inventory's minHarvestW filter and sort (join on assessments). */
+export async function defaultPairIds(em: EntityManager): Promise<{ harvesterProfileId: string; droneProfileId: string } | null> {
+  const pair = await defaultPair(em);
+  return pair ? { harvesterProfileId: pair.harvester.id, droneProfileId: pair.drone.id } : null;
+}
+
+/** Every stored pair of one span, default pair first. */
+export async function assessmentsOfSpan(em: EntityManager, spanId: string) {
+  const span = await em.findOne(Span, { id: spanId });
+  if (!span) throw AppError.notFound('Span');
+  const [rows, harvesters, drones] = await Promise.all([
+    em.find(Assessment, { spanId }),
+    em.find(HarvesterProfile, {}, { orderBy: { sortOrder: 'asc', createdAt: 'asc', id: 'asc' } }),
+    em.find(DroneProfile, {}, { orderBy: { sortOrder: 'asc', createdAt: 'asc', id: 'asc' } }),
+  ]);
+  const hOrder = new Map(harvesters.map((h, i) => [h.id, i]));
+  const dOrder = new Map(drones.map((d, i) => [d.id, i]));
+  const names = new Map<string, string>([...harvesters, ...drones].map((p) => [p.id, p.name]));
+  rows.sort((a, b) => (hOrder.get(a.harvesterProfileId) ?? 1e9) - (hOrder.get(b.harvesterProfileId) ?? 1e9) || (dOrder.get(a.droneProfileId) ?? 1e9) - (dOrder.get(b.droneProfileId) ?? 1e9));
+  return rows.map((row) => ({
+    ...assessmentView(row),
+    harvesterName: names.get(row.harvesterProfileId) ?? row.harvesterProfileId,
+    droneName: names.get(row.droneProfileId) ?? row.droneProfileId,
+    inputs: row.inputs,
+  }));
+}
+
+/** Power vs line current for one harvester on this span's line, and power over the day from the line's profile. */
+export async function harvestCurveOfSpan(em: EntityManager, spanId: string, harvesterId?: string): Promise<HarvestCurveView> {
+  const span = await em.findOne(Span, { id: spanId });
+  if (!span) throw AppError.notFound('Span');
+  const line = await em.findOne(Line, { id: span.lineId });
+  if (!line) throw AppError.notFound('Line');
+  const harvester = harvesterId
+    ? await em.findOne(HarvesterProfile, { id: harvesterId })
+    : (await defaultPair(em))?.harvester ?? (await em.find(HarvesterProfile, {}, { orderBy: { sortOrder: 'asc' }, limit: 1 }))[0];
+  if (!harvester) throw harvesterId ? AppError.field('harvesterId', 'No such harvester profile') : AppError.notFound('Harvester profile');
+  const model = harvesterModel(harvester);
+  const load = effectiveLoad(span, line);
+  const f = line.frequencyHz;
+  const curve = harvestCurve(model, f, Math.max(100, Math.ceil((load.peak * 1.5) / 100) * 100), 60);
+  const at = (a: number) => harvestPowerW(model, a, f);
+  // A span's own load estimate scales the line's daily shape.
+  const scale = load.source === 'span' && line.loadTypicalA > 0 ? load.typical / line.loadTypicalA : 1;
+  const daily =
+    Array.isArray(line.loadProfileA) && line.loadProfileA.length === 24
+      ? line.loadProfileA.map((a, hour) => ({ hour, currentA: a * scale, powerW: at(a * scale) }))
+      : null;
+  return {
+    spanId,
+    harvesterProfileId: harvester.id,
+    frequencyHz: f,
+    saturationOnsetA: curve.saturationOnsetA,
+    points: curve.points,
+    loadCurrentA: { min: load.min, typical: load.typical, peak: load.peak },
+    harvestW: { min: at(load.min), typical: at(load.typical), peak: at(load.peak) },
+    daily,
+  };
+}

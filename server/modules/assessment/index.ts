@@ -1,0 +1,98 @@
+// The assessment feature as app.ts mounts it: its routers, and the hooks that keep stored assessments current.
+import express from 'express';
+import type { EntityManager } from '@mikro-orm/core';
+import type { Polygon } from 'geojson';
+import { bbox as turfBbox } from '@turf/turf';
+import type { AppContext } from '../../context.ts';
+import { registerSpanListener, type SpanChange } from '../inventory/inventory.service.ts';
+import { registerZoneListener, type ZoneChange } from '../zones/zone.service.ts';
+import { calcRouter } from '../calc/calc.router.ts';
+import { jobsRouter } from '../jobs/jobs.router.ts';
+import { jobRunnerFor } from '../jobs/job-runner.ts';
+import { METHOD_VERSION } from '#shared/engineering/assessment.ts';
+import { assessSpans } from './assessment.service.ts';
+import { profilesRouter } from './profiles.router.ts';
+import { scoringSettingsRouter } from './settings.router.ts';
+import { spanAssessmentRouter } from './span-assessment.router.ts';
+import { assessmentReady, rescoreSpansNow, startRescore } from './rescore.ts';
+
+export { assessmentForSpans, assessSpans, defaultPairIds } from './assessment.service.ts';
+export { startRescore } from './rescore.ts';
+
+/** Up to this many spans are recomputed within the request that changed them; more go to a background job. */
+const INLINE_LIMIT = 50;
+
+/** Spans whose segment's bounding box overlaps the polygon's: the only ones a zone change can affect. */
+async function spansNear(em: EntityManager, polygons: Polygon[]): Promise<string[]> {
+  const ids = new Set<string>();
+  for (const p of polygons) {
+    const [x0, y0, x1, y1] = turfBbox(p);
+    const rows = await em.getConnection().execute<{ id: string }[]>(
+      'select s.id as id from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id ' +
+        'where min(a.lon, b.lon) <= ? and max(a.lon, b.lon) >= ? and min(a.lat, b.lat) <= ? and max(a.lat, b.lat) >= ?',
+      [x1, x0, y1, y0],
+    );
+    for (const r of rows) ids.add(r.id);
+  }
+  return [...ids];
+}
+
+/** Rescores a list of spans in the background (a line's load changed, a zone moved, an import landed). */
+function startRescoreOf(ctx: AppContext, reason: string, spanIds: string[]) {
+  return jobRunnerFor(ctx).enqueue('rescore-spans', reason, async (progress) => {
+    await assessmentReady(ctx);
+    const em = ctx.orm.em.fork();
+    progress.setTotal(spanIds.length);
+    await assessSpans(em, spanIds, { onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
+  });
+}
+
+/** Spans with no stored assessment, or one from an older method version, are rescored once at start-up. */
+async function rescoreStaleAtStart(ctx: AppContext) {
+  await assessmentReady(ctx);
+  const em = ctx.orm.em.fork();
+  const [row] = await em.getConnection().execute<{ n: number }[]>(
+    'select (select count(*) from spans s where not exists (select 1 from assessments a where a.span_id = s.id)) + ' +
+      '(select count(*) from assessments where method_version <> ?) as n',
+    [METHOD_VERSION],
+  );
+  if (Number(row?.n ?? 0) > 0) startRescore(ctx, 'spans without a current assessment at start-up');
+}
+
+export function assessmentRouters(ctx: AppContext) {
+  void rescoreStaleAtStart(ctx).catch((err) => console.error('start-up rescore check failed', err));
+  // Listeners are process-wide lists; each app only handles changes made through its own database.
+  const mine = (em: EntityManager) => em.getDriver() === ctx.orm.em.getDriver();
+
+  const offSpan = registerSpanListener(async (em: EntityManager, change: SpanChange) => {
+    if (!mine(em) || change.spanIds.length === 0) return;
+    if (change.spanIds.length <= INLINE_LIMIT && change.action !== 'line-update' && change.action !== 'import') {
+      await rescoreSpansNow(ctx, em, change.spanIds);
+    } else {
+      startRescoreOf(ctx, `${change.action} of ${change.spanIds.length} span(s)`, change.spanIds);
+    }
+  });
+  const offZone = registerZoneListener(async (em: EntityManager, change: ZoneChange) => {
+    if (!mine(em)) return;
+    const polygons = [change.before, change.after].filter((p): p is Polygon => !!p);
+    const ids = await spansNear(em, polygons);
+    if (ids.length) startRescoreOf(ctx, `no-perch zone ${change.action}`, ids);
+  });
+  ctx.onClose(() => {
+    offSpan();
+    offZone();
+  });
+
+  const router = express.Router();
+  router.use('/api/calc', calcRouter());
+  router.use('/api/jobs', jobsRouter(ctx));
+  router.use('/api/profiles', profilesRouter(ctx));
+  router.use('/api/settings/scoring', scoringSettingsRouter(ctx));
+  router.use('/api/spans', spanAssessmentRouter(ctx));
+  return router;
+}
+
+/** Rescores every span once (e.g. after the demo seed or on an admin's request). */
+export function rescoreAll(ctx: AppContext, reason: string) {
+  return startRescore(ctx, reason);
+}

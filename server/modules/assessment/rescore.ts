@@ -1,0 +1,61 @@
+// When assessments are recomputed: a span write recomputes that span at once; a line's load, a zone, a profile or
+// the scoring settings changing rescore the affected spans as a background job with progress.
+import type { EntityManager } from '@mikro-orm/core';
+import type { RequestHandler } from 'express';
+import type { JobView } from '#shared/schemas/assessment.ts';
+import type { AppContext } from '../../context.ts';
+import { jobRunnerFor } from '../jobs/job-runner.ts';
+import { assessSpans, countSpans } from './assessment.service.ts';
+import { ensureAssessmentDefaults } from './profiles.service.ts';
+
+const ready = new WeakMap<AppContext, Promise<void>>();
+
+/** Seeds the default profiles and settings into empty tables, once per app; everything here waits for it. */
+export function assessmentReady(ctx: AppContext): Promise<void> {
+  let p = ready.get(ctx);
+  if (!p) {
+    p = ensureAssessmentDefaults(ctx.orm.em.fork()).catch((err) => {
+      console.error('could not seed the default assessment profiles', err);
+      throw err;
+    });
+    ready.set(ctx, p);
+    ctx.onClose(() => p!.catch(() => undefined));
+  }
+  return p;
+}
+
+/** Express middleware: requests of the assessment routes wait until the defaults exist. */
+export function waitForAssessmentDefaults(ctx: AppContext): RequestHandler {
+  return async (_req, _res, next) => {
+    await assessmentReady(ctx);
+    next();
+  };
+}
+
+/** Rescores every span (or one line's spans) in the background; a waiting job of the same scope is reused. */
+export function startRescore(ctx: AppContext, reason: string, scope: { lineId?: string } = {}): JobView {
+  const runner = jobRunnerFor(ctx);
+  const key = scope.lineId ? `rescore:line:${scope.lineId}` : 'rescore:all';
+  return runner.enqueue(
+    scope.lineId ? 'rescore-line' : 'rescore-all',
+    reason,
+    async (progress) => {
+      await assessmentReady(ctx);
+      const em = ctx.orm.em.fork();
+      progress.setTotal(await countSpans(em, scope));
+      await assessSpans(em, undefined, {
+        lineId: scope.lineId,
+        clearBetweenBatches: true,
+        onBatch: (n) => progress.advance(n),
+        shouldStop: () => progress.aborted,
+      });
+    },
+    { coalesceKey: key },
+  );
+}
+
+/** Recomputes some spans now, in the caller's unit of work (used after a span write). */
+export async function rescoreSpansNow(ctx: AppContext, em: EntityManager, spanIds: readonly string[]) {
+  await assessmentReady(ctx);
+  await assessSpans(em, spanIds);
+}
