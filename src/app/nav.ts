@@ -13,6 +13,8 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/review', label: 'Review desk', roles: ['safety'] },
   { to: '/planning', label: 'Planning', roles: ['planner'] },
   { to: '/admin', label: 'Admin', roles: ['admin'] },
+  { to: '/admin/audit', label: 'Audit log', roles: ['admin', 'safety'] },
+  { to: '/admin/outbox', label: 'Outbox', roles: ['admin'] },
   { to: '/account', label: 'Account' },
 ];
 

@@ -5,6 +5,12 @@ import { SignInPage } from '../features/auth/sign-in-page.tsx';
 import { AccountPage } from '../features/account/account-page.tsx';
 import { RoleHome } from '../features/home/role-home.tsx';
 import { StatusPage } from '../components/status-page.tsx';
+import { AdminHome } from '../features/admin/admin-home.tsx';
+import { OutboxPage } from '../features/admin/outbox-page.tsx';
+import { AuditLogPage } from '../features/admin/audit-log-page.tsx';
+import { AcceptInvitationPage } from '../features/auth/accept-invitation-page.tsx';
+import { ResetPasswordPage } from '../features/auth/reset-password-page.tsx';
+import { ForgotPasswordPage } from '../features/auth/forgot-password-page.tsx';
 
 function Loading() {
   return <p className="p-8 text-center text-ink-700">Loading…</p>;
@@ -16,6 +22,9 @@ export const router = createBrowserRouter([
     ErrorBoundary: RouteErrorBoundary,
     children: [
       { path: '/sign-in', loader: signInLoader, Component: SignInPage },
+      { path: '/accept-invitation', Component: AcceptInvitationPage },
+      { path: '/reset-password', Component: ResetPasswordPage },
+      { path: '/forgot-password', Component: ForgotPasswordPage },
       {
         path: '/',
         loader: requireSession,
@@ -26,7 +35,9 @@ export const router = createBrowserRouter([
           { path: 'field', element: <RoleGate roles={['surveyor']}><RoleHome role="surveyor" /></RoleGate> },
           { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety" /></RoleGate> },
           { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner" /></RoleGate> },
-          { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin" /></RoleGate> },
+          { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin"><AdminHome /></RoleHome></RoleGate> },
+          { path: 'admin/outbox', element: <RoleGate roles={['admin']}><OutboxPage /></RoleGate> },
+          { path: 'admin/audit', element: <RoleGate roles={['admin', 'safety']}><AuditLogPage /></RoleGate> },
           { path: 'account', Component: AccountPage },
           { path: '*', element: <StatusPage code={404} title="Nothing here" message="That page does not exist." /> },
         ],

@@ -4,7 +4,40 @@ import express from 'express';
 import type { AppContext } from '../../context.ts';
 import { featureRouter } from '../../http/access.ts';
 import { AppError } from '../../http/errors.ts';
+import { z } from 'zod';
+import type { EntityManager } from '@mikro-orm/core';
+import { parse } from '../../http/errors.ts';
+import { registerSpanListener } from '../inventory/inventory.service.ts';
 import { buildStyle, MAP_ASSETS_DIR, FONT_FILES } from './style.ts';
+import { SpanTileService } from './span-tiles.ts';
+
+const services = new WeakMap<AppContext, SpanTileService>();
+
+/** The span-tile service of one app (one database). */
+export function spanTilesFor(ctx: AppContext): SpanTileService {
+  let s = services.get(ctx);
+  if (!s) {
+    const service = new SpanTileService(ctx.orm);
+    // Listeners are process-wide; only changes made through this app's database concern its tiles.
+    const mine = (em: EntityManager) => em.getDriver() === ctx.orm.em.getDriver();
+    const off = registerSpanListener((em) => {
+      if (mine(em)) service.invalidate();
+    });
+    ctx.onClose(off);
+    services.set(ctx, (s = service));
+  }
+  return s;
+}
+
+const tileParams = z.object({
+  z: z.coerce.number({ error: 'z must be a whole number' }).int().min(0).max(22),
+  x: z.coerce.number({ error: 'x must be a whole number' }).int().min(0),
+  y: z.coerce.number({ error: 'y must be a whole number' }).int().min(0),
+});
+const tileQuery = z.object({
+  harvesterProfileId: z.string().max(64).optional(),
+  droneProfileId: z.string().max(64).optional(),
+});
 
 /** The request's own origin, for the absolute URLs the map worker needs. */
 export function requestOrigin(req: express.Request): string {
@@ -38,6 +71,20 @@ export function mapRouter(ctx: AppContext) {
     const name = String(req.params.file);
     if (!/^sprite(@2x)?\.(png|json)$/.test(name)) return next(AppError.notFound('Sprite'));
     res.sendFile(path.join(MAP_ASSETS_DIR, 'sprites', name), { maxAge: '1h' });
+  });
+
+  // Spans (layer `spans`) and structures (layer `structures`) as Mapbox vector tiles, from the database.
+  r.get('/api/tiles/spans/:z/:x/:y.mvt', 'signed-in', async (req, res) => {
+    const { z: zoom, x, y } = parse(tileParams, req.params);
+    const max = 2 ** zoom;
+    if (x >= max) throw AppError.field('x', `x must be below ${max} at zoom ${zoom}`);
+    if (y >= max) throw AppError.field('y', `y must be below ${max} at zoom ${zoom}`);
+    const pair = parse(tileQuery, req.query);
+    const bytes = await spanTilesFor(ctx).tile(zoom, x, y, pair);
+    res.set('Content-Type', 'application/vnd.mapbox-vector-tile');
+    // Revalidated on every use (the ETag answers 304 while nothing changed): an edit shows at once.
+    res.set('Cache-Control', 'private, no-cache');
+    res.send(bytes);
   });
 
   return r.router;

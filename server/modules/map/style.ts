@@ -16,7 +16,93 @@ export const FONT_FILES: Record<string, string> = {
 
 export const LABEL_FONT = 'Roostline Label';
 
-/** The map style; every URL in it is on `origin` (the app itself). */
+// Roostline's own basemap palette: muted land, cool water, warm roads; overlays (spans, zones) stand out on it.
+const PALETTE = {
+  sea: '#a9c6cf',
+  land: '#eceee3',
+  farmland: '#ebe5cc',
+  meadow: '#dfe8c8',
+  forest: '#bfd4b0',
+  residential: '#e4dcd2',
+  water: '#a9c6cf',
+  waterLine: '#8fb3be',
+  roadCasing: '#b5a583',
+  roadMain: '#fbf6ea',
+  roadMinor: '#ffffff',
+  track: '#b8a98e',
+  label: '#12343b',
+  labelHalo: '#f7f4ee',
+  waterLabel: '#3f6f7c',
+};
+
+const text = (size: unknown, color = PALETTE.label) => ({
+  layout: { 'text-font': [LABEL_FONT], 'text-size': size },
+  paint: { 'text-color': color, 'text-halo-color': PALETTE.labelHalo, 'text-halo-width': 1.4 },
+});
+
+/** Basemap layers over the source-layers written by scripts/build-basemap.ts. */
+export function basemapLayers() {
+  const b = { source: 'basemap' };
+  return [
+    { id: 'background', type: 'background', paint: { 'background-color': PALETTE.sea } },
+    { id: 'land', type: 'fill', ...b, 'source-layer': 'land', paint: { 'fill-color': PALETTE.land } },
+    { id: 'landuse-farmland', type: 'fill', ...b, 'source-layer': 'landuse', filter: ['in', ['get', 'class'], ['literal', ['farmland', 'meadow']]], paint: { 'fill-color': ['match', ['get', 'class'], 'meadow', PALETTE.meadow, PALETTE.farmland], 'fill-outline-color': '#d9d0ad' } },
+    { id: 'landuse-forest', type: 'fill', ...b, 'source-layer': 'landuse', filter: ['==', ['get', 'class'], 'forest'], paint: { 'fill-color': PALETTE.forest } },
+    { id: 'landuse-residential', type: 'fill', ...b, 'source-layer': 'landuse', filter: ['==', ['get', 'class'], 'residential'], paint: { 'fill-color': PALETTE.residential } },
+    { id: 'water', type: 'fill', ...b, 'source-layer': 'water', paint: { 'fill-color': PALETTE.water } },
+    {
+      id: 'waterway',
+      type: 'line',
+      ...b,
+      'source-layer': 'waterway',
+      layout: { 'line-cap': 'round', 'line-join': 'round' },
+      paint: { 'line-color': PALETTE.waterLine, 'line-width': ['interpolate', ['linear'], ['zoom'], 8, ['match', ['get', 'class'], 'river', 1.2, 0.6], 14, ['match', ['get', 'class'], 'river', 7, 3]] },
+    },
+    { id: 'road-track', type: 'line', ...b, 'source-layer': 'roads', minzoom: 11, filter: ['==', ['get', 'class'], 'track'], paint: { 'line-color': PALETTE.track, 'line-width': 1, 'line-dasharray': [3, 2] } },
+    {
+      id: 'road-casing',
+      type: 'line',
+      ...b,
+      'source-layer': 'roads',
+      filter: ['in', ['get', 'class'], ['literal', ['main', 'secondary', 'street']]],
+      layout: { 'line-cap': 'round', 'line-join': 'round' },
+      paint: { 'line-color': PALETTE.roadCasing, 'line-width': ['interpolate', ['linear'], ['zoom'], 8, ['match', ['get', 'class'], 'main', 2, 'secondary', 1.4, 0.6], 15, ['match', ['get', 'class'], 'main', 11, 'secondary', 8, 5]] },
+    },
+    {
+      id: 'road',
+      type: 'line',
+      ...b,
+      'source-layer': 'roads',
+      filter: ['in', ['get', 'class'], ['literal', ['main', 'secondary', 'street']]],
+      layout: { 'line-cap': 'round', 'line-join': 'round' },
+      paint: {
+        'line-color': ['match', ['get', 'class'], 'main', PALETTE.roadMain, PALETTE.roadMinor],
+        'line-width': ['interpolate', ['linear'], ['zoom'], 8, ['match', ['get', 'class'], 'main', 1, 'secondary', 0.6, 0.2], 15, ['match', ['get', 'class'], 'main', 8, 'secondary', 6, 3.5]],
+      },
+    },
+    { id: 'road-label', type: 'symbol', ...b, 'source-layer': 'roads', minzoom: 12, filter: ['has', 'name'], layout: { ...text(12).layout, 'symbol-placement': 'line', 'text-field': ['get', 'name'] }, paint: text(12).paint },
+    { id: 'waterway-label', type: 'symbol', ...b, 'source-layer': 'waterway', minzoom: 11, layout: { ...text(12).layout, 'symbol-placement': 'line', 'text-field': ['get', 'name'], 'text-letter-spacing': 0.1 }, paint: text(12, PALETTE.waterLabel).paint },
+    { id: 'forest-label', type: 'symbol', ...b, 'source-layer': 'landuse', minzoom: 12, filter: ['==', ['get', 'class'], 'forest'], layout: { ...text(11).layout, 'text-field': ['get', 'name'] }, paint: text(11, '#3e5e34').paint },
+    { id: 'water-label', type: 'symbol', ...b, 'source-layer': 'places', minzoom: 11, filter: ['==', ['get', 'class'], 'water'], layout: { ...text(12).layout, 'text-field': ['get', 'name'] }, paint: text(12, PALETTE.waterLabel).paint },
+    {
+      id: 'place-label',
+      type: 'symbol',
+      ...b,
+      'source-layer': 'places',
+      filter: ['in', ['get', 'class'], ['literal', ['town', 'village']]],
+      layout: {
+        ...text(['interpolate', ['linear'], ['zoom'], 9, ['match', ['get', 'class'], 'town', 13, 11], 14, ['match', ['get', 'class'], 'town', 20, 16]]).layout,
+        'text-field': ['get', 'name'],
+        'icon-image': 'town',
+        'text-offset': [0, 0.9],
+        'text-anchor': 'top',
+      },
+      paint: text(14).paint,
+    },
+  ];
+}
+
+/** The map style; every URL in it is on `origin` (the app itself). Overlay layers are added by the client. */
 export function buildStyle(origin: string) {
   return {
     version: 8,
@@ -31,7 +117,13 @@ export function buildStyle(origin: string) {
     },
     sprite: `${origin}/map/sprites/sprite`,
     metadata: { 'roostline:bbox': [DEMO_BBOX.west, DEMO_BBOX.south, DEMO_BBOX.east, DEMO_BBOX.north] },
-    sources: {},
-    layers: [{ id: 'background', type: 'background', paint: { 'background-color': '#dfe7ea' } }],
+    sources: {
+      basemap: { type: 'vector', url: `pmtiles://${origin}/map/basemap.pmtiles` },
+      // Spans and structures come in the same server tiles (layers `spans` and `structures`).
+      spans: { type: 'vector', tiles: [`${origin}/api/tiles/spans/{z}/{x}/{y}.mvt`], minzoom: 0, maxzoom: 16, promoteId: { spans: 'id', structures: 'id' } },
+      zones: { type: 'geojson', data: `${origin}/api/zones`, promoteId: 'id' },
+      photos: { type: 'geojson', data: `${origin}/api/photos/geojson` },
+    },
+    layers: basemapLayers(),
   };
 }

@@ -58,6 +58,7 @@ export function SignInPage() {
             {formState.isSubmitting ? 'Signing in…' : 'Sign in'}
           </button>
         </form>
+        <p className="mt-4 text-center text-sm"><a href="/forgot-password" className="font-semibold text-ink-700 underline">Forgot password?</a></p>
       </div>
     </main>
   );

@@ -1,0 +1,305 @@
+// Span and structure vector tiles, generated from the database. The spans (with their default-pair assessment)
+// are read once into memory per data version and bucketed on a grid; each tile then projects only the spans
+// that touch it. Tiles are cached per data version; any span/structure/assessment change starts a new version.
+import type { EntityManager } from '@mikro-orm/core';
+import type { MikroORM } from '@mikro-orm/sqlite';
+import vtpbf from 'vt-pbf';
+import { defaultAssessmentPair, tableExists } from '../inventory/inventory.service.ts';
+
+export const TILE_EXTENT = 4096;
+/** Tile buffer in tile units (as in the basemap): features this close outside the tile are included. */
+const TILE_BUFFER = 64;
+/** From this zoom up every span is its own feature; below it, spans close together are generalised. */
+export const FULL_DETAIL_ZOOM = 12;
+/** Structures are drawn from this zoom up (they would be a smear below it). */
+export const STRUCTURE_MIN_ZOOM = 13;
+/** Generalisation cell at low zooms, tile units (128/4096 ≈ 16 px of a 512 px tile). */
+const GENERAL_CELL = 128;
+/** Grid bucket of the in-memory index, degrees. */
+const GRID_DEG = 0.01;
+/** The database fingerprint (catches changes made without a listener, e.g. background rescoring) is read at most this often. */
+const FINGERPRINT_EVERY_MS = 1000;
+const MAX_CACHED_TILES = 4000;
+
+export interface TilePair {
+  harvesterProfileId: string;
+  droneProfileId: string;
+}
+
+interface Snapshot {
+  n: number;
+  ids: string[];
+  lineIds: string[];
+  statuses: string[];
+  lon0: Float64Array;
+  lat0: Float64Array;
+  lon1: Float64Array;
+  lat1: Float64Array;
+  lengthM: Float64Array;
+  /** NaN = no assessment. */
+  score: Float64Array;
+  harvestW: Float64Array;
+  perchable: Int8Array;
+  grid: Map<number, number[]>;
+  structures: { id: string; lineId: string; lon: number; lat: number; kind: string; label: string }[];
+  structureGrid: Map<number, number[]>;
+}
+
+const gridKey = (gx: number, gy: number) => gx * 100000 + gy;
+const gx = (lon: number) => Math.floor((lon + 180) / GRID_DEG);
+const gy = (lat: number) => Math.floor((lat + 90) / GRID_DEG);
+
+function mercX(lon: number) {
+  return (lon + 180) / 360;
+}
+function mercY(lat: number) {
+  const s = Math.sin((lat * Math.PI) / 180);
+  return 0.5 - Math.log((1 + s) / (1 - s)) / (4 * Math.PI);
+}
+function tileLon(x: number, z: number) {
+  return (x / 2 ** z) * 360 - 180;
+}
+function tileLat(y: number, z: number) {
+  const n = Math.PI - (2 * Math.PI * y) / 2 ** z;
+  return (180 / Math.PI) * Math.atan(0.5 * (Math.exp(n) - Math.exp(-n)));
+}
+
+export interface TileStats {
+  builds: number;
+  hits: number;
+  snapshotLoads: number;
+}
+
+type VtFeature = { type: 1 | 2; geometry: unknown; tags: Record<string, unknown> };
+
+/** One per app: builds, caches and invalidates the span tiles of that app's database. */
+export class SpanTileService {
+  private version = 1;
+  private snapshots = new Map<string, Promise<Snapshot>>();
+  private cache = new Map<string, Buffer>();
+  private fingerprint: string | null = null;
+  private fingerprintAt = 0;
+  readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0 };
+
+  constructor(private readonly orm: MikroORM) {}
+
+  /** Starts a new data version: every cached tile and snapshot is dropped. */
+  invalidate() {
+    this.version += 1;
+    this.snapshots.clear();
+    this.cache.clear();
+  }
+
+  get dataVersion() {
+    return this.version;
+  }
+
+  private async checkFingerprint(em: EntityManager) {
+    const now = Date.now();
+    if (now - this.fingerprintAt < FINGERPRINT_EVERY_MS && this.fingerprint !== null) return;
+    this.fingerprintAt = now;
+    const hasAssessments = await tableExists(em, 'assessments');
+    const [row] = await em
+      .getConnection()
+      .execute<Record<string, unknown>[]>(
+        'select (select count(*) from spans) as sc, (select max(updated_at) from spans) as su, (select count(*) from structures) as tc, (select max(updated_at) from structures) as tu' +
+          (hasAssessments ? ', (select count(*) from assessments) as ac, (select max(computed_at) from assessments) as au' : ''),
+      );
+    const fp = JSON.stringify(row);
+    if (this.fingerprint !== null && fp !== this.fingerprint) this.invalidate();
+    this.fingerprint = fp;
+  }
+
+  private async resolvePair(em: EntityManager, pair: Partial<TilePair>): Promise<TilePair | null> {
+    if (pair.harvesterProfileId && pair.droneProfileId) return pair as TilePair;
+    return defaultAssessmentPair(em);
+  }
+
+  private loadSnapshot(pair: TilePair | null): Promise<Snapshot> {
+    const key = pair ? `${pair.harvesterProfileId}|${pair.droneProfileId}` : '-';
+    let p = this.snapshots.get(key);
+    if (!p) {
+      p = this.readSnapshot(pair);
+      this.snapshots.set(key, p);
+      p.catch(() => this.snapshots.delete(key));
+    }
+    return p;
+  }
+
+  private async readSnapshot(pair: TilePair | null): Promise<Snapshot> {
+    this.stats.snapshotLoads += 1;
+    const em = this.orm.em.fork();
+    const conn = em.getConnection();
+    const withAssessment = pair && (await tableExists(em, 'assessments'));
+    const rows = await conn.execute<any[]>(
+      'select s.id, s.line_id, s.status, s.length_m, a.lon as lon0, a.lat as lat0, b.lon as lon1, b.lat as lat1' +
+        (withAssessment ? ', x.score, x.harvest_w, x.perchable' : '') +
+        ' from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id' +
+        (withAssessment ? ' left join assessments x on x.span_id = s.id and x.harvester_profile_id = ? and x.drone_profile_id = ?' : ''),
+      withAssessment ? [pair!.harvesterProfileId, pair!.droneProfileId] : [],
+    );
+    const n = rows.length;
+    const snap: Snapshot = {
+      n,
+      ids: new Array(n),
+      lineIds: new Array(n),
+      statuses: new Array(n),
+      lon0: new Float64Array(n),
+      lat0: new Float64Array(n),
+      lon1: new Float64Array(n),
+      lat1: new Float64Array(n),
+      lengthM: new Float64Array(n),
+      score: new Float64Array(n),
+      harvestW: new Float64Array(n),
+      perchable: new Int8Array(n),
+      grid: new Map(),
+      structures: [],
+      structureGrid: new Map(),
+    };
+    rows.forEach((r, i) => {
+      snap.ids[i] = r.id;
+      snap.lineIds[i] = r.line_id;
+      snap.statuses[i] = r.status;
+      snap.lon0[i] = r.lon0;
+      snap.lat0[i] = r.lat0;
+      snap.lon1[i] = r.lon1;
+      snap.lat1[i] = r.lat1;
+      snap.lengthM[i] = r.length_m;
+      snap.score[i] = r.score ?? NaN;
+      snap.harvestW[i] = r.harvest_w ?? NaN;
+      snap.perchable[i] = r.perchable === null || r.perchable === undefined ? -1 : r.perchable ? 1 : 0;
+      for (let x = gx(Math.min(r.lon0, r.lon1)); x <= gx(Math.max(r.lon0, r.lon1)); x++) {
+        for (let y = gy(Math.min(r.lat0, r.lat1)); y <= gy(Math.max(r.lat0, r.lat1)); y++) {
+          const k = gridKey(x, y);
+          const list = snap.grid.get(k);
+          if (list) list.push(i);
+          else snap.grid.set(k, [i]);
+        }
+      }
+    });
+    const structures = await conn.execute<any[]>('select id, line_id, lon, lat, kind, label from structures');
+    structures.forEach((s, i) => {
+      snap.structures.push({ id: s.id, lineId: s.line_id, lon: s.lon, lat: s.lat, kind: s.kind, label: s.label });
+      const k = gridKey(gx(s.lon), gy(s.lat));
+      const list = snap.structureGrid.get(k);
+      if (list) list.push(i);
+      else snap.structureGrid.set(k, [i]);
+    });
+    return snap;
+  }
+
+  /** The MVT bytes of one tile (layers `spans` and, from STRUCTURE_MIN_ZOOM, `structures`). */
+  async tile(z: number, x: number, y: number, pair: Partial<TilePair> = {}): Promise<Buffer> {
+    const em = this.orm.em.fork();
+    await this.checkFingerprint(em);
+    const resolved = await this.resolvePair(em, pair);
+    const key = `${resolved ? `${resolved.harvesterProfileId}|${resolved.droneProfileId}` : '-'}/${z}/${x}/${y}`;
+    const version = this.version;
+    const hit = this.cache.get(key);
+    if (hit) {
+      this.stats.hits += 1;
+      return hit;
+    }
+    const snap = await this.loadSnapshot(resolved);
+    const bytes = Buffer.from(buildTile(snap, z, x, y));
+    this.stats.builds += 1;
+    if (version === this.version) {
+      if (this.cache.size >= MAX_CACHED_TILES) this.cache.delete(this.cache.keys().next().value!);
+      this.cache.set(key, bytes);
+    }
+    return bytes;
+  }
+}
+
+function buildTile(snap: Snapshot, z: number, x: number, y: number): Uint8Array {
+  const scale = 2 ** z;
+  const pad = TILE_BUFFER / TILE_EXTENT;
+  const west = tileLon(x - pad, z);
+  const east = tileLon(x + 1 + pad, z);
+  const north = tileLat(y - pad, z);
+  const south = tileLat(y + 1 + pad, z);
+  const px = (lon: number) => Math.round((mercX(lon) * scale - x) * TILE_EXTENT);
+  const py = (lat: number) => Math.round((mercY(lat) * scale - y) * TILE_EXTENT);
+
+  const seen = new Set<number>();
+  const candidates: number[] = [];
+  const gx0 = gx(west);
+  const gx1 = gx(east);
+  const gy0 = gy(south);
+  const gy1 = gy(north);
+  const cells = (gx1 - gx0 + 1) * (gy1 - gy0 + 1);
+  if (cells > snap.grid.size) {
+    for (let i = 0; i < snap.n; i++) candidates.push(i);
+  } else {
+    for (let a = gx0; a <= gx1; a++) {
+      for (let b = gy0; b <= gy1; b++) {
+        const list = snap.grid.get(gridKey(a, b));
+        if (!list) continue;
+        for (const i of list) if (!seen.has(i)) (seen.add(i), candidates.push(i));
+      }
+    }
+  }
+
+  const spans: VtFeature[] = [];
+  const general = z < FULL_DETAIL_ZOOM;
+  const buckets = new Map<string, { feature: VtFeature; harvestW: number; score: number; count: number }>();
+  for (const i of candidates) {
+    const minLon = Math.min(snap.lon0[i], snap.lon1[i]);
+    const maxLon = Math.max(snap.lon0[i], snap.lon1[i]);
+    const minLat = Math.min(snap.lat0[i], snap.lat1[i]);
+    const maxLat = Math.max(snap.lat0[i], snap.lat1[i]);
+    if (maxLon < west || minLon > east || maxLat < south || minLat > north) continue;
+    const x0 = px(snap.lon0[i]);
+    const y0 = py(snap.lat0[i]);
+    const x1 = px(snap.lon1[i]);
+    const y1 = py(snap.lat1[i]);
+    const tags: Record<string, unknown> = { id: snap.ids[i], lineId: snap.lineIds[i], status: snap.statuses[i], lengthM: Math.round(snap.lengthM[i] * 10) / 10 };
+    const score = snap.score[i];
+    const harvestW = snap.harvestW[i];
+    if (!Number.isNaN(score)) tags.score = Math.round(score * 10) / 10;
+    if (!Number.isNaN(harvestW)) tags.harvestW = Math.round(harvestW * 100) / 100;
+    if (snap.perchable[i] >= 0) tags.perchable = snap.perchable[i] === 1;
+    const feature: VtFeature = { type: 2, geometry: [[[x0, y0], [x1, y1]]], tags };
+    if (!general) {
+      spans.push(feature);
+      continue;
+    }
+    // Generalised: per line, status and cell one representative span carrying the best harvest and score of its
+    // cell, so the client's minimum-harvest / minimum-score filters keep every cell that has a qualifying span.
+    const cell = `${snap.lineIds[i]}|${snap.statuses[i]}|${Math.floor((x0 + x1) / 2 / GENERAL_CELL)}|${Math.floor((y0 + y1) / 2 / GENERAL_CELL)}`;
+    const b = buckets.get(cell);
+    const h = Number.isNaN(harvestW) ? -Infinity : harvestW;
+    const s = Number.isNaN(score) ? -Infinity : score;
+    if (!b) buckets.set(cell, { feature, harvestW: h, score: s, count: 1 });
+    else {
+      if (h > b.harvestW) b.feature = feature;
+      b.harvestW = Math.max(b.harvestW, h);
+      b.score = Math.max(b.score, s);
+      b.count += 1;
+    }
+  }
+  for (const b of buckets.values()) {
+    const tags: Record<string, unknown> = { ...b.feature.tags, count: b.count };
+    if (b.count > 1) {
+      if (b.harvestW > -Infinity) tags.harvestW = Math.round(b.harvestW * 100) / 100;
+      if (b.score > -Infinity) tags.score = Math.round(b.score * 10) / 10;
+    }
+    spans.push({ ...b.feature, tags });
+  }
+
+  const layers: Record<string, { features: VtFeature[] }> = { spans: { features: spans } };
+  if (z >= STRUCTURE_MIN_ZOOM) {
+    const structures: VtFeature[] = [];
+    for (let a = gx0; a <= gx1; a++) {
+      for (let b = gy0; b <= gy1; b++) {
+        for (const i of snap.structureGrid.get(gridKey(a, b)) ?? []) {
+          const s = snap.structures[i];
+          if (s.lon < west || s.lon > east || s.lat < south || s.lat > north) continue;
+          structures.push({ type: 1, geometry: [[px(s.lon), py(s.lat)]], tags: { id: s.id, lineId: s.lineId, kind: s.kind, label: s.label } });
+        }
+      }
+    }
+    layers.structures = { features: structures };
+  }
+  return vtpbf.fromGeojsonVt(layers, { version: 2, extent: TILE_EXTENT });
+}

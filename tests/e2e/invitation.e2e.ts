@@ -1,0 +1,61 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startHarness, type Harness } from './harness.ts';
+
+let h: Harness;
+beforeAll(async () => {
+  h = await startHarness();
+});
+afterAll(() => h?.stop());
+
+describe('invitation journey', () => {
+  it('when an admin invites through the page, then the invitee opens the link from the outbox, sets a password and lands on their home', async () => {
+    const admin = await h.newPage();
+    await h.signIn(admin.page, 'admin');
+    await admin.page.waitForURL((u) => u.pathname === '/admin');
+    await admin.page.locator('#invite-name').fill('Odile Farrant');
+    await admin.page.locator('#invite-email').fill('odile@harrowvale.test');
+    // Field surveyor is ticked by default; the invitee lands on the field home.
+    expect(await admin.page.getByRole('checkbox', { name: 'Field surveyor' }).first().isChecked()).toBe(true);
+    await admin.page.getByRole('button', { name: 'Send invitation' }).click();
+    await admin.page.getByText('Invitation sent to odile@harrowvale.test.').waitFor();
+    await admin.page.getByRole('heading', { name: 'Waiting for a password' }).waitFor();
+    await admin.page.getByText('odile@harrowvale.test').first().waitFor();
+
+    await admin.page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Outbox' }).click();
+    await admin.page.waitForURL((u) => u.pathname === '/admin/outbox');
+    await admin.page.getByRole('button', { name: /Your Roostline account is ready/ }).first().click();
+    const link = admin.page.locator('a[href*="/accept-invitation?token="]').first();
+    await link.waitFor();
+    const href = await link.getAttribute('href');
+    expect(href).toMatch(new RegExp(`^${h.baseUrl}/accept-invitation\\?token=`));
+    // The HTML part is shown in a frame without permissions.
+    await admin.page.getByRole('tab', { name: 'HTML' }).click();
+    expect(await admin.page.locator('iframe').getAttribute('sandbox')).toBe('');
+
+    const invitee = await h.newPage();
+    await invitee.page.goto(href!);
+    await invitee.page.getByRole('heading', { name: 'Welcome, Odile Farrant' }).waitFor();
+    await invitee.page.getByLabel('New password').fill('short');
+    await invitee.page.getByLabel('Repeat the password').fill('short');
+    await invitee.page.getByRole('button', { name: 'Set password and sign in' }).click();
+    await invitee.page.getByText('Use at least 10 characters').waitFor();
+    await invitee.page.getByLabel('New password').fill('otters-under-the-weir');
+    await invitee.page.getByLabel('Repeat the password').fill('otters-under-the-weir');
+    await invitee.page.getByRole('button', { name: 'Set password and sign in' }).click();
+    await invitee.page.waitForURL((u) => u.pathname === '/field');
+    await invitee.page.getByRole('heading', { level: 1, name: 'Field queue' }).waitFor();
+    expect(await invitee.page.getByTestId('who').innerText()).toContain('Odile Farrant');
+
+    // The link is spent: opening it again says so.
+    const again = await h.newPage();
+    await again.page.goto(href!);
+    await again.page.getByRole('heading', { name: 'This link does not work' }).waitFor();
+
+    // The admin sees the new account in the people table.
+    await admin.page.goto('/admin');
+    await admin.page.getByLabel('Search').fill('odile');
+    await admin.page.getByRole('cell', { name: /^Odile Farrant/ }).waitFor();
+    await expect.poll(() => admin.page.getByRole('button', { name: /^Deactivate / }).count(), { timeout: 5000 }).toBe(1);
+    for (const p of [admin, invitee, again]) await p.context.close();
+  });
+});
