@@ -171,13 +171,13 @@ export async function readExif(exifBlock: Buffer | undefined): Promise<PhotoExif
 }
 
 /** Upright (EXIF orientation applied), metadata stripped (sharp's default), sRGB JPEG inside a size × size box. */
-function derivative(input: Buffer, size: number, fromOriginal: boolean) {
-  const img = sharp(input, { limitInputPixels: MAX_INPUT_PIXELS, failOn: 'warning' });
-  return (fromOriginal ? img.rotate() : img)
-    .resize({ width: size, height: size, fit: 'inside', withoutEnlargement: true })
-    .flatten({ background: '#ffffff' })
-    .jpeg({ quality: fromOriginal ? 82 : 78, mozjpeg: false })
-    .toBuffer();
+function derivative(input: Buffer, size: number, fromOriginal: boolean, hasAlpha: boolean) {
+  let img = sharp(input, { limitInputPixels: MAX_INPUT_PIXELS, failOn: 'warning' });
+  if (fromOriginal) img = img.rotate();
+  img = img.resize({ width: size, height: size, fit: 'inside', withoutEnlargement: true });
+  // Transparent PNG/WebP/AVIF areas become white rather than JPEG's black.
+  if (hasAlpha) img = img.flatten({ background: '#ffffff' });
+  return img.jpeg({ quality: fromOriginal ? 82 : 78 }).toBuffer();
 }
 
 /** The whole pipeline for one file; `label` names the form field in error messages. */
@@ -187,9 +187,9 @@ export async function processPhoto(buf: Buffer, label = 'photo'): Promise<Proces
   let display: Buffer;
   let thumbnail: Buffer;
   try {
-    display = await derivative(buf, DISPLAY_PX, true);
-    // The thumbnail comes from the (already upright) display image: a far smaller decode than the original.
-    thumbnail = await derivative(display, THUMBNAIL_PX, false);
+    display = await derivative(buf, DISPLAY_PX, true, !!meta.hasAlpha);
+    // The thumbnail comes from the (already upright, opaque) display image: a far smaller decode than the original.
+    thumbnail = await derivative(display, THUMBNAIL_PX, false, false);
   } catch {
     throw corrupt(label);
   }
