@@ -10,6 +10,8 @@ export interface NavItem {
 // The one list of places; a feature adds its entry here and its route in router.tsx.
 export const NAV_ITEMS: NavItem[] = [
   { to: '/field', label: 'My spans', roles: ['surveyor'] },
+  { to: '/spans', label: 'Spans' },
+  { to: '/import', label: 'Import', roles: ['surveyor', 'admin'] },
   { to: '/review', label: 'Review desk', roles: ['safety'] },
   { to: '/planning', label: 'Planning', roles: ['planner'] },
   { to: '/admin', label: 'Admin', roles: ['admin'] },

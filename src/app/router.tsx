@@ -5,6 +5,11 @@ import { SignInPage } from '../features/auth/sign-in-page.tsx';
 import { AccountPage } from '../features/account/account-page.tsx';
 import { RoleHome } from '../features/home/role-home.tsx';
 import { StatusPage } from '../components/status-page.tsx';
+import { MySpansQueue } from '../features/field/components/my-spans-queue.tsx';
+import { SpanFormPage } from '../features/field/span-form-page.tsx';
+import { SpansTablePage } from '../features/spans/components/spans-table-page.tsx';
+import { SpanDetailPage } from '../features/spans/components/span-detail-page.tsx';
+import { ImportPage } from '../features/import/components/import-page.tsx';
 import { AdminHome } from '../features/admin/admin-home.tsx';
 import { OutboxPage } from '../features/admin/outbox-page.tsx';
 import { AuditLogPage } from '../features/admin/audit-log-page.tsx';
@@ -32,7 +37,12 @@ export const router = createBrowserRouter([
         ErrorBoundary: RouteErrorBoundary,
         children: [
           { index: true, loader: homeRedirect },
-          { path: 'field', element: <RoleGate roles={['surveyor']}><RoleHome role="surveyor" /></RoleGate> },
+          { path: 'field', element: <RoleGate roles={['surveyor']}><RoleHome role="surveyor"><MySpansQueue /></RoleHome></RoleGate> },
+          { path: 'field/spans/new', element: <RoleGate roles={['surveyor']}><SpanFormPage /></RoleGate> },
+          { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><SpanFormPage /></RoleGate> },
+          { path: 'spans', Component: SpansTablePage },
+          { path: 'spans/:id', Component: SpanDetailPage },
+          { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
           { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety" /></RoleGate> },
           { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner" /></RoleGate> },
           { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin"><AdminHome /></RoleHome></RoleGate> },

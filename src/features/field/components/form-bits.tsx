@@ -1,0 +1,98 @@
+// Small pieces of the tablet form: labelled inputs with a unit and an inline error, and big segmented choices.
+import type { ReactNode } from 'react';
+import type { UseFormRegisterReturn } from 'react-hook-form';
+
+export function FieldError({ id, message }: { id: string; message?: string }) {
+  if (!message) return null;
+  return (
+    <p id={`${id}-error`} className="field-error" role="alert">
+      {message}
+    </p>
+  );
+}
+
+export function Field({ id, label, hint, error, children }: { id: string; label: string; hint?: ReactNode; error?: string; children: ReactNode }) {
+  return (
+    <div>
+      <label className="field-label" htmlFor={id}>
+        {label}
+      </label>
+      {children}
+      {hint && <p className="mt-1 text-sm text-ink-700">{hint}</p>}
+      <FieldError id={id} message={error} />
+    </div>
+  );
+}
+
+/** A number typed in the user's unit; text input with a decimal keypad so a comma or an empty value can be typed. */
+export function QuantityField({
+  id,
+  label,
+  unit,
+  registration,
+  error,
+  hint,
+  placeholder,
+}: {
+  id: string;
+  label: string;
+  unit: string;
+  registration: UseFormRegisterReturn;
+  error?: string;
+  hint?: ReactNode;
+  placeholder?: string;
+}) {
+  return (
+    <Field id={id} label={`${label} (${unit})`} hint={hint} error={error}>
+      <div className="flex items-stretch">
+        <input
+          id={id}
+          type="text"
+          inputMode="decimal"
+          autoComplete="off"
+          placeholder={placeholder}
+          aria-invalid={error ? true : undefined}
+          aria-describedby={error ? `${id}-error` : undefined}
+          className="field-input touch-input rounded-r-none"
+          {...registration}
+        />
+        <span className="inline-flex min-w-14 items-center justify-center rounded-r-lg border border-l-0 border-ink-200 bg-ink-50 px-3 font-semibold text-ink-700" aria-hidden="true">
+          {unit}
+        </span>
+      </div>
+    </Field>
+  );
+}
+
+/** Large radio buttons in a row (thumb-sized), for a handful of options. */
+export function Segmented<T extends string>({
+  name,
+  legend,
+  options,
+  registration,
+  error,
+}: {
+  name: string;
+  legend: string;
+  options: readonly { value: T; label: string }[];
+  registration: UseFormRegisterReturn;
+  error?: string;
+}) {
+  return (
+    <fieldset>
+      <legend className="field-label">{legend}</legend>
+      <div className="flex flex-wrap gap-2">
+        {options.map((o) => (
+          <label
+            key={o.value}
+            className="touch-choice has-[:checked]:border-ink-900 has-[:checked]:bg-ink-900 has-[:checked]:text-chalk"
+          >
+            <input type="radio" value={o.value} className="sr-only" {...registration} />
+            {o.label}
+          </label>
+        ))}
+      </div>
+      <FieldError id={name} message={error} />
+    </fieldset>
+  );
+}

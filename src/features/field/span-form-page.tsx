@@ -1,0 +1,343 @@
+// The surveyor's span form (tablet, one-handed): /field/spans/new and /field/spans/:id/edit.
+import { useEffect, useMemo, useRef, useState, type ReactNode } from 'react';
+import { useForm } from 'react-hook-form';
+import { useQuery, useQueryClient } from '@tanstack/react-query';
+import { Link, useNavigate, useParams } from 'react-router';
+import { TERRAINS, TERRAIN_LABELS, type Span } from '#shared/schemas/inventory.ts';
+import { formatQuantity, unitLabel } from '#shared/units.ts';
+import { Caution } from '../../components/caution.tsx';
+import { ApiError } from '../../lib/api.ts';
+import { useMe } from '../auth/queries.ts';
+import { spanApi } from '../spans/api.ts';
+import { inventoryQueries, spanQueries } from '../spans/queries.ts';
+import { StatusBadge } from '../spans/components/status-badge.tsx';
+import { ConductorPicker } from './components/conductor-picker.tsx';
+import { ConflictPanel } from './components/conflict-panel.tsx';
+import { Field, QuantityField } from './components/form-bits.tsx';
+import { HazardList } from './components/hazard-list.tsx';
+import { StructurePicker } from './components/structure-picker.tsx';
+import { mergeChoices, savedFromConflict, type ConflictKey } from './conflict.ts';
+import {
+  emptySpanForm,
+  formValuesToCreate,
+  formValuesToUpdate,
+  mapIssues,
+  missingForSubmit,
+  spanFormResolver,
+  spanToFormValues,
+  type FieldIssue,
+  type SpanFormValues,
+} from './form-values.ts';
+
+/** Where the photos feature plugs its uploader into the form (composed in src/app/router.tsx). */
+export type SpanPhotoSlot = (ctx: { spanId: string | null; hazardIds: string[] }) => ReactNode;
+
+export function SpanFormPage({ photoSlot }: { photoSlot?: SpanPhotoSlot }) {
+  const { id } = useParams();
+  const span = useQuery({ ...spanQueries.detail(id ?? ''), enabled: !!id, staleTime: 0 });
+  if (id && span.isPending) return <p className="p-8 text-center text-ink-700">Loading the span…</p>;
+  if (id && span.error) throw span.error;
+  // Keyed by span id so switching spans starts a fresh form.
+  return <SpanForm key={id ?? 'new'} saved={span.data ?? null} photoSlot={photoSlot} />;
+}
+
+type Intent = 'draft' | 'submit';
+
+function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot?: SpanPhotoSlot }) {
+  const me = useMe();
+  const system = me.unitSystem;
+  const navigate = useNavigate();
+  const queryClient = useQueryClient();
+  const [saved, setSaved] = useState<Span | null>(initial);
+  const versionRef = useRef<number | undefined>(initial?.version);
+  const [busy, setBusy] = useState(false);
+  const [notice, setNotice] = useState<string | null>(null);
+  const [formError, setFormError] = useState<string | null>(null);
+  const [conflict, setConflict] = useState<{ mine: SpanFormValues; saved: Span; intent: Intent } | null>(null);
+
+  const form = useForm<SpanFormValues>({
+    defaultValues: initial ? spanToFormValues(initial, system) : emptySpanForm(),
+    resolver: spanFormResolver(system, () => versionRef.current),
+    mode: 'onBlur',
+    reValidateMode: 'onChange',
+  });
+  const { register, watch, setValue, setError, clearErrors, formState, getValues, reset } = form;
+  const lineId = watch('lineId');
+
+  const lines = useQuery(inventoryQueries.lines());
+  const structures = useQuery(inventoryQueries.structures(lineId));
+  const conductors = useQuery(inventoryQueries.conductors());
+  const hazardKinds = useQuery(inventoryQueries.hazardKinds());
+  const line = lines.data?.find((l) => l.id === lineId);
+  const structureList = useMemo(() => [...(structures.data ?? [])].sort((a, b) => a.label.localeCompare(b.label, undefined, { numeric: true })), [structures.data]);
+
+  useEffect(() => {
+    if (!notice) return;
+    const t = setTimeout(() => setNotice(null), 6000);
+    return () => clearTimeout(t);
+  }, [notice]);
+
+  const showIssues = (issues: FieldIssue[]) => {
+    const formLevel: string[] = [];
+    for (const i of issues) {
+      if (i.field) setError(i.field, { type: 'server', message: i.message }, { shouldFocus: false });
+      else formLevel.push(i.message);
+    }
+    setFormError(formLevel.length ? formLevel.join(' ') : 'Some fields need attention; see the messages beside them.');
+    const first = issues.find((i) => i.field)?.field;
+    if (first) form.setFocus(first as never);
+  };
+
+  const save = async (values: SpanFormValues, intent: Intent) => {
+    setFormError(null);
+    setNotice(null);
+    const canSubmit = !saved || saved.status === 'draft' || saved.status === 'returned';
+    if (intent === 'submit' && canSubmit) {
+      const missing = missingForSubmit(values, system);
+      if (missing.length) return showIssues(missing);
+    }
+    setBusy(true);
+    try {
+      let result = saved ? await spanApi.update(saved.id, formValuesToUpdate(values, system, versionRef.current ?? saved.version)) : await spanApi.create(formValuesToCreate(values, system));
+      versionRef.current = result.version;
+      setSaved(result);
+      queryClient.setQueryData(spanQueries.detail(result.id).queryKey, result);
+      if (intent === 'submit' && (result.status === 'draft' || result.status === 'returned')) {
+        result = await spanApi.submit(result.id, result.version);
+        versionRef.current = result.version;
+        setSaved(result);
+        queryClient.setQueryData(spanQueries.detail(result.id).queryKey, result);
+      }
+      await queryClient.invalidateQueries({ queryKey: spanQueries.lists() });
+      reset(spanToFormValues(result, system));
+      if (intent === 'submit') {
+        navigate('/field', { state: { notice: result.status === 'submitted' ? 'Span submitted for review.' : 'Changes saved.' } });
+        return;
+      }
+      setNotice(result.status === 'draft' ? 'Draft saved.' : result.status === 'submitted' && initial?.status === 'approved' ? 'Saved. Safety-relevant changes send the span back to review.' : 'Changes saved.');
+      if (!initial) navigate(`/field/spans/${result.id}/edit`, { replace: true });
+    } catch (err) {
+      if (err instanceof ApiError && err.status === 400 && err.issues.length) showIssues(mapIssues(err.issues));
+      else if (err instanceof ApiError && err.status === 409) {
+        const current = savedFromConflict(err.body);
+        if (current) setConflict({ mine: values, saved: current, intent });
+        else if (err.issues.some((i) => i.path !== 'status')) showIssues(mapIssues(err.issues.filter((i) => i.path !== 'status')));
+        else setFormError(err.message);
+      } else setFormError(err instanceof Error ? err.message : 'The span was not saved. Your entries are still here; try again.');
+    } finally {
+      setBusy(false);
+    }
+  };
+
+  const resolveConflict = (takeMine: Set<ConflictKey>, andSave: boolean) => {
+    if (!conflict) return;
+    const merged = mergeChoices(conflict.mine, conflict.saved, system, takeMine);
+    versionRef.current = conflict.saved.version;
+    setSaved(conflict.saved);
+    queryClient.setQueryData(spanQueries.detail(conflict.saved.id).queryKey, conflict.saved);
+    const intent = conflict.intent;
+    setConflict(null);
+    if (andSave) {
+      // Keep the merged values as edits on top of the saved version, then save them.
+      reset(spanToFormValues(conflict.saved, system));
+      for (const [k, v] of Object.entries(merged)) setValue(k as keyof SpanFormValues, v as never, { shouldDirty: true });
+      void save(merged, intent);
+    } else {
+      reset(merged);
+      setNotice(`Showing the saved record (version ${conflict.saved.version}).`);
+    }
+  };
+
+  const submitWith = (intent: Intent) => form.handleSubmit((v) => save(v, intent), () => setFormError('Some fields need attention; see the messages beside them.'));
+  const canSubmit = !saved || saved.status === 'draft' || saved.status === 'returned';
+  // The server refuses edits to spans awaiting review or suspended; the form says so instead of offering a save.
+  const editable = !saved || (saved.status !== 'submitted' && saved.status !== 'suspended');
+  const errors = formState.errors;
+  const lengthUnit = unitLabel('length', system);
+  const structureLabel = (sid: string) => structureList.find((s) => s.id === sid)?.label;
+
+  return (
+    <form
+      className="mx-auto max-w-3xl pb-32"
+      noValidate
+      aria-label="Span survey"
+      onSubmit={(e) => {
+        e.preventDefault();
+        void submitWith('draft')();
+      }}
+    >
+      <header className="mb-4 space-y-2">
+        <Link to="/field" className="text-sm font-semibold text-ink-700 underline">← My spans</Link>
+        <div className="flex flex-wrap items-center gap-3">
+          <h1 className="page-title">{saved ? `Span ${saved.fromStructureLabel} → ${saved.toStructureLabel}` : 'New span'}</h1>
+          {saved && <StatusBadge status={saved.status} />}
+          {saved && <span className="text-sm text-ink-700">version {saved.version}</span>}
+        </div>
+        {saved?.status === 'returned' && saved.returnReason && (
+          <div className="rounded-lg border-2 border-alarm bg-red-50 p-3" role="note" aria-label="Reviewer's reason">
+            <p className="font-bold text-alarm">Sent back by the reviewer:</p>
+            <p className="whitespace-pre-wrap">{saved.returnReason}</p>
+          </div>
+        )}
+        {saved?.status === 'approved' && (
+          <p className="rounded-lg bg-brass-100 p-3 text-sm">This span is approved. Changing the structures, conductor, clearances, load, terrain or hazards sends it back to review.</p>
+        )}
+        {saved?.status === 'suspended' && saved.suspendReason && <p className="rounded-lg bg-ink-50 p-3 text-sm">Suspended by safety: {saved.suspendReason}</p>}
+      </header>
+
+      {conflict && (
+        <div className="mb-4">
+          <ConflictPanel
+            mine={conflict.mine}
+            saved={conflict.saved}
+            unitSystem={system}
+            busy={busy}
+            lookups={{ structures: structureList, hazardKinds: hazardKinds.data ?? [] }}
+            onResolve={resolveConflict}
+          />
+        </div>
+      )}
+
+      <div className="space-y-4">
+        <section className="card space-y-4" aria-labelledby="sec-where">
+          <h2 id="sec-where" className="text-lg font-bold">Where</h2>
+          {saved ? (
+            <div>
+              <p className="field-label">Line</p>
+              <p className="text-lg font-semibold" data-testid="line-fixed">{line ? `${line.name} (${line.voltageKv} kV)` : saved.lineName}</p>
+              <p className="text-sm text-ink-700">A saved span stays on its line.</p>
+            </div>
+          ) : (
+            <Field id="lineId" label="Line" error={errors.lineId?.message} hint={line ? `${line.voltageKv} kV · ${line.frequencyHz} Hz · ${line.owner}` : undefined}>
+              <select
+                id="lineId"
+                className="field-input touch-input"
+                {...register('lineId', {
+                  onChange: () => {
+                    setValue('fromStructureId', '');
+                    setValue('toStructureId', '');
+                  },
+                })}
+              >
+                <option value="">{lines.isPending ? 'Loading lines…' : 'Choose a line'}</option>
+                {lines.data?.map((l) => (
+                  <option key={l.id} value={l.id}>{l.name} ({l.voltageKv} kV)</option>
+                ))}
+              </select>
+            </Field>
+          )}
+          <div className="grid gap-4 sm:grid-cols-2">
+            {(['fromStructureId', 'toStructureId'] as const).map((name) => (
+              <StructurePicker
+                key={name}
+                id={name}
+                label={name === 'fromStructureId' ? 'From structure' : 'To structure'}
+                lineId={lineId}
+                structures={structureList}
+                loading={structures.isPending}
+                value={watch(name)}
+                onChange={(v) => {
+                  setValue(name, v, { shouldDirty: true });
+                  clearErrors(name);
+                }}
+                error={errors[name]?.message}
+                unitSystem={system}
+              />
+            ))}
+          </div>
+          {saved?.lengthM != null && (
+            <p className="text-sm text-ink-700">
+              Span length (geodesic between {structureLabel(saved.fromStructureId) ?? saved.fromStructureLabel} and {structureLabel(saved.toStructureId) ?? saved.toStructureLabel}):{' '}
+              <strong>{formatQuantity(saved.lengthM, 'length', system)}</strong>
+            </p>
+          )}
+        </section>
+
+        <section className="card space-y-4" aria-labelledby="sec-conductor">
+          <h2 id="sec-conductor" className="text-lg font-bold">Conductor</h2>
+          <ConductorPicker form={form} catalogue={conductors.data ?? []} unitSystem={system} />
+          <Field id="phasePosition" label="Phase / position (optional)" error={errors.phasePosition?.message}>
+            <input id="phasePosition" className="field-input touch-input" placeholder="e.g. top phase, A" {...register('phasePosition')} />
+          </Field>
+        </section>
+
+        <section className="card space-y-4" aria-labelledby="sec-clearance">
+          <h2 id="sec-clearance" className="text-lg font-bold">Clearances</h2>
+          <Caution compact />
+          <div className="grid gap-4 sm:grid-cols-2">
+            <QuantityField id="clearance" label="Ground clearance at the perch point" unit={lengthUnit} registration={register('clearance')} error={errors.clearance?.message} />
+            <QuantityField id="lowestClearance" label="Lowest clearance measured" unit={lengthUnit} registration={register('lowestClearance')} error={errors.lowestClearance?.message} />
+          </div>
+        </section>
+
+        <section className="card space-y-4" aria-labelledby="sec-site">
+          <h2 id="sec-site" className="text-lg font-bold">Site and load</h2>
+          <Field id="terrain" label="Terrain under the span" error={errors.terrain?.message}>
+            <select id="terrain" className="field-input touch-input" {...register('terrain')}>
+              <option value="">Not recorded yet</option>
+              {TERRAINS.map((t) => (
+                <option key={t} value={t}>{TERRAIN_LABELS[t]}</option>
+              ))}
+            </select>
+          </Field>
+          <QuantityField
+            id="loadCurrent"
+            label="Estimated load current"
+            unit={unitLabel('current', system)}
+            registration={register('loadCurrent')}
+            error={errors.loadCurrent?.message}
+            placeholder={line ? `Empty: the line's typical ${line.loadTypicalA} A` : 'Empty: the line’s estimate'}
+            hint="Leave empty to inherit the line's load estimate."
+          />
+          <Field id="surveyDate" label="Survey date" error={errors.surveyDate?.message}>
+            <input id="surveyDate" type="date" className="field-input touch-input" {...register('surveyDate')} />
+          </Field>
+        </section>
+
+        <section className="card space-y-4" aria-labelledby="sec-hazards">
+          <h2 id="sec-hazards" className="text-lg font-bold">Hazards</h2>
+          <HazardList form={form} kinds={hazardKinds.data ?? []} unitSystem={system} />
+        </section>
+
+        {/* PHOTO UPLOADER SLOT: the photos feature renders its uploader here (passed in from src/app/router.tsx). */}
+        {photoSlot && (
+          <section className="card space-y-4" aria-labelledby="sec-photos" data-slot="span-photos">
+            <h2 id="sec-photos" className="text-lg font-bold">Photos</h2>
+            {photoSlot({ spanId: saved?.id ?? null, hazardIds: saved?.hazards.map((h) => h.id) ?? [] })}
+          </section>
+        )}
+      </div>
+
+      {/* Primary actions at the bottom edge, in thumb reach, always visible. */}
+      <div className="fixed inset-x-0 bottom-0 z-20 border-t border-ink-200 bg-white/95 px-4 py-3 shadow-[0_-4px_12px_rgba(0,0,0,0.08)] backdrop-blur">
+        <div className="mx-auto max-w-3xl space-y-2">
+          {formError && (
+            <p className="field-error mt-0" role="alert" data-testid="form-error">
+              {formError}
+            </p>
+          )}
+          {notice && (
+            <p className="text-sm font-semibold text-go" role="status">
+              {notice}
+            </p>
+          )}
+          {!editable && (
+            <p className="text-sm font-semibold text-ink-700">
+              {saved?.status === 'submitted' ? 'Awaiting review: a safety officer can send it back to you for changes.' : 'Suspended: a safety officer must reinstate it before it can be edited.'}
+            </p>
+          )}
+          <div className="flex gap-3">
+            <button type="button" className="btn-ghost min-h-12 flex-1 text-lg" disabled={busy || !editable} onClick={() => void submitWith('draft')()}>
+              {saved && !canSubmit ? 'Save changes' : 'Save draft'}
+            </button>
+            {canSubmit && (
+              <button type="button" className="btn-primary min-h-12 flex-1 text-lg" disabled={busy} onClick={() => void submitWith('submit')()}>
+                Submit for review
+              </button>
+            )}
+          </div>
+        </div>
+      </div>
+    </form>
+  );
+}

@@ -1,0 +1,326 @@
+// The spans table for every role: server-side filters, sort and pages; the whole view lives in the URL.
+import { useEffect, useMemo, useState } from 'react';
+import { Link, useSearchParams } from 'react-router';
+import { useQuery } from '@tanstack/react-query';
+import {
+  createColumnHelper,
+  flexRender,
+  getCoreRowModel,
+  useReactTable,
+  type OnChangeFn,
+  type PaginationState,
+  type SortingState,
+  type VisibilityState,
+} from '@tanstack/react-table';
+import { TERRAIN_LABELS, type Span } from '#shared/schemas/inventory.ts';
+import { formatQuantity, type UnitSystem } from '#shared/units.ts';
+import { useMe } from '../../auth/queries.ts';
+import { spanApi } from '../api.ts';
+import { inventoryQueries, spanQueries } from '../queries.ts';
+import { SPAN_STATUSES, SPAN_STATUS_LOOK, isSpanStatus } from '../status.ts';
+import {
+  apiQueryFromTableState,
+  PAGE_SIZES,
+  searchFromTableState,
+  SPAN_COLUMNS,
+  tableStateFromSearch,
+  withFilters,
+  type SpanFilters,
+  type SpansTableState,
+} from '../table-url-state.ts';
+import { StatusBadge } from './status-badge.tsx';
+
+const col = createColumnHelper<Span>();
+
+function conductorText(s: Span, system: UnitSystem) {
+  const c = s.conductor;
+  if (!c) return '—';
+  const name = c.codeWord ?? c.size ?? 'custom';
+  return c.diameterMm ? `${name} · ${formatQuantity(c.diameterMm, 'diameter', system)}` : name;
+}
+
+function buildColumns(system: UnitSystem) {
+  const title = (id: string) => SPAN_COLUMNS.find((c) => c.id === id)!.title;
+  return [
+    col.display({
+      id: 'label',
+      header: title('label'),
+      cell: ({ row }) => (
+        <Link to={`/spans/${row.original.id}`} className="font-semibold text-ink-900 underline decoration-ink-300 underline-offset-2 hover:decoration-ink-900">
+          {row.original.fromStructureLabel} → {row.original.toStructureLabel}
+        </Link>
+      ),
+    }),
+    col.accessor('status', { header: title('status'), cell: (c) => <StatusBadge status={c.getValue()} /> }),
+    col.accessor('lineName', { id: 'line', header: title('line') }),
+    col.accessor('lengthM', { header: title('lengthM'), cell: (c) => formatQuantity(c.getValue(), 'length', system), meta: { numeric: true } }),
+    col.display({ id: 'conductor', header: title('conductor'), cell: ({ row }) => conductorText(row.original, system) }),
+    col.accessor('clearanceM', { header: title('clearanceM'), cell: (c) => formatQuantity(c.getValue(), 'length', system), meta: { numeric: true } }),
+    col.accessor('loadCurrentA', {
+      header: title('loadCurrentA'),
+      cell: (c) => `${formatQuantity(c.getValue(), 'current', system)}${c.row.original.loadCurrentSource === 'line' ? ' (line)' : ''}`,
+      meta: { numeric: true },
+    }),
+    col.accessor('terrain', { header: title('terrain'), cell: (c) => (c.getValue() ? TERRAIN_LABELS[c.getValue()!] : '—') }),
+    col.display({ id: 'hazards', header: title('hazards'), cell: ({ row }) => row.original.hazards.length, meta: { numeric: true } }),
+    col.accessor((s) => s.assessment?.harvestW ?? null, { id: 'harvestW', header: title('harvestW'), cell: (c) => formatQuantity(c.getValue(), 'power', system), meta: { numeric: true } }),
+    col.accessor((s) => s.assessment?.score ?? null, {
+      id: 'score',
+      header: title('score'),
+      cell: (c) => {
+        const a = c.row.original.assessment;
+        if (!a) return '—';
+        return (
+          <span title={a.perchable ? 'Passes every gate' : 'Fails a gate: not perchable'}>
+            {Math.round(a.score)}
+            {!a.perchable && <span className="ml-1 text-alarm" aria-label="not perchable">✕</span>}
+          </span>
+        );
+      },
+      meta: { numeric: true },
+    }),
+    col.accessor('surveyDate', { header: title('surveyDate'), cell: (c) => c.getValue() ?? '—' }),
+    col.accessor('updatedAt', { header: title('updatedAt'), cell: (c) => new Date(c.getValue()).toLocaleString() }),
+  ];
+}
+
+export function SpansTablePage() {
+  const me = useMe();
+  const [params, setParams] = useSearchParams();
+  const state = useMemo(() => tableStateFromSearch(params), [params]);
+  const setState = (next: SpansTableState) => setParams(searchFromTableState(next), { replace: false });
+  const query = apiQueryFromTableState(state);
+  const spans = useQuery(spanQueries.list(query));
+  const lines = useQuery(inventoryQueries.lines());
+  const columns = useMemo(() => buildColumns(me.unitSystem), [me.unitSystem]);
+  const total = spans.data?.total ?? 0;
+  const pageCount = Math.max(1, Math.ceil(total / state.pagination.pageSize));
+
+  const onSortingChange: OnChangeFn<SortingState> = (u) => {
+    const sorting = typeof u === 'function' ? u(state.sorting) : u;
+    setState({ ...state, sorting, pagination: { ...state.pagination, pageIndex: 0 } });
+  };
+  const onPaginationChange: OnChangeFn<PaginationState> = (u) => setState({ ...state, pagination: typeof u === 'function' ? u(state.pagination) : u });
+  const onColumnVisibilityChange: OnChangeFn<VisibilityState> = (u) =>
+    setState({ ...state, columnVisibility: typeof u === 'function' ? u(state.columnVisibility) : u });
+
+  const table = useReactTable({
+    data: spans.data?.items ?? [],
+    columns,
+    getCoreRowModel: getCoreRowModel(),
+    getRowId: (s) => s.id,
+    manualPagination: true,
+    manualSorting: true,
+    manualFiltering: true,
+    enableMultiSort: false,
+    enableSortingRemoval: false,
+    pageCount,
+    rowCount: total,
+    state: { sorting: state.sorting, pagination: state.pagination, columnVisibility: state.columnVisibility },
+    onSortingChange,
+    onPaginationChange,
+    onColumnVisibilityChange,
+  });
+  const sortable = new Set<string>(SPAN_COLUMNS.filter((c) => c.sortable).map((c) => c.id));
+  const setFilters = (patch: Partial<SpanFilters>) => setState(withFilters(state, patch));
+
+  return (
+    <div className="space-y-4">
+      <header className="flex flex-wrap items-end justify-between gap-3">
+        <div>
+          <h1 className="page-title">Spans</h1>
+          <p className="text-ink-700">Every span of the inventory. Filters, sort, page and columns are kept in the address: copy it to share this view.</p>
+        </div>
+        <ExportButtons filters={state.filters} />
+      </header>
+
+      <Filters filters={state.filters} lines={lines.data ?? []} onChange={setFilters} />
+
+      <div className="flex flex-wrap items-center justify-between gap-3">
+        <p className="text-sm text-ink-700" role="status" aria-live="polite">
+          {spans.isPending ? 'Loading spans…' : `${total.toLocaleString('en-US')} span${total === 1 ? '' : 's'} match`}
+          {spans.isFetching && !spans.isPending ? ' · updating…' : ''}
+        </p>
+        <ColumnChooser table={table} />
+      </div>
+
+      {spans.error && (
+        <p className="field-error" role="alert">
+          The spans did not load: {spans.error.message}
+        </p>
+      )}
+
+      <div className="card overflow-x-auto p-0">
+        <table className="w-full border-collapse text-left text-sm" aria-label="Spans">
+          <thead className="bg-ink-50">
+            {table.getHeaderGroups().map((hg) => (
+              <tr key={hg.id}>
+                {hg.headers.map((h) => {
+                  const sorted = h.column.getIsSorted();
+                  const numeric = (h.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
+                  return (
+                    <th
+                      key={h.id}
+                      scope="col"
+                      aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
+                      className={`border-b border-ink-200 px-3 py-2 font-semibold ${numeric ? 'text-right' : ''}`}
+                    >
+                      {sortable.has(h.column.id) ? (
+                        <button type="button" className="inline-flex min-h-11 items-center gap-1 hover:underline" onClick={h.column.getToggleSortingHandler()}>
+                          {flexRender(h.column.columnDef.header, h.getContext())}
+                          <span aria-hidden="true" className="text-ink-500">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}</span>
+                        </button>
+                      ) : (
+                        flexRender(h.column.columnDef.header, h.getContext())
+                      )}
+                    </th>
+                  );
+                })}
+              </tr>
+            ))}
+          </thead>
+          <tbody>
+            {table.getRowModel().rows.map((row) => (
+              <tr key={row.id} className="border-b border-ink-100 hover:bg-ink-50" data-span-id={row.id}>
+                {row.getVisibleCells().map((cell) => {
+                  const numeric = (cell.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
+                  return (
+                    <td key={cell.id} className={`px-3 py-2 ${numeric ? 'text-right tabular-nums' : ''}`}>
+                      {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                    </td>
+                  );
+                })}
+              </tr>
+            ))}
+            {spans.data && spans.data.items.length === 0 && (
+              <tr>
+                <td colSpan={table.getVisibleLeafColumns().length} className="px-3 py-6 text-center text-ink-700">
+                  No span matches these filters.
+                </td>
+              </tr>
+            )}
+          </tbody>
+        </table>
+      </div>
+
+      <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
+        <button type="button" className="btn-ghost" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
+          ← Previous
+        </button>
+        <span className="text-sm">
+          Page {state.pagination.pageIndex + 1} of {pageCount}
+        </span>
+        <button type="button" className="btn-ghost" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
+          Next →
+        </button>
+        <label className="ml-auto flex items-center gap-2 text-sm">
+          Rows per page
+          <select
+            className="field-input w-24"
+            value={state.pagination.pageSize}
+            onChange={(e) => setState({ ...state, pagination: { pageIndex: 0, pageSize: Number(e.target.value) } })}
+          >
+            {PAGE_SIZES.map((n) => (
+              <option key={n} value={n}>{n}</option>
+            ))}
+          </select>
+        </label>
+      </nav>
+    </div>
+  );
+}
+
+function Filters({ filters, lines, onChange }: { filters: SpanFilters; lines: { id: string; name: string; voltageKv: number }[]; onChange: (p: Partial<SpanFilters>) => void }) {
+  // Text filters wait for a pause in typing before they reach the URL (and the server).
+  const [q, setQ] = useState(filters.q ?? '');
+  const [minHarvest, setMinHarvest] = useState(filters.minHarvestW?.toString() ?? '');
+  const [minScore, setMinScore] = useState(filters.minScore?.toString() ?? '');
+  useEffect(() => setQ(filters.q ?? ''), [filters.q]);
+  useEffect(() => setMinHarvest(filters.minHarvestW?.toString() ?? ''), [filters.minHarvestW]);
+  useEffect(() => setMinScore(filters.minScore?.toString() ?? ''), [filters.minScore]);
+  useEffect(() => {
+    const t = setTimeout(() => {
+      const patch: Partial<SpanFilters> = {};
+      if ((filters.q ?? '') !== q.trim()) patch.q = q.trim() || undefined;
+      const h = minHarvest.trim() === '' ? undefined : Number(minHarvest);
+      if (h === undefined || (Number.isFinite(h) && h >= 0)) if (h !== filters.minHarvestW) patch.minHarvestW = h;
+      const s = minScore.trim() === '' ? undefined : Number(minScore);
+      if (s === undefined || (Number.isFinite(s) && s >= 0)) if (s !== filters.minScore) patch.minScore = s;
+      if (Object.keys(patch).length) onChange(patch);
+    }, 350);
+    return () => clearTimeout(t);
+  }, [q, minHarvest, minScore]); // eslint-disable-line react-hooks/exhaustive-deps
+
+  return (
+    <form className="card grid gap-3 sm:grid-cols-2 lg:grid-cols-5" role="search" aria-label="Filter spans" onSubmit={(e) => e.preventDefault()}>
+      <div>
+        <label className="field-label" htmlFor="f-status">Status</label>
+        <select id="f-status" className="field-input" value={filters.status ?? ''} onChange={(e) => onChange({ status: isSpanStatus(e.target.value) ? e.target.value : undefined })}>
+          <option value="">Any status</option>
+          {SPAN_STATUSES.map((s) => (
+            <option key={s} value={s}>{SPAN_STATUS_LOOK[s].label}</option>
+          ))}
+        </select>
+      </div>
+      <div>
+        <label className="field-label" htmlFor="f-line">Line</label>
+        <select id="f-line" className="field-input" value={filters.lineId ?? ''} onChange={(e) => onChange({ lineId: e.target.value || undefined })}>
+          <option value="">Any line</option>
+          {lines.map((l) => (
+            <option key={l.id} value={l.id}>{l.name} ({l.voltageKv} kV)</option>
+          ))}
+        </select>
+      </div>
+      <div>
+        <label className="field-label" htmlFor="f-q">Search</label>
+        <input id="f-q" type="search" className="field-input" placeholder="Structure, conductor, note…" value={q} onChange={(e) => setQ(e.target.value)} />
+      </div>
+      <div>
+        <label className="field-label" htmlFor="f-harvest">Min. harvest (W)</label>
+        <input id="f-harvest" inputMode="decimal" className="field-input" value={minHarvest} onChange={(e) => setMinHarvest(e.target.value)} />
+      </div>
+      <div>
+        <label className="field-label" htmlFor="f-score">Min. score (0–100)</label>
+        <input id="f-score" inputMode="numeric" className="field-input" value={minScore} onChange={(e) => setMinScore(e.target.value)} />
+      </div>
+    </form>
+  );
+}
+
+function ColumnChooser({ table }: { table: ReturnType<typeof useReactTable<Span>> }) {
+  return (
+    <details className="relative">
+      <summary className="btn-ghost cursor-pointer list-none">Columns</summary>
+      <fieldset className="card absolute right-0 z-10 mt-2 w-56 space-y-1">
+        <legend className="sr-only">Columns shown</legend>
+        {table.getAllLeafColumns().map((c) => {
+          const meta = SPAN_COLUMNS.find((x) => x.id === c.id);
+          return (
+            <label key={c.id} className="flex min-h-9 items-center gap-2">
+              <input type="checkbox" checked={c.getIsVisible()} onChange={c.getToggleVisibilityHandler()} disabled={c.id === 'label'} />
+              {meta?.title ?? c.id}
+            </label>
+          );
+        })}
+      </fieldset>
+    </details>
+  );
+}
+
+function ExportButtons({ filters }: { filters: SpanFilters }) {
+  const formats = [
+    { id: 'geojson', label: 'GeoJSON' },
+    { id: 'csv', label: 'CSV' },
+    { id: 'kml', label: 'KML' },
+  ] as const;
+  return (
+    <div className="flex flex-wrap items-center gap-2" role="group" aria-label="Export the filtered spans">
+      <span className="text-sm font-semibold text-ink-700">Export:</span>
+      {formats.map((f) => (
+        <a key={f.id} className="btn-ghost" href={spanApi.exportUrl(f.id, filters)} download>
+          {f.label}
+        </a>
+      ))}
+    </div>
+  );
+}
