@@ -406,7 +406,13 @@ export interface ImportReport {
   summary: { create: number; update: number; unchanged: number; refuse: number };
 }
 
-/** The CSV columns of import and export, one span a row (SI units). */
+/**
+ * The CSV columns of import and export, one span a row (SI units). Keys: a line by `line_name`, a structure by
+ * `line_name` + its label, a span by its line and its two structure labels (either direction), so a re-import updates.
+ * An empty cell clears the field; a missing column leaves it as saved. `load_profile_a`: 24 numbers separated by `;`.
+ * `hazards`: a JSON list of {kindId, severity, positionAlongM?, note?}. With `conductor_code_word` the catalogue fills
+ * the conductor; otherwise the conductor_* columns describe a custom one (diameter required).
+ */
 export const INVENTORY_CSV_COLUMNS = [
   'line_name',
   'line_owner',
@@ -416,6 +422,7 @@ export const INVENTORY_CSV_COLUMNS = [
   'load_typical_a',
   'load_min_a',
   'load_peak_a',
+  'load_profile_a',
   'from_label',
   'from_lat',
   'from_lon',
@@ -430,6 +437,10 @@ export const INVENTORY_CSV_COLUMNS = [
   'conductor_size',
   'conductor_material',
   'conductor_diameter_mm',
+  'conductor_resistance_low_ohm_per_m',
+  'conductor_temp_low_c',
+  'conductor_resistance_high_ohm_per_m',
+  'conductor_temp_high_c',
   'phase_position',
   'clearance_m',
   'lowest_clearance_m',
@@ -438,3 +449,6 @@ export const INVENTORY_CSV_COLUMNS = [
   'survey_date',
   'hazards',
 ] as const;
+
+/** Columns the CSV export adds after the importable ones; import ignores them (they are computed or set by review). */
+export const INVENTORY_CSV_EXPORT_ONLY_COLUMNS = ['span_id', 'status', 'length_m', 'harvest_w', 'score', 'perchable'] as const;

@@ -27,6 +27,7 @@ import { StaleVersionError, conductorCatalogueView, hazardKindView, lineView, sp
 import { createLine, createStructure, lineCounts, updateLine, updateStructure } from './lines.service.ts';
 import { createSpan, getSpanOr404, transitionSpan, updateSpan, type TransitionName } from './spans.service.ts';
 import { listSpans } from './spans.query.ts';
+import { importExportRouter } from '../import-export/import-export.router.ts';
 
 /** Stale versions answer 409 with the saved record in `error.current`, so the client can show both versions. */
 export const staleVersionHandler: ErrorRequestHandler = (err, _req, res, next) => {
@@ -42,8 +43,10 @@ export const staleVersionHandler: ErrorRequestHandler = (err, _req, res, next) =
 };
 
 /** Mounted at /api: lines, structures, spans, hazard-kinds, conductors. */
-export function inventoryRouter(_ctx: AppContext) {
+export function inventoryRouter(ctx: AppContext) {
   const root = express.Router();
+  // Import and export first: /spans/export.csv must not be taken for a span id.
+  root.use(importExportRouter(ctx));
 
   // ---------- lines ----------
   const lines = featureRouter('/api/lines');

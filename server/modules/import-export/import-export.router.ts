@@ -1,0 +1,117 @@
+// Import (dry run, then an all-or-nothing commit) and export of the line inventory.
+import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
+import multer from 'multer';
+import { z } from 'zod';
+import { IMPORT_FORMATS, spanListQuerySchema, type ImportFormat } from '#shared/schemas/inventory.ts';
+import type { AppContext } from '../../context.ts';
+import { currentUser, featureRouter } from '../../http/access.ts';
+import { AppError, errorBody, parse } from '../../http/errors.ts';
+import { Line } from '../inventory/line.entity.ts';
+import { Span } from '../inventory/span.entity.ts';
+import { Structure } from '../inventory/structure.entity.ts';
+import { chunks, lineView, spanViews, structureView } from '../inventory/inventory.service.ts';
+import { matchingSpanIds } from '../inventory/spans.query.ts';
+import { spansToCsv, spansToGeoJson, spansToKml } from './formats.ts';
+import { commitImport, detectFormat, dryRun, ImportRefusedError } from './import.service.ts';
+
+/** Largest import file accepted, bytes. */
+export const MAX_IMPORT_BYTES = 20 * 1024 * 1024;
+
+const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_IMPORT_BYTES, files: 1, fields: 5 } }).single('file');
+
+const receive: RequestHandler = (req, res, next) => {
+  if (!req.is('multipart/form-data')) return next();
+  upload(req, res, (err: unknown) => {
+    if (!err) return next();
+    if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') return next(new AppError(413, 'payload_too_large', `file: larger than ${MAX_IMPORT_BYTES / 1024 / 1024} MB`, [{ path: 'file', message: 'too large' }]));
+    if (err instanceof multer.MulterError) return next(AppError.field(err.field ?? 'file', `the upload is not valid: send the file as "file" (${err.message})`));
+    next(AppError.badRequest('The upload could not be read (broken multipart body)'));
+  });
+};
+
+const formatSchema = z.object({ format: z.enum(IMPORT_FORMATS, { error: 'The format must be csv or geojson' }).optional() });
+const jsonBodySchema = formatSchema.extend({ text: z.string({ error: 'Give the file content as text' }).min(1, 'The file is empty') });
+
+/** The import file from multipart (`file`, optional `format`), a JSON body `{format?, text}`, or a text/csv or GeoJSON body. */
+function importSource(req: express.Request): { format: ImportFormat; text: string } {
+  if (req.file) {
+    const { format } = parse(formatSchema, req.body);
+    const text = req.file.buffer.toString('utf8');
+    if (!text.trim()) throw AppError.field('file', 'The file is empty');
+    if (text.includes('\u0000')) throw new AppError(415, 'unsupported_media_type', 'file: this is not a text file (CSV or GeoJSON expected)', [{ path: 'file', message: 'not a text file' }]);
+    return { format: detectFormat(text, req.file.originalname, format), text };
+  }
+  if (typeof req.body === 'string') {
+    if (!req.body.trim()) throw AppError.field('file', 'The file is empty');
+    const q = parse(formatSchema, req.query);
+    return { format: detectFormat(req.body, undefined, q.format ?? (req.is('text/csv') ? 'csv' : req.is('application/geo+json') ? 'geojson' : undefined)), text: req.body };
+  }
+  if (req.is('multipart/form-data')) throw AppError.field('file', 'Attach the CSV or GeoJSON file as "file"');
+  const body = parse(jsonBodySchema, req.body);
+  return { format: detectFormat(body.text, undefined, body.format), text: body.text };
+}
+
+const textBody = express.text({ type: ['text/csv', 'text/plain', 'application/geo+json'], limit: MAX_IMPORT_BYTES });
+
+export const importErrorHandler: ErrorRequestHandler = (err, _req, res, next) => {
+  if (err instanceof ImportRefusedError) {
+    res.status(400).json({ error: { ...errorBody(err.code, err.message, err.issues).error, report: err.report } });
+    return;
+  }
+  next(err);
+};
+
+const exportQuerySchema = spanListQuerySchema.omit({ page: true, pageSize: true });
+
+export function importExportRouter(_ctx: AppContext) {
+  const root = express.Router();
+
+  const imp = featureRouter('/api/import');
+  imp.post('/dry-run', ['surveyor', 'admin'], textBody, receive, async (req, res) => {
+    const { format, text } = importSource(req);
+    res.json(await dryRun(req.em, format, text));
+  });
+  imp.post('/commit', ['surveyor', 'admin'], textBody, receive, async (req, res) => {
+    const { format, text } = importSource(req);
+    res.json(await commitImport(req.em, currentUser(req), format, text));
+  });
+
+  const exp = featureRouter('/api/spans');
+  exp.get('/export.:format', 'signed-in', async (req, res) => {
+    const format = String(req.params.format);
+    if (!['geojson', 'csv', 'kml'].includes(format)) throw AppError.notFound('Export format');
+    const q = parse(exportQuerySchema, req.query);
+    const ids = await matchingSpanIds(req.em, {
+      status: q.status,
+      lineId: q.lineId || undefined,
+      surveyorId: q.mine ? currentUser(req).id : q.surveyorId || undefined,
+      q: q.q || undefined,
+      minHarvestW: q.minHarvestW,
+      minScore: q.minScore,
+      sort: q.sort,
+    });
+    const spans: Span[] = [];
+    for (const c of chunks(ids, 500)) spans.push(...(await req.em.find(Span, { id: { $in: c } })));
+    const order = new Map(ids.map((id, i) => [id, i]));
+    spans.sort((a, b) => order.get(a.id)! - order.get(b.id)!);
+    const views = await spanViews(req.em, spans);
+    const lines = new Map((await req.em.find(Line, { id: { $in: [...new Set(spans.map((s) => s.lineId))] } })).map((l) => [l.id, lineView(l)]));
+    const structureIds = [...new Set(spans.flatMap((s) => [s.fromStructureId, s.toStructureId]))];
+    const structures = new Map<string, ReturnType<typeof structureView>>();
+    for (const c of chunks(structureIds, 500)) for (const s of await req.em.find(Structure, { id: { $in: c } })) structures.set(s.id, structureView(s));
+    const stamp = new Date().toISOString().slice(0, 10);
+    const base = `roostline-spans-${q.status?.join('-') ?? 'all'}-${stamp}`;
+    if (format === 'geojson') {
+      res.type('application/geo+json').attachment(`${base}.geojson`).send(JSON.stringify(spansToGeoJson(views, lines, structures)));
+    } else if (format === 'csv') {
+      res.type('text/csv; charset=utf-8').attachment(`${base}.csv`).send(spansToCsv(views, lines, structures));
+    } else {
+      res.type('application/vnd.google-earth.kml+xml').attachment(`${base}.kml`).send(spansToKml(views, lines, structures, `Roostline spans (${q.status?.join(', ') ?? 'all statuses'}), ${stamp}`));
+    }
+  });
+
+  root.use('/import', imp.router);
+  root.use('/spans', exp.router);
+  root.use(importErrorHandler);
+  return root;
+}
