@@ -21,7 +21,7 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 const rowsOf = (spanId: string) => t.orm.em.fork().find(Assessment, { spanId });
-const gate = (a: { gates: { id: string; passed: boolean }[] }, id: string) => a.gates.find((g) => g.id === id)!;
+const gate = (a: { gates: { id: string; passed: boolean; detail: string }[] }, id: string) => a.gates.find((g) => g.id === id)!;
 
 describe('default profiles and settings', () => {
   it('when the app starts on an empty database, then the demo profiles and default settings exist', async () => {

@@ -1,0 +1,38 @@
+// Runs every bench/*.bench.ts in turn (or those whose name contains an argument) and prints each one's table.
+// A bench module exports `run(): Promise<BenchRow[] | void>`; rows are printed with console.table.
+import fs from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath, pathToFileURL } from 'node:url';
+
+export type BenchRow = Record<string, string | number>;
+
+const dir = path.dirname(fileURLToPath(import.meta.url));
+const filters = process.argv.slice(2);
+const files = fs
+  .readdirSync(dir)
+  .filter((f) => f.endsWith('.bench.ts'))
+  .filter((f) => filters.length === 0 || filters.some((q) => f.includes(q)))
+  .sort();
+
+if (files.length === 0) {
+  console.log(filters.length ? `No bench matches ${filters.join(', ')}.` : 'No bench/*.bench.ts files.');
+  process.exit(0);
+}
+
+let failed = 0;
+for (const file of files) {
+  const name = file.replace(/\.bench\.ts$/, '');
+  console.log(`\n▶ ${name}`);
+  const started = performance.now();
+  try {
+    const mod = (await import(pathToFileURL(path.join(dir, file)).href)) as { run?: () => Promise<BenchRow[] | void> | BenchRow[] | void };
+    if (typeof mod.run !== 'function') throw new Error(`${file} exports no run()`);
+    const rows = await mod.run();
+    if (rows && rows.length) console.table(rows);
+    console.log(`  ${name} took ${((performance.now() - started) / 1000).toFixed(1)} s`);
+  } catch (err) {
+    failed++;
+    console.error(`  ${name} failed:`, err);
+  }
+}
+process.exit(failed ? 1 : 0);
