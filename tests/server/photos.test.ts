@@ -16,6 +16,7 @@ import { makeTestApp, type Client, type TestApp } from './helpers.ts';
 import { Line } from '../../server/modules/inventory/line.entity.ts';
 import { Structure } from '../../server/modules/inventory/structure.entity.ts';
 import { Span } from '../../server/modules/inventory/span.entity.ts';
+import { Hazard } from '../../server/modules/inventory/hazard.entity.ts';
 import { Photo } from '../../server/modules/photos/photo.entity.ts';
 import { AuditEntry } from '../../server/modules/audit/audit.entity.ts';
 import { storePhotos } from '../../server/modules/photos/photo.service.ts';
@@ -32,7 +33,7 @@ let planner: Client;
 let admin: Client;
 const files: Record<string, Buffer> = {};
 /** Span ids of the seeded scenario: A–B and B–C run west to east, 200 m each. */
-const ids = { line: 'line-test-1', a: 'st-a', b: 'st-b', c: 'st-c', ab: 'span-ab', bc: 'span-bc' };
+const ids = { line: 'line-test-1', a: 'st-a', b: 'st-b', c: 'st-c', ab: 'span-ab', bc: 'span-bc', hazardAb: 'hz-ab' };
 /** Structure B, inside the invented demo box (southern and western hemispheres). */
 const B = { lat: -30.2, lon: -130.3 };
 const offset = (from: { lat: number; lon: number }, metres: number, bearingDeg: number) => {
@@ -89,6 +90,7 @@ async function seedScenario(orm: MikroORM) {
     em.persist(Object.assign(new Structure(), { id, lineId: ids.line, lat: p.lat, lon: p.lon, kind: 'pole' as const, label, attachmentHeightM: 14 }));
   em.persist(Object.assign(new Span(), { id: ids.ab, lineId: ids.line, fromStructureId: ids.a, toStructureId: ids.b, lengthM: 200 }));
   em.persist(Object.assign(new Span(), { id: ids.bc, lineId: ids.line, fromStructureId: ids.b, toStructureId: ids.c, lengthM: 200 }));
+  em.persist(Object.assign(new Hazard(), { id: ids.hazardAb, spanId: ids.ab, kindId: 'road-crossing', severity: 'high' as const, positionAlongM: 80 }));
   await em.flush();
 }
 
@@ -227,6 +229,17 @@ describe('derivatives', () => {
     expect(res.body.contentType).toBe(type);
     const original = await surveyor.get(`/api/photos/${res.body.id}/original`);
     expect(original.headers['content-type']).toBe(type);
+  });
+});
+
+describe('transparency', () => {
+  it('when a PNG has transparent areas, then its JPEG derivatives show them white', async () => {
+    files.clear = await sharp({ create: { width: 40, height: 40, channels: 4, background: { r: 0, g: 0, b: 0, alpha: 0 } } }).png().toBuffer();
+    const res = await upload(surveyor, 'clear', { contentType: 'image/png' });
+    expect(res.status).toBe(201);
+    const display = await surveyor.get(res.body.displayUrl).buffer(true);
+    const { data } = await sharp(display.body).raw().toBuffer({ resolveWithObject: true });
+    expect(Math.min(...data)).toBeGreaterThan(245);
   });
 });
 
@@ -427,6 +440,21 @@ describe('nearest span and links', () => {
     expect(res.status).toBe(200);
     expect(res.body).toMatchObject({ lat: at.lat, lon: at.lon, positionSource: 'manual' });
     expect(res.body.suggestedSpanIds).toEqual(expect.arrayContaining([ids.ab, ids.bc]));
+  });
+
+  it('when a photo is linked to a hazard, then it joins the hazard’s span; a hazard of another span is refused', async () => {
+    const up = await upload(surveyor, 'plain');
+    const res = await surveyor.patch(`/api/photos/${up.body.id}`, { hazardId: ids.hazardAb });
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ hazardId: ids.hazardAb, spanId: ids.ab });
+    const wrong = await surveyor.patch(`/api/photos/${up.body.id}`, { spanId: ids.bc, hazardId: ids.hazardAb });
+    expect(wrong.status).toBe(400);
+    expect(wrong.body.error.issues[0].path).toBe('hazardId');
+    // Moving the photo to another span drops the old span's hazard link.
+    const moved = await surveyor.patch(`/api/photos/${up.body.id}`, { spanId: ids.bc });
+    expect(moved.body).toMatchObject({ spanId: ids.bc, hazardId: null });
+    const listed = await planner.get(`/api/photos?hazardId=${ids.hazardAb}`);
+    expect(listed.body.items.map((p: { id: string }) => p.id)).not.toContain(up.body.id);
   });
 
   it('when a link or position is not valid, then 400 names the field; a planner may not change photos', async () => {
