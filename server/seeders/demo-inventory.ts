@@ -193,7 +193,7 @@ export interface DemoInventoryResult {
   byStatus: Record<SpanStatus, number>;
 }
 
-/** Seeds the demo inventory (after the demo users). Deterministic; one flush. */
+/** Seeds the demo inventory (after the demo users). Deterministic; bulk inserts. */
 export async function seedDemoInventory(em: EntityManager, seed = 20261202): Promise<DemoInventoryResult> {
   const rnd = prng(seed);
   const id = () => Array.from({ length: 16 }, () => ID_ALPHABET[Math.floor(rnd() * 32)]).join('');
@@ -205,10 +205,19 @@ export async function seedDemoInventory(em: EntityManager, seed = 20261202): Pro
   let spanCount = 0;
   let hazardCount = 0;
   const base = Date.UTC(2026, 2, 2); // surveys from March 2026
+  // Plain rows inserted in bulk (em.insertMany): several times faster than the unit of work for ~1300 rows.
+  const lines: Line[] = [];
+  const structureRows: Structure[] = [];
+  const spanRows: Span[] = [];
+  const hazardRows: Hazard[] = [];
+  const push = <T>(list: T[], row: T): T => {
+    list.push(row);
+    return row;
+  };
 
   for (const spec of DEMO_LINES) {
     const created = new Date(base - 30 * 86_400_000);
-    const line = em.create(Line, {
+    const line = push(lines, {
       id: id(),
       name: spec.name,
       owner: DEMO_OWNER,
@@ -229,7 +238,7 @@ export async function seedDemoInventory(em: EntityManager, seed = 20261202): Pro
       .map(([lon, lat]) => [Math.min(DEMO_BBOX.east, Math.max(DEMO_BBOX.west, lon)), Math.min(DEMO_BBOX.north, Math.max(DEMO_BBOX.south, lat))] as [number, number]);
     const structures = points.map(([lon, lat], i) => {
       const [h0, h1] = spec.attachmentHeightM;
-      return em.create(Structure, {
+      return push(structureRows, {
         id: id(),
         lineId: line.id,
         lat: Math.round(lat * 1e7) / 1e7,
@@ -279,7 +288,7 @@ export async function seedDemoInventory(em: EntityManager, seed = 20261202): Pro
       const updatedAt = approvedAt ?? submittedAt ?? surveyAt;
       // A draft in progress may still lack its clearance readings.
       const incompleteDraft = status === 'draft' && rnd() < 0.35;
-      const span = em.create(Span, {
+      const span = push(spanRows, {
         id: id(),
         lineId: line.id,
         fromStructureId: from.id,
@@ -324,7 +333,7 @@ export async function seedDemoInventory(em: EntityManager, seed = 20261202): Pro
       for (let k = 0; k < extra; k++) kinds.add(pick(rnd, OTHER_HAZARDS));
       for (const kindId of kinds) {
         const severity = rnd() < 0.2 ? weighted<HazardSeverityLevel>(rnd, [['low', 1], ['medium', 1], ['high', 1]]) : DEFAULT_SEVERITY[kindId]!;
-        em.create(Hazard, {
+        push(hazardRows, {
           id: id(),
           spanId: span.id,
           kindId,
@@ -337,6 +346,9 @@ export async function seedDemoInventory(em: EntityManager, seed = 20261202): Pro
       }
     }
   }
-  await em.flush();
+  await em.insertMany(Line, lines);
+  for (const list of [structureRows, spanRows, hazardRows] as const) {
+    for (let i = 0; i < list.length; i += 400) await em.insertMany(list === structureRows ? Structure : list === spanRows ? Span : Hazard, list.slice(i, i + 400) as any[]);
+  }
   return { lines: DEMO_LINES.length, structures: structureCount, spans: spanCount, hazards: hazardCount, byStatus };
 }
