@@ -41,7 +41,7 @@ async function timeInterleaved(cases: { label: string; fn: () => Promise<unknown
   return cases.map((c, k) => summarise(c.label, ms[k]));
 }
 
-export async function run(opts: { runs?: number } = {}): Promise<BenchReport> {
+export async function measure(opts: { runs?: number } = {}): Promise<BenchReport> {
   const runs = opts.runs ?? 7;
   const width = 4000;
   const height = 3000;
@@ -68,6 +68,20 @@ export async function run(opts: { runs?: number } = {}): Promise<BenchReport> {
   };
 }
 
+/** For bench/run.ts: one flat row per case (console.table), the input described in the first column. */
+export async function run(): Promise<Record<string, string | number>[]> {
+  const r = await measure();
+  console.log(`  pipeline ÷ sharp's own display resize (medians): ${r.pipelineOverResize}×`);
+  return r.rows.map((row) => ({
+    case: row.label,
+    input: `${r.input.megapixels} MP JPEG, ${(r.input.bytes / 1024 / 1024).toFixed(1)} MB`,
+    'median ms': row.medianMs,
+    'min ms': row.minMs,
+    'max ms': row.maxMs,
+    runs: row.runs,
+  }));
+}
+
 export function print(r: BenchReport) {
   console.log(`Photo pipeline — ${r.input.width} × ${r.input.height} (${r.input.megapixels} MP) JPEG, ${(r.input.bytes / 1024 / 1024).toFixed(1)} MB`);
   for (const row of r.rows) console.log(`  ${row.label.padEnd(76)} median ${String(row.medianMs).padStart(7)} ms  (min ${row.minMs}, max ${row.maxMs}, ${row.runs} runs)`);
@@ -75,7 +89,7 @@ export function print(r: BenchReport) {
 }
 
 if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  run().then(print, (err) => {
+  measure().then(print, (err) => {
     console.error(err);
     process.exit(1);
   });

@@ -9,6 +9,7 @@ import { MySpansQueue } from '../features/field/components/my-spans-queue.tsx';
 import { SpanFormPage } from '../features/field/span-form-page.tsx';
 import { SpansTablePage } from '../features/spans/components/spans-table-page.tsx';
 import { SpanDetailPage } from '../features/spans/components/span-detail-page.tsx';
+import { spanDetailPhotosSlot, spanFormPhotoSlot } from '../features/photos/slots.tsx';
 import { ImportPage } from '../features/import/components/import-page.tsx';
 import { AdminHome } from '../features/admin/admin-home.tsx';
 import { OutboxPage } from '../features/admin/outbox-page.tsx';
@@ -38,10 +39,10 @@ export const router = createBrowserRouter([
         children: [
           { index: true, loader: homeRedirect },
           { path: 'field', element: <RoleGate roles={['surveyor']}><RoleHome role="surveyor"><MySpansQueue /></RoleHome></RoleGate> },
-          { path: 'field/spans/new', element: <RoleGate roles={['surveyor']}><SpanFormPage /></RoleGate> },
-          { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><SpanFormPage /></RoleGate> },
+          { path: 'field/spans/new', element: <RoleGate roles={['surveyor']}><SpanFormPage photoSlot={spanFormPhotoSlot} /></RoleGate> },
+          { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><SpanFormPage photoSlot={spanFormPhotoSlot} /></RoleGate> },
           { path: 'spans', Component: SpansTablePage },
-          { path: 'spans/:id', Component: SpanDetailPage },
+          { path: 'spans/:id', element: <SpanDetailPage photosSlot={spanDetailPhotosSlot} /> },
           { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
           { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety" /></RoleGate> },
           { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner" /></RoleGate> },

@@ -1,0 +1,112 @@
+// A surveyor adds a geotagged photo from the span form: a progress bar while it uploads, then the thumbnail,
+// linked to the span; the span page's gallery opens it full size.
+import { execFileSync } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import sharp from 'sharp';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startHarness, type Harness } from './harness.ts';
+
+let h: Harness;
+let tmp: string;
+let photoPath: string;
+
+beforeAll(async () => {
+  try {
+    execFileSync('exiftool', ['-ver']);
+  } catch {
+    throw new Error('exiftool is required for the photo journey: apt-get install -y libimage-exiftool-perl');
+  }
+  tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-photo-e2e-'));
+  photoPath = path.join(tmp, 'span-photo.jpg');
+  // Noise compresses badly, so the file is large enough (~1 MB) for the throttled upload to take a few seconds.
+  const jpeg = await sharp({ create: { width: 1200, height: 900, channels: 3, background: '#6a8', noise: { type: 'gaussian', mean: 120, sigma: 40 } } })
+    .jpeg({ quality: 92 })
+    .toBuffer();
+  fs.writeFileSync(photoPath, jpeg);
+  // 20 m north of the span's middle (the span built below runs east from -30.2, -130.3 for about 200 m).
+  execFileSync('exiftool', ['-q', '-overwrite_original', '-GPSLatitude=30.19982', '-GPSLatitudeRef=S', '-GPSLongitude=130.29896', '-GPSLongitudeRef=W', '-DateTimeOriginal=2026:05:04 10:11:12', '-OffsetTimeOriginal=-09:00', photoPath]);
+  h = await startHarness();
+});
+
+afterAll(async () => {
+  await h?.stop();
+  if (tmp) fs.rmSync(tmp, { recursive: true, force: true });
+});
+
+describe('photo journey', () => {
+  it('when a surveyor adds a photo on the span form, then a progress bar runs, the thumbnail shows and the span gallery opens it', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1300 } });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+
+    // A line, two structures and a span of its own, made through the API with the page's session.
+    const headers = { Origin: h.baseUrl };
+    const post = async (url: string, data: object) => {
+      const res = await page.request.post(url, { data, headers });
+      expect(res.status(), `${url}: ${await res.text()}`).toBe(201);
+      return res.json();
+    };
+    const line = await post('/api/lines', { name: `Photo journey feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
+    const a = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
+    const b = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
+    const span = await post('/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id });
+
+    await page.goto(`/field/spans/${span.id}/edit`);
+    const uploader = page.getByTestId('photo-uploader');
+    await uploader.waitFor();
+
+    // Record every value the progress bar shows, from the page itself.
+    await page.evaluate(() => {
+      const w = window as unknown as { __progress: number[] };
+      w.__progress = [];
+      new MutationObserver(() => {
+        for (const el of document.querySelectorAll('[data-testid="photo-progress"]')) {
+          const v = Number(el.getAttribute('aria-valuenow'));
+          if (w.__progress[w.__progress.length - 1] !== v) w.__progress.push(v);
+        }
+      }).observe(document.body, { subtree: true, childList: true, attributes: true, attributeFilter: ['aria-valuenow'] });
+    });
+    // A thin field connection: about 256 kB/s up, so the bar has time to move.
+    const cdp = await context.newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 40, downloadThroughput: -1, uploadThroughput: 256 * 1024 });
+
+    await page.getByTestId('photo-input').setInputFiles(photoPath);
+    const bar = page.getByRole('progressbar', { name: /Upload of span-photo\.jpg/ });
+    await bar.waitFor({ state: 'visible' });
+
+    const thumb = page.getByTestId('photo-thumbnail');
+    await thumb.waitFor({ state: 'visible', timeout: 60_000 });
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    expect(await thumb.evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth > 0)).toBe(true);
+    expect(await thumb.evaluate((img: HTMLImageElement) => img.naturalWidth)).toBe(320);
+    const seen = await page.evaluate(() => (window as unknown as { __progress: number[] }).__progress);
+    expect(seen.some((v) => v > 0 && v < 100), `progress values seen: ${seen.join(', ')}`).toBe(true);
+    expect(seen).toEqual([...seen].sort((x, y) => x - y));
+
+    const row = page.getByTestId('photo-upload-row');
+    expect(await row.getAttribute('data-status')).toBe('done');
+    await row.getByText('Linked to this span').waitFor();
+    await row.getByText('2026-05-04 10:11 (UTC-09:00)').waitFor();
+
+    // The span page shows it in the gallery; the full-size view opens in a dialog.
+    await page.goto(`/spans/${span.id}`);
+    const gallery = page.getByTestId('photo-gallery');
+    await gallery.waitFor();
+    await gallery.getByRole('button', { name: /Open photo 1 of 1/ }).click();
+    const dialog = page.getByRole('dialog', { name: 'Photo 1 of 1' });
+    await dialog.waitFor();
+    const full = dialog.getByRole('img', { name: /Photo 1 of the span/ });
+    await full.waitFor();
+    await page.waitForFunction(() => {
+      const img = document.querySelector<HTMLImageElement>('[data-testid="photo-dialog"] img');
+      return !!img && img.complete && img.naturalWidth > 0;
+    });
+    expect(await full.evaluate((img: HTMLImageElement) => img.naturalWidth)).toBe(1200);
+    await dialog.getByRole('button', { name: 'Close' }).click();
+    await dialog.waitFor({ state: 'hidden' });
+    await context.close();
+  });
+});
