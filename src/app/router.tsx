@@ -17,6 +17,7 @@ import { AuditLogPage } from '../features/admin/audit-log-page.tsx';
 import { AcceptInvitationPage } from '../features/auth/accept-invitation-page.tsx';
 import { ResetPasswordPage } from '../features/auth/reset-password-page.tsx';
 import { ForgotPasswordPage } from '../features/auth/forgot-password-page.tsx';
+import { ReviewDesk } from '../features/review/review-desk.tsx';
 
 function Loading() {
   return <p className="p-8 text-center text-ink-700">Loading…</p>;
@@ -44,7 +45,7 @@ export const router = createBrowserRouter([
           { path: 'spans', Component: SpansTablePage },
           { path: 'spans/:id', element: <SpanDetailPage photosSlot={spanDetailPhotosSlot} /> },
           { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
-          { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety" /></RoleGate> },
+          { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety"><ReviewDesk /></RoleHome></RoleGate> },
           { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner" /></RoleGate> },
           { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin"><AdminHome /></RoleHome></RoleGate> },
           { path: 'admin/outbox', element: <RoleGate roles={['admin']}><OutboxPage /></RoleGate> },

@@ -1,0 +1,66 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startHarness, type Harness } from './harness.ts';
+
+let h: Harness;
+beforeAll(async () => {
+  h = await startHarness();
+});
+afterAll(() => h?.stop());
+
+describe('review desk journey', () => {
+  it('when a safety officer works the queue by keyboard, then a returned span carries the reason to the surveyor', async () => {
+    const { context, page } = await h.newPage();
+    await h.signIn(page, 'safety');
+    await page.waitForURL((u) => u.pathname === '/review');
+    const queue = page.getByRole('list', { name: 'Spans in the queue' });
+    await queue.waitFor();
+    const items = queue.getByRole('button');
+    const before = await items.count();
+    expect(before).toBeGreaterThan(1);
+    // Ages are shown, and the shortcuts are on screen.
+    expect(await items.first().innerText()).toMatch(/waiting \d+ (min|h|d)/);
+    const legend = await page.getByLabel('Keyboard shortcuts').innerText();
+    expect(legend).toContain('approve');
+    expect(legend).toContain('return with a reason');
+
+    // The first span is selected; j moves down, k back up.
+    const current = () => queue.locator('[aria-current="true"]').innerText();
+    const first = await current();
+    await page.keyboard.press('j');
+    await expect.poll(current).not.toBe(first);
+    const second = await current();
+    await page.keyboard.press('k');
+    await expect.poll(current).toBe(first);
+    await page.keyboard.press('ArrowDown');
+    await expect.poll(current).toBe(second);
+
+    // The selected span shows its sections.
+    for (const name of ['Zone conflicts', 'Assessment and score', 'Photos', 'History']) await page.getByRole('heading', { name }).waitFor();
+    const title = await page.locator('#review-span-title').innerText();
+
+    // r opens the reason with the cursor in it; Ctrl+Enter sends.
+    await page.keyboard.press('r');
+    const reason = page.getByLabel('What should the surveyor fix?');
+    await reason.waitFor();
+    expect(await reason.evaluate((el) => el === document.activeElement)).toBe(true);
+    const text = 'Clearance photo is of the neighbouring span; retake at the perch point';
+    await page.keyboard.type(text);
+    await page.keyboard.press('Control+Enter');
+    await expect.poll(() => items.count(), { timeout: 10_000 }).toBe(before - 1);
+    await expect.poll(() => page.locator('#review-span-title').innerText()).not.toBe(title);
+
+    // a approves the span now selected: it leaves the queue, unless a zone blocks it and the desk says why.
+    await page.keyboard.press('a');
+    await expect
+      .poll(async () => (await items.count()) === before - 2 || (await page.getByRole('alert').filter({ hasText: /zone/i }).count()) > 0, { timeout: 10_000 })
+      .toBe(true);
+    await context.close();
+
+    // The span's surveyor sees the reason in their queue.
+    const surveyor = await h.newPage();
+    await h.signIn(surveyor.page, 'surveyor');
+    await surveyor.page.waitForURL((u) => u.pathname === '/field');
+    await surveyor.page.getByText(text).first().waitFor({ timeout: 15_000 });
+    await surveyor.context.close();
+  });
+});
