@@ -17,6 +17,9 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/admin', label: 'Admin', roles: ['admin'] },
   { to: '/admin/audit', label: 'Audit log', roles: ['admin', 'safety'] },
   { to: '/admin/outbox', label: 'Outbox', roles: ['admin'] },
+  { to: '/admin/profiles', label: 'Profiles', roles: ['admin'] },
+  { to: '/admin/scoring', label: 'Scoring', roles: ['admin'] },
+  { to: '/calculators', label: 'Calculators' },
   { to: '/account', label: 'Account' },
 ];
 

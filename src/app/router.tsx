@@ -11,6 +11,9 @@ import { SpansTablePage } from '../features/spans/components/spans-table-page.ts
 import { SpanDetailPage } from '../features/spans/components/span-detail-page.tsx';
 import { spanDetailPhotosSlot, spanFormPhotoSlot } from '../features/photos/slots.tsx';
 import { ImportPage } from '../features/import/components/import-page.tsx';
+import { CalculatorsPage } from '../features/calculators/calculators-page.tsx';
+import { ProfilesPage } from '../features/profiles/profiles-page.tsx';
+import { ScoringSettingsPage } from '../features/profiles/scoring-page.tsx';
 import { AdminHome } from '../features/admin/admin-home.tsx';
 import { OutboxPage } from '../features/admin/outbox-page.tsx';
 import { AuditLogPage } from '../features/admin/audit-log-page.tsx';
@@ -49,6 +52,9 @@ export const router = createBrowserRouter([
           { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner" /></RoleGate> },
           { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin"><AdminHome /></RoleHome></RoleGate> },
           { path: 'admin/outbox', element: <RoleGate roles={['admin']}><OutboxPage /></RoleGate> },
+          { path: 'admin/profiles', element: <RoleGate roles={['admin']}><ProfilesPage /></RoleGate> },
+          { path: 'admin/scoring', element: <RoleGate roles={['admin']}><ScoringSettingsPage /></RoleGate> },
+          { path: 'calculators', Component: CalculatorsPage },
           { path: 'admin/audit', element: <RoleGate roles={['admin', 'safety']}><AuditLogPage /></RoleGate> },
           { path: 'account', Component: AccountPage },
           { path: '*', element: <StatusPage code={404} title="Nothing here" message="That page does not exist." /> },
