@@ -150,6 +150,21 @@ describe('invitations', () => {
     expect(noRole.body.error.issues[0].path).toBe('roles');
   });
 
+  it('when an admin sends an invitation again, then a new link goes out and the old one stops working', async () => {
+    const { token } = await invite('resend@harrowvale.test');
+    const pending = (await admin.get('/api/admin/invitations')).body.items.find((i: { email: string }) => i.email === 'resend@harrowvale.test');
+    const res = await admin.post(`/api/admin/invitations/${pending.id}/resend`);
+    expect(res.status).toBe(200);
+    expect(res.body.mailSent).toBe(true);
+    const mails = (await outbox()).filter((m) => m.to === 'resend@harrowvale.test');
+    expect(mails).toHaveLength(2);
+    const fresh = tokenFrom(mails[0], '/accept-invitation');
+    expect(fresh).not.toBe(token);
+    expect((await t.client().post('/api/auth/accept-invitation', { token, password: 'stale-link-secret' })).status).toBe(400);
+    expect((await t.client().post('/api/auth/accept-invitation', { token: fresh, password: 'fresh-link-secret' })).status).toBe(200);
+    expect((await admin.post(`/api/admin/invitations/${pending.id}/resend`)).status).toBe(404);
+  });
+
   it('when an admin revokes a pending invitation, then its link stops working', async () => {
     const { token } = await invite('revoked@harrowvale.test');
     const pending = (await admin.get('/api/admin/invitations')).body.items.find((i: { email: string }) => i.email === 'revoked@harrowvale.test');

@@ -21,6 +21,8 @@ export async function startMailCatcher(orm: MikroORM, port = 0, host = '127.0.0.
     authOptional: true,
     disabledCommands: ['AUTH', 'STARTTLS'],
     logger: false,
+    // Loopback only: no reverse DNS lookup of the client (there may be no resolver at all).
+    disableReverseLookup: true,
     banner: 'Roostline local mail catcher',
     size: MAX_MESSAGE_BYTES,
     closeTimeout: 2000,
