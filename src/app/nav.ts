@@ -11,6 +11,7 @@ export interface NavItem {
 export const NAV_ITEMS: NavItem[] = [
   { to: '/field', label: 'My spans', roles: ['surveyor'] },
   { to: '/spans', label: 'Spans' },
+  { to: '/map', label: 'Map' },
   { to: '/import', label: 'Import', roles: ['surveyor', 'admin'] },
   { to: '/review', label: 'Review desk', roles: ['safety'] },
   { to: '/planning', label: 'Planning', roles: ['planner'] },

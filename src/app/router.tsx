@@ -46,6 +46,7 @@ export const router = createBrowserRouter([
           { path: 'field/spans/new', element: <RoleGate roles={['surveyor']}><SpanFormPage photoSlot={spanFormPhotoSlot} /></RoleGate> },
           { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><SpanFormPage photoSlot={spanFormPhotoSlot} /></RoleGate> },
           { path: 'spans', Component: SpansTablePage },
+          { path: 'map', lazy: () => import('../features/map/map-page.tsx') },
           { path: 'spans/:id', element: <SpanDetailPage photosSlot={spanDetailPhotosSlot} /> },
           { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
           { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety"><ReviewDesk /></RoleHome></RoleGate> },

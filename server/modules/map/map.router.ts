@@ -34,6 +34,16 @@ const tileParams = z.object({
   x: z.coerce.number({ error: 'x must be a whole number' }).int().min(0),
   y: z.coerce.number({ error: 'y must be a whole number' }).int().min(0),
 });
+const optionalNumber = (field: string) =>
+  z.preprocess((v) => (v === '' || v === undefined ? undefined : v), z.coerce.number({ error: `${field} must be a number` }).min(0, `${field} cannot be negative`).optional());
+const boundsQuery = z.object({
+  status: z.enum(['draft', 'submitted', 'approved', 'returned', 'suspended'], { error: 'Unknown status' }).optional(),
+  lineId: z.string().max(64).optional(),
+  minHarvestW: optionalNumber('minHarvestW'),
+  minScore: optionalNumber('minScore'),
+  harvesterProfileId: z.string().max(64).optional(),
+  droneProfileId: z.string().max(64).optional(),
+});
 const tileQuery = z.object({
   harvesterProfileId: z.string().max(64).optional(),
   droneProfileId: z.string().max(64).optional(),
@@ -85,6 +95,13 @@ export function mapRouter(ctx: AppContext) {
     // Revalidated on every use (the ETag answers 304 while nothing changed): an edit shows at once.
     res.set('Cache-Control', 'private, no-cache');
     res.send(bytes);
+  });
+
+  // The box around the spans that pass the map's filters, for "fit to results".
+  r.get('/api/map/span-bounds', 'signed-in', async (req, res) => {
+    const q = parse(boundsQuery, req.query);
+    const { harvesterProfileId, droneProfileId, ...filters } = q;
+    res.json(await spanTilesFor(ctx).bounds(filters, { harvesterProfileId, droneProfileId }));
   });
 
   return r.router;

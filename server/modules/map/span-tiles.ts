@@ -21,6 +21,14 @@ const GRID_DEG = 0.01;
 const FINGERPRINT_EVERY_MS = 1000;
 const MAX_CACHED_TILES = 4000;
 
+/** The filters the map shares with the spans table (same names as its URL parameters). */
+export interface SpanMapFilters {
+  status?: string;
+  lineId?: string;
+  minHarvestW?: number;
+  minScore?: number;
+}
+
 export interface TilePair {
   harvesterProfileId: string;
   droneProfileId: string;
@@ -186,6 +194,30 @@ export class SpanTileService {
       else snap.structureGrid.set(k, [i]);
     });
     return snap;
+  }
+
+  /** How many spans pass the map's filters and the box around them (for "fit to results"). */
+  async bounds(filters: SpanMapFilters, pair: Partial<TilePair> = {}): Promise<{ count: number; bbox: [number, number, number, number] | null }> {
+    const em = this.orm.em.fork();
+    await this.checkFingerprint(em);
+    const snap = await this.loadSnapshot(await this.resolvePair(em, pair));
+    let count = 0;
+    let w = Infinity;
+    let s = Infinity;
+    let e = -Infinity;
+    let n = -Infinity;
+    for (let i = 0; i < snap.n; i++) {
+      if (filters.status && snap.statuses[i] !== filters.status) continue;
+      if (filters.lineId && snap.lineIds[i] !== filters.lineId) continue;
+      if (filters.minHarvestW !== undefined && !(snap.harvestW[i] >= filters.minHarvestW)) continue;
+      if (filters.minScore !== undefined && !(snap.score[i] >= filters.minScore)) continue;
+      count++;
+      w = Math.min(w, snap.lon0[i], snap.lon1[i]);
+      e = Math.max(e, snap.lon0[i], snap.lon1[i]);
+      s = Math.min(s, snap.lat0[i], snap.lat1[i]);
+      n = Math.max(n, snap.lat0[i], snap.lat1[i]);
+    }
+    return { count, bbox: count ? [w, s, e, n] : null };
   }
 
   /** The MVT bytes of one tile (layers `spans` and, from STRUCTURE_MIN_ZOOM, `structures`). */
