@@ -8,6 +8,8 @@ function show(v: unknown): string {
   return String(v);
 }
 
+const BOOKKEEPING = new Set(['version', 'updatedAt', 'createdAt']);
+
 const isRecord = (v: unknown): v is Record<string, unknown> => !!v && typeof v === 'object' && !Array.isArray(v);
 
 /** The fields an audit entry changed, before → after (unchanged fields are left out). */
@@ -19,9 +21,10 @@ export function auditChanges(before: unknown, after: unknown): { field: string; 
   const b = isRecord(before) ? before : {};
   const a = isRecord(after) ? after : {};
   const keys = [...new Set([...Object.keys(b), ...Object.keys(a)])];
-  return keys
-    .filter((k) => JSON.stringify(b[k]) !== JSON.stringify(a[k]))
-    .map((k) => ({ field: k, before: k in b ? show(b[k]) : '—', after: k in a ? show(a[k]) : '—' }));
+  const changed = keys.filter((k) => JSON.stringify(b[k]) !== JSON.stringify(a[k]));
+  // Version and timestamps change on every write: shown only when nothing else did.
+  const meaningful = changed.filter((k) => !BOOKKEEPING.has(k));
+  return (meaningful.length ? meaningful : changed).map((k) => ({ field: k, before: k in b ? show(b[k]) : '—', after: k in a ? show(a[k]) : '—' }));
 }
 
 export function AuditDiff({ entry }: { entry: Pick<AuditItem, 'before' | 'after'> }) {
