@@ -20,9 +20,9 @@ beforeAll(async () => {
   }
   tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-photo-e2e-'));
   photoPath = path.join(tmp, 'span-photo.jpg');
-  // Noise compresses badly, so the file is large enough (~1 MB) for the throttled upload to take a few seconds.
+  // Noise compresses badly, so the file is large enough (~0.6 MB) for the throttled upload to take a few seconds.
   const jpeg = await sharp({ create: { width: 1200, height: 900, channels: 3, background: '#6a8', noise: { type: 'gaussian', mean: 120, sigma: 40 } } })
-    .jpeg({ quality: 92 })
+    .jpeg({ quality: 80 })
     .toBuffer();
   fs.writeFileSync(photoPath, jpeg);
   // 20 m north of the span's middle (the span built below runs east from -30.2, -130.3 for about 200 m).
@@ -68,10 +68,10 @@ describe('photo journey', () => {
         }
       }).observe(document.body, { subtree: true, childList: true, attributes: true, attributeFilter: ['aria-valuenow'] });
     });
-    // A thin field connection: about 256 kB/s up, so the bar has time to move.
+    // A thin field connection: about 192 kB/s up, so the bar has time to move.
     const cdp = await context.newCDPSession(page);
     await cdp.send('Network.enable');
-    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 40, downloadThroughput: -1, uploadThroughput: 256 * 1024 });
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 40, downloadThroughput: -1, uploadThroughput: 192 * 1024 });
 
     await page.getByTestId('photo-input').setInputFiles(photoPath);
     const bar = page.getByRole('progressbar', { name: /Upload of span-photo\.jpg/ });
@@ -108,5 +108,5 @@ describe('photo journey', () => {
     await dialog.getByRole('button', { name: 'Close' }).click();
     await dialog.waitFor({ state: 'hidden' });
     await context.close();
-  });
+  }, 180_000);
 });

@@ -41,8 +41,15 @@ const offset = (from: { lat: number; lon: number }, metres: number, bearingDeg: 
   return { lat, lon };
 };
 
-function exiftool(file: string, args: string[]) {
-  execFileSync('exiftool', ['-q', '-overwrite_original', ...args, file]);
+/** Pending exiftool jobs, run in one exiftool process (perl starts once) by writeTagged(). */
+const pendingTags: { name: string; file: string; args: string[] }[] = [];
+
+function writeTagged() {
+  const argfile = path.join(tmp, 'exiftool-args.txt');
+  const lines = pendingTags.flatMap((j, i) => [...(i ? ['-execute'] : []), '-q', '-overwrite_original', ...j.args, j.file]);
+  fs.writeFileSync(argfile, lines.join('\n') + '\n');
+  execFileSync('exiftool', ['-@', argfile]);
+  for (const j of pendingTags) files[j.name] = fs.readFileSync(j.file);
 }
 
 /** Files now in the uploads folder (recursively), as paths relative to it. */
@@ -67,8 +74,7 @@ async function baseJpeg(width: number, height: number) {
 async function tagged(name: string, args: string[], base: Buffer) {
   const file = path.join(tmp, `${name}.jpg`);
   fs.writeFileSync(file, base);
-  exiftool(file, args);
-  files[name] = fs.readFileSync(file);
+  pendingTags.push({ name, file, args });
 }
 
 /** A real 1×1 PNG whose header is rewritten to claim width × height (CRC fixed), like a decompression bomb. */
@@ -122,6 +128,7 @@ beforeAll(async () => {
   await tagged('nearAb', gpsArgs(nearAb.lat, nearAb.lon), base);
   await tagged('nearB', gpsArgs(nearB.lat, nearB.lon), base);
   await tagged('farAway', gpsArgs(farAway.lat, farAway.lon), base);
+  writeTagged();
   files.truncated = files.ne.subarray(0, Math.floor(files.ne.length * 0.6));
   files.webpGps = await sharp(files.se).keepExif().webp().toBuffer();
   files.png = await sharp(base).png().toBuffer();
@@ -134,7 +141,7 @@ beforeAll(async () => {
   files.bomb = await pngClaiming(30_000, 30_000);
   t = await makeTestApp({ uploadsDir }, { seed: seedScenario });
   [surveyor, safety, planner, admin] = await Promise.all([t.as('surveyor'), t.as('safety'), t.as('planner'), t.as('admin')]);
-});
+}, 120_000);
 
 afterAll(async () => {
   await t?.close();
