@@ -68,6 +68,10 @@ describe('harvester and drone profiles', () => {
     expect(entries[1].before).toMatchObject({ turns: 400, version: 1 });
     expect(entries[1].after).toMatchObject({ turns: 450, version: 2 });
 
+    const history = await planner.get(`/api/profiles/harvesters/${id}/history`);
+    expect(history.status).toBe(200);
+    expect(history.body.items.map((h: { version: number }) => h.version)).toEqual([2, 1]);
+
     expect((await admin.delete(`/api/profiles/harvesters/${id}`)).status).toBe(204);
     expect((await admin.get(`/api/profiles/harvesters/${id}`)).status).toBe(404);
   });

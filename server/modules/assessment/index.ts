@@ -78,7 +78,17 @@ export function assessmentRouters(ctx: AppContext) {
     const ids = await spansNear(em, polygons);
     if (ids.length) startRescoreOf(ctx, `no-perch zone ${change.action}`, ids);
   });
+  // Survey ages and zone validity dates move with the calendar, not with an edit: rescore once per new UTC day.
+  let day = new Date().toISOString().slice(0, 10);
+  const daily = setInterval(() => {
+    const today = new Date().toISOString().slice(0, 10);
+    if (today === day) return;
+    day = today;
+    startRescore(ctx, `daily refresh for ${today} (survey ages, zone validity)`);
+  }, 10 * 60_000);
+  daily.unref();
   ctx.onClose(() => {
+    clearInterval(daily);
     offSpan();
     offZone();
   });

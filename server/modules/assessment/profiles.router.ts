@@ -16,6 +16,7 @@ import type { AppContext } from '../../context.ts';
 import { currentUser, featureRouter } from '../../http/access.ts';
 import { AppError, parse } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
+import { AuditEntry } from '../audit/audit.entity.ts';
 import { Assessment } from './assessment.entity.ts';
 import { BenchTest, DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { benchTestView, droneView, harvesterView, profileSnapshot } from './profiles.service.ts';
@@ -58,6 +59,18 @@ export function profilesRouter(ctx: AppContext) {
 
   r.get('/harvesters/:id', 'signed-in', async (req, res) => {
     res.json(harvesterView(await harvesterOr404(req.em, String(req.params.id))));
+  });
+
+  // Every saved version of a profile, newest first (the full record of each is in the audit log).
+  r.get('/:kind/:id/history', 'signed-in', async (req, res) => {
+    const kind = String(req.params.kind);
+    if (kind !== 'harvesters' && kind !== 'drones') throw AppError.notFound('Profile kind');
+    const recordType = kind === 'harvesters' ? 'harvester-profile' : 'drone-profile';
+    const entries = await req.em.find(AuditEntry, { recordType, recordId: String(req.params.id) }, { orderBy: { id: 'desc' }, limit: 200 });
+    if (entries.length === 0) await (kind === 'harvesters' ? harvesterOr404(req.em, String(req.params.id)) : droneOr404(req.em, String(req.params.id)));
+    res.json({
+      items: entries.map((e) => ({ at: e.at.toISOString(), actorId: e.actorId, action: e.action, version: ((e.after ?? e.before) as { version?: number } | null)?.version ?? null, before: e.before, after: e.after })),
+    });
   });
 
   r.post('/harvesters', ['admin'], async (req, res) => {
