@@ -24,8 +24,8 @@ function latToTileY(lat: number, z: number) {
 }
 const tileOf = (z: number, lon = START.lon + STEP_DEG, lat = START.lat) => `${z}/${lonToTileX(lon, z)}/${latToTileY(lat, z)}`;
 
-async function getTile(c: Client, path: string) {
-  const res = await c.get(`/api/tiles/spans/${path}.mvt`).buffer(true).parse((r, cb) => {
+async function getTile(c: Client, path: string, query = '') {
+  const res = await c.get(`/api/tiles/spans/${path}.mvt${query}`).buffer(true).parse((r, cb) => {
     const chunks: Buffer[] = [];
     r.on('data', (d: Buffer) => chunks.push(d));
     r.on('end', () => cb(null, Buffer.concat(chunks)));
@@ -124,15 +124,35 @@ describe('span tiles', () => {
     expect(statuses[spanIds[1]]).toBe('draft');
   });
 
-  it('when the zoom is low, then spans of one line and status close together are generalised into one feature that keeps the best harvest and the count', async () => {
+  it('when the zoom is low, then spans of one status close together are generalised into one feature that keeps the best harvest and the count; a status or line filter in the URL applies first', async () => {
     const { tile } = await getTile(surveyor, tileOf(8));
     const spans = features(tile!, 'spans');
     const drafts = spans.filter((f) => f.properties.status === 'draft');
-    expect(drafts).toHaveLength(1);
-    expect(drafts[0].properties.count).toBe(2);
     const detailed = features((await getTile(surveyor, tileOf(14))).tile!, 'spans').filter((f) => f.properties.status === 'draft');
+    expect(detailed.length).toBeGreaterThanOrEqual(2);
+    expect(drafts).toHaveLength(1);
+    expect(drafts[0].properties.count).toBe(detailed.length);
     const best = Math.max(...detailed.map((f) => Number(f.properties.harvestW ?? -Infinity)));
     if (Number.isFinite(best)) expect(drafts[0].properties.harvestW).toBe(best);
+    const onlySubmitted = features((await getTile(surveyor, tileOf(8), '?status=submitted')).tile!, 'spans');
+    expect(onlySubmitted.map((f) => f.properties.status)).toEqual(['submitted']);
+    expect(features((await getTile(surveyor, tileOf(14), '?lineId=no-such-line')).tile!, 'spans')).toHaveLength(0);
+  });
+
+  it('when the map asks for the box around the filtered spans, then it gets their count and extent', async () => {
+    const all = await surveyor.get('/api/map/span-bounds');
+    expect(all.status).toBe(200);
+    expect(all.body.count).toBe(3);
+    const [w, s, e, n] = all.body.bbox;
+    expect(w).toBeCloseTo(START.lon, 6);
+    expect(e).toBeCloseTo(START.lon + 3 * STEP_DEG, 6);
+    expect(s).toBeCloseTo(START.lat, 6);
+    expect(n).toBeCloseTo(START.lat, 6);
+    const none = await surveyor.get(`/api/map/span-bounds?lineId=${lineId}&status=approved`);
+    expect(none.body).toEqual({ count: 0, bbox: null });
+    const bad = await surveyor.get('/api/map/span-bounds?minHarvestW=lots');
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.issues[0].path).toBe('minHarvestW');
   });
 });
 

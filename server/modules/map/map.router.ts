@@ -36,15 +36,12 @@ const tileParams = z.object({
 });
 const optionalNumber = (field: string) =>
   z.preprocess((v) => (v === '' || v === undefined ? undefined : v), z.coerce.number({ error: `${field} must be a number` }).min(0, `${field} cannot be negative`).optional());
+/** Filters of the span tiles and of the fit-to-results box (the spans table's parameter names). */
 const boundsQuery = z.object({
   status: z.enum(['draft', 'submitted', 'approved', 'returned', 'suspended'], { error: 'Unknown status' }).optional(),
   lineId: z.string().max(64).optional(),
   minHarvestW: optionalNumber('minHarvestW'),
   minScore: optionalNumber('minScore'),
-  harvesterProfileId: z.string().max(64).optional(),
-  droneProfileId: z.string().max(64).optional(),
-});
-const tileQuery = z.object({
   harvesterProfileId: z.string().max(64).optional(),
   droneProfileId: z.string().max(64).optional(),
 });
@@ -89,8 +86,8 @@ export function mapRouter(ctx: AppContext) {
     const max = 2 ** zoom;
     if (x >= max) throw AppError.field('x', `x must be below ${max} at zoom ${zoom}`);
     if (y >= max) throw AppError.field('y', `y must be below ${max} at zoom ${zoom}`);
-    const pair = parse(tileQuery, req.query);
-    const bytes = await spanTilesFor(ctx).tile(zoom, x, y, pair);
+    const { harvesterProfileId, droneProfileId, ...filters } = parse(boundsQuery, req.query);
+    const bytes = await spanTilesFor(ctx).tile(zoom, x, y, { harvesterProfileId, droneProfileId }, filters);
     res.set('Content-Type', 'application/vnd.mapbox-vector-tile');
     // Revalidated on every use (the ETag answers 304 while nothing changed): an edit shows at once.
     res.set('Cache-Control', 'private, no-cache');

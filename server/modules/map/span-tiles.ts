@@ -207,10 +207,7 @@ export class SpanTileService {
     let e = -Infinity;
     let n = -Infinity;
     for (let i = 0; i < snap.n; i++) {
-      if (filters.status && snap.statuses[i] !== filters.status) continue;
-      if (filters.lineId && snap.lineIds[i] !== filters.lineId) continue;
-      if (filters.minHarvestW !== undefined && !(snap.harvestW[i] >= filters.minHarvestW)) continue;
-      if (filters.minScore !== undefined && !(snap.score[i] >= filters.minScore)) continue;
+      if (!passes(snap, i, filters)) continue;
       count++;
       w = Math.min(w, snap.lon0[i], snap.lon1[i]);
       e = Math.max(e, snap.lon0[i], snap.lon1[i]);
@@ -220,12 +217,15 @@ export class SpanTileService {
     return { count, bbox: count ? [w, s, e, n] : null };
   }
 
-  /** The MVT bytes of one tile (layers `spans` and, from STRUCTURE_MIN_ZOOM, `structures`). */
-  async tile(z: number, x: number, y: number, pair: Partial<TilePair> = {}): Promise<Buffer> {
+  /**
+   * The MVT bytes of one tile (layers `spans` and, from STRUCTURE_MIN_ZOOM, `structures`). Filters given here are
+   * applied before the low-zoom generalisation (so a line or status filter stays exact at every zoom).
+   */
+  async tile(z: number, x: number, y: number, pair: Partial<TilePair> = {}, filters: SpanMapFilters = {}): Promise<Buffer> {
     const em = this.orm.em.fork();
     await this.checkFingerprint(em);
     const resolved = await this.resolvePair(em, pair);
-    const key = `${resolved ? `${resolved.harvesterProfileId}|${resolved.droneProfileId}` : '-'}/${z}/${x}/${y}`;
+    const key = `${resolved ? `${resolved.harvesterProfileId}|${resolved.droneProfileId}` : '-'}/${filterKey(filters)}/${z}/${x}/${y}`;
     const version = this.version;
     const hit = this.cache.get(key);
     if (hit) {
@@ -233,7 +233,7 @@ export class SpanTileService {
       return hit;
     }
     const snap = await this.loadSnapshot(resolved);
-    const bytes = Buffer.from(buildTile(snap, z, x, y));
+    const bytes = Buffer.from(buildTile(snap, z, x, y, filters));
     this.stats.builds += 1;
     if (version === this.version) {
       if (this.cache.size >= MAX_CACHED_TILES) this.cache.delete(this.cache.keys().next().value!);
@@ -243,7 +243,20 @@ export class SpanTileService {
   }
 }
 
-function buildTile(snap: Snapshot, z: number, x: number, y: number): Uint8Array {
+function filterKey(f: SpanMapFilters) {
+  return [f.status ?? '', f.lineId ?? '', f.minHarvestW ?? '', f.minScore ?? ''].join('|');
+}
+
+function passes(snap: Snapshot, i: number, f: SpanMapFilters) {
+  if (f.status && snap.statuses[i] !== f.status) return false;
+  if (f.lineId && snap.lineIds[i] !== f.lineId) return false;
+  if (f.minHarvestW !== undefined && !(snap.harvestW[i] >= f.minHarvestW)) return false;
+  if (f.minScore !== undefined && !(snap.score[i] >= f.minScore)) return false;
+  return true;
+}
+
+function buildTile(snap: Snapshot, z: number, x: number, y: number, filters: SpanMapFilters = {}): Uint8Array {
+  const filtered = !!(filters.status || filters.lineId || filters.minHarvestW !== undefined || filters.minScore !== undefined);
   const scale = 2 ** z;
   const pad = TILE_BUFFER / TILE_EXTENT;
   const west = tileLon(x - pad, z);
@@ -281,6 +294,7 @@ function buildTile(snap: Snapshot, z: number, x: number, y: number): Uint8Array 
     const minLat = Math.min(snap.lat0[i], snap.lat1[i]);
     const maxLat = Math.max(snap.lat0[i], snap.lat1[i]);
     if (maxLon < west || minLon > east || maxLat < south || minLat > north) continue;
+    if (filtered && !passes(snap, i, filters)) continue;
     const x0 = px(snap.lon0[i]);
     const y0 = py(snap.lat0[i]);
     const x1 = px(snap.lon1[i]);
@@ -296,9 +310,10 @@ function buildTile(snap: Snapshot, z: number, x: number, y: number): Uint8Array 
       spans.push(feature);
       continue;
     }
-    // Generalised: per line, status and cell one representative span carrying the best harvest and score of its
-    // cell, so the client's minimum-harvest / minimum-score filters keep every cell that has a qualifying span.
-    const cell = `${snap.lineIds[i]}|${snap.statuses[i]}|${Math.floor((x0 + x1) / 2 / GENERAL_CELL)}|${Math.floor((y0 + y1) / 2 / GENERAL_CELL)}`;
+    // Generalised: per status and cell one representative span carrying the best harvest and score of its cell,
+    // so the client's minimum-harvest / minimum-score filters keep every cell that has a qualifying span.
+    // (A line filter is applied above, before this, when the tile URL carries it.)
+    const cell = `${snap.statuses[i]}|${Math.floor((x0 + x1) / 2 / GENERAL_CELL)}|${Math.floor((y0 + y1) / 2 / GENERAL_CELL)}`;
     const b = buckets.get(cell);
     const h = Number.isNaN(harvestW) ? -Infinity : harvestW;
     const s = Number.isNaN(score) ? -Infinity : score;

@@ -37,10 +37,20 @@ if (!protocolAdded) {
   protocolAdded = true;
 }
 
-/** Absolute, unencoded: the worker resolves it and `{z}` must stay literal. */
-function spanTileUrl(harvesterProfileId?: string, droneProfileId?: string) {
-  const base = `${location.origin}/api/tiles/spans/{z}/{x}/{y}.mvt`;
-  return harvesterProfileId && droneProfileId ? `${base}?harvesterProfileId=${encodeURIComponent(harvesterProfileId)}&droneProfileId=${encodeURIComponent(droneProfileId)}` : base;
+/**
+ * Absolute, unencoded template (the worker resolves it and `{z}` must stay literal). Status and line go to the
+ * server, which applies them before generalising low zooms; thresholds are filtered on the client at once.
+ */
+function spanTileUrl(f: Pick<MapFilters, 'status' | 'lineId'>, harvesterProfileId?: string, droneProfileId?: string) {
+  const q = new URLSearchParams();
+  if (f.status) q.set('status', f.status);
+  if (f.lineId) q.set('lineId', f.lineId);
+  if (harvesterProfileId && droneProfileId) {
+    q.set('harvesterProfileId', harvesterProfileId);
+    q.set('droneProfileId', droneProfileId);
+  }
+  const s = q.toString();
+  return `${location.origin}/api/tiles/spans/{z}/{x}/{y}.mvt${s ? `?${s}` : ''}`;
 }
 
 function withFilter(layer: OverlayLayer, filter: unknown[]): OverlayLayer {
@@ -72,11 +82,21 @@ export function MapPage() {
     queryFn: () => mapApi.spanBounds({ ...filters, harvesterProfileId: harvesterId }, defaultDroneId),
   });
 
-  // The harvester choice changes which harvest power the tiles carry.
+  // Status, line and harvester change which spans and which harvest power the tiles carry.
+  const tileUrl = spanTileUrl(filters, harvesterId, harvesterId ? defaultDroneId : undefined);
+  const appliedTileUrl = useRef<string | null>(null);
   useEffect(() => {
     const source = map?.getSource('spans') as VectorTileSource | undefined;
-    source?.setTiles([spanTileUrl(harvesterId, harvesterId ? defaultDroneId : undefined)]);
-  }, [map, harvesterId, defaultDroneId]);
+    if (!source) return;
+    if (appliedTileUrl.current === null && tileUrl === spanTileUrl({})) {
+      appliedTileUrl.current = tileUrl;
+      return;
+    }
+    if (appliedTileUrl.current !== tileUrl) {
+      appliedTileUrl.current = tileUrl;
+      source.setTiles([tileUrl]);
+    }
+  }, [map, tileUrl]);
 
   const filterExpr = useMemo(() => spanFilterExpression(filters), [filters]);
   const lineLayer = useMemo(() => spanLineLayer(filters.colourBy), [filters.colourBy]);
