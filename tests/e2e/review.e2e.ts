@@ -62,5 +62,5 @@ describe('review desk journey', () => {
     await surveyor.page.waitForURL((u) => u.pathname === '/field');
     await surveyor.page.getByText(text).first().waitFor({ timeout: 15_000 });
     await surveyor.context.close();
-  });
+  }, 180_000);
 });
