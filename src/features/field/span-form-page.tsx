@@ -79,6 +79,9 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
 
   const showIssues = (issues: FieldIssue[]) => {
     const formLevel: string[] = [];
+    // Conductor details are hidden while a catalogue code word is chosen: show their messages on the picker.
+    const catalogue = getValues('conductorMode') === 'catalogue';
+    issues = issues.map((i) => (catalogue && (i.field === 'conductorDiameter' || i.field === 'conductorSize' || i.field === 'conductorMaterial') ? { ...i, field: 'conductorCodeWord' } : i));
     for (const i of issues) {
       if (i.field) setError(i.field, { type: 'server', message: i.message }, { shouldFocus: false });
       else formLevel.push(i.message);

@@ -109,7 +109,7 @@ function AddStructurePanel({ idPrefix, lineId, unitSystem, onAdded }: { idPrefix
         setLocating(`Position found (±${Math.round(pos.coords.accuracy)} m).`);
       },
       (err) => setLocating(err.code === err.PERMISSION_DENIED ? 'Location permission was refused; type the coordinates.' : 'No position fix yet; try again or type the coordinates.'),
-      { enableHighAccuracy: true, timeout: 20_000, maximumAge: 30_000 },
+      { enableHighAccuracy: true, timeout: 20_000, maximumAge: 0 },
     );
   };
 

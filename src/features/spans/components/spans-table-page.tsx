@@ -1,5 +1,5 @@
 // The spans table for every role: server-side filters, sort and pages; the whole view lives in the URL.
-import { useEffect, useMemo, useState } from 'react';
+import { useEffect, useMemo, useRef, useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import { useQuery } from '@tanstack/react-query';
 import {
@@ -88,7 +88,18 @@ export function SpansTablePage() {
   const me = useMe();
   const [params, setParams] = useSearchParams();
   const state = useMemo(() => tableStateFromSearch(params), [params]);
-  const setState = (next: SpansTableState) => setParams(searchFromTableState(next), { replace: false });
+  // The URL updates a moment after a change (the navigation settles first), so quick successive changes
+  // (a status pick, then typing) build on the latest requested state, not on the last rendered one.
+  const latest = useRef(state);
+  const seenParams = useRef(params);
+  if (seenParams.current !== params) {
+    seenParams.current = params;
+    latest.current = state;
+  }
+  const setState = (update: (s: SpansTableState) => SpansTableState) => {
+    latest.current = update(latest.current);
+    setParams(searchFromTableState(latest.current));
+  };
   const query = apiQueryFromTableState(state);
   const spans = useQuery(spanQueries.list(query));
   const lines = useQuery(inventoryQueries.lines());
@@ -96,13 +107,11 @@ export function SpansTablePage() {
   const total = spans.data?.total ?? 0;
   const pageCount = Math.max(1, Math.ceil(total / state.pagination.pageSize));
 
-  const onSortingChange: OnChangeFn<SortingState> = (u) => {
-    const sorting = typeof u === 'function' ? u(state.sorting) : u;
-    setState({ ...state, sorting, pagination: { ...state.pagination, pageIndex: 0 } });
-  };
-  const onPaginationChange: OnChangeFn<PaginationState> = (u) => setState({ ...state, pagination: typeof u === 'function' ? u(state.pagination) : u });
+  const onSortingChange: OnChangeFn<SortingState> = (u) =>
+    setState((s) => ({ ...s, sorting: typeof u === 'function' ? u(s.sorting) : u, pagination: { ...s.pagination, pageIndex: 0 } }));
+  const onPaginationChange: OnChangeFn<PaginationState> = (u) => setState((s) => ({ ...s, pagination: typeof u === 'function' ? u(s.pagination) : u }));
   const onColumnVisibilityChange: OnChangeFn<VisibilityState> = (u) =>
-    setState({ ...state, columnVisibility: typeof u === 'function' ? u(state.columnVisibility) : u });
+    setState((s) => ({ ...s, columnVisibility: typeof u === 'function' ? u(s.columnVisibility) : u }));
 
   const table = useReactTable({
     data: spans.data?.items ?? [],
@@ -122,7 +131,7 @@ export function SpansTablePage() {
     onColumnVisibilityChange,
   });
   const sortable = new Set<string>(SPAN_COLUMNS.filter((c) => c.sortable).map((c) => c.id));
-  const setFilters = (patch: Partial<SpanFilters>) => setState(withFilters(state, patch));
+  const setFilters = (patch: Partial<SpanFilters>) => setState((s) => withFilters(s, patch));
 
   return (
     <div className="space-y-4">
@@ -218,7 +227,10 @@ export function SpansTablePage() {
           <select
             className="field-input w-24"
             value={state.pagination.pageSize}
-            onChange={(e) => setState({ ...state, pagination: { pageIndex: 0, pageSize: Number(e.target.value) } })}
+            onChange={(e) => {
+              const pageSize = Number(e.target.value);
+              setState((s) => ({ ...s, pagination: { pageIndex: 0, pageSize } }));
+            }}
           >
             {PAGE_SIZES.map((n) => (
               <option key={n} value={n}>{n}</option>
