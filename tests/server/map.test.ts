@@ -186,6 +186,23 @@ describe('approval blocked by a zone', () => {
   });
 });
 
+describe('zones and the tile cache', () => {
+  it('when a caution zone is drawn over a span, then the span is rescored and its tile shows the lower score without a restart', async () => {
+    const path = tileOf(14);
+    const scoreOf = async () => features((await getTile(surveyor, path)).tile!, 'spans').find((f) => f.properties.id === spanIds[0])?.properties.score as number | undefined;
+    const before = await scoreOf();
+    expect(typeof before).toBe('number');
+    const box = { type: 'Polygon', coordinates: [[[-130.3152, -30.2004], [-130.3138, -30.2004], [-130.3138, -30.1996], [-130.3152, -30.1996], [-130.3152, -30.2004]]] };
+    expect((await safety.post('/api/zones', { name: 'Cache check', reason: 'Tile cache check', severity: 'caution', geometry: box })).status).toBe(201);
+    let after = before;
+    for (let i = 0; i < 40 && after === before; i++) {
+      await new Promise((r) => setTimeout(r, 250));
+      after = await scoreOf();
+    }
+    expect(after).toBeLessThan(before!);
+  });
+});
+
 describe('map style and assets', () => {
   it('when the style is fetched, then every URL in it is on the app\'s own origin', async () => {
     const res = await t.client().get('/map/style.json');

@@ -8,6 +8,7 @@ import { z } from 'zod';
 import type { EntityManager } from '@mikro-orm/core';
 import { parse } from '../../http/errors.ts';
 import { registerSpanListener } from '../inventory/inventory.service.ts';
+import { registerZoneListener } from '../zones/zone.service.ts';
 import { buildStyle, MAP_ASSETS_DIR, FONT_FILES } from './style.ts';
 import { SpanTileService } from './span-tiles.ts';
 
@@ -23,7 +24,15 @@ export function spanTilesFor(ctx: AppContext): SpanTileService {
     const off = registerSpanListener((em) => {
       if (mine(em)) service.invalidate();
     });
-    ctx.onClose(off);
+    // A zone change rescores the spans it covers (in the background); the tiles drop their cache now, and the
+    // data-version check picks up the new scores as they land.
+    const offZone = registerZoneListener((em) => {
+      if (mine(em)) service.invalidate();
+    });
+    ctx.onClose(() => {
+      off();
+      offZone();
+    });
     services.set(ctx, (s = service));
   }
   return s;
