@@ -190,6 +190,7 @@ describe('export and round trip', () => {
     expect(text).toContain('Round trip line, &quot;quoted&quot; &amp; &lt;odd&gt;');
     expect(text).not.toContain('<odd>');
     expect(text.match(/<Placemark>/g)).toHaveLength(4);
+    // @ts-expect-error -- jsdom ships without type declarations in this install
     const { JSDOM } = await import('jsdom');
     const doc = new JSDOM(text, { contentType: 'text/xml' }).window.document;
     expect(doc.getElementsByTagName('parsererror')).toHaveLength(0);
@@ -201,3 +202,74 @@ describe('export and round trip', () => {
     expect((await planner.get('/api/spans/export.shp')).status).toBe(404);
   });
 });
+
+describe('GeoJSON import and re-import effects', () => {
+  const fc = (features: object[]) => JSON.stringify({ type: 'FeatureCollection', features });
+  const lineProps = { lineName: 'Geo line 1', lineOwner: 'Harrow Vale Power Cooperative', voltageKv: 69, frequencyHz: 60, phases: 3, loadTypicalA: 250, loadMinA: 100, loadPeakA: 400 };
+  const point = (label: string, lon: number, lat = -30.05) => ({ type: 'Feature', geometry: { type: 'Point', coordinates: [lon, lat] }, properties: { lineName: 'Geo line 1', label, kind: 'h-frame', attachmentHeightM: 16 } });
+  const spanF = (a: string, aLon: number, b: string, bLon: number, extra: object = {}) => ({
+    type: 'Feature',
+    geometry: { type: 'LineString', coordinates: [[aLon, -30.05], [bLon, -30.05]] },
+    properties: { ...lineProps, fromLabel: a, toLabel: b, conductor: { codeWord: 'hawk' }, clearanceM: 9, terrain: 'forest', surveyDate: '2026-09-09', hazards: [{ kindId: 'vegetation-encroachment', severity: 'high', positionAlongM: 50 }], ...extra },
+  });
+
+  it('when Points and LineStrings are imported, then structures and spans are created and a moved Point re-measures and re-reviews spans outside the file', async () => {
+    const first = fc([point('G-1', -130.2), point('G-2', -130.198), point('G-3', -130.196), spanF('G-1', -130.2, 'G-2', -130.198), spanF('G-2', -130.198, 'G-3', -130.196)]);
+    const res = await surveyor.post('/api/import/commit', { format: 'geojson', text: first });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.body.rows.map((r: any) => r.action)).toEqual(['create', 'create', 'create', 'create', 'create']);
+    const line = (await planner.get('/api/lines')).body.items.find((l: any) => l.name === 'Geo line 1');
+    const list = (await planner.get(`/api/spans?lineId=${line.id}&sort=line`)).body.items;
+    expect(list.map((s: any) => s.conductor.codeWord)).toEqual(['Hawk', 'Hawk']);
+    // Approve the second span, then move G-3 by a Point-only file: that span is not in the file but is re-measured.
+    const second = list.find((s: any) => s.toStructureLabel === 'G-3');
+    await surveyor.post(`/api/spans/${second.id}/submit`);
+    expect((await safety.post(`/api/spans/${second.id}/approve`)).body.status).toBe('approved');
+    const move = fc([point('G-3', -130.195)]);
+    const dry = await surveyor.post('/api/import/dry-run', { format: 'geojson', text: move });
+    expect(dry.body.rows[0]).toMatchObject({ action: 'update' });
+    expect(dry.body.rows[0].reasons[0]).toContain('coordinates (lon)');
+    expect((await surveyor.post('/api/import/commit', { format: 'geojson', text: move })).status).toBe(200);
+    const after = (await planner.get(`/api/spans/${second.id}`)).body;
+    expect(after.status).toBe('submitted');
+    // Karney geodesic on WGS84 via GeographicLib (engineering.md §7).
+    expect(after.lengthM).toBeCloseTo(geodesicInverse({ latDeg: -30.05, lonDeg: -130.198 }, { latDeg: -30.05, lonDeg: -130.195 }).lengthM, 6);
+  });
+
+  it('when a span awaiting review would change, then the row is refused; other feature types are refused by name', async () => {
+    const line = (await planner.get('/api/lines')).body.items.find((l: any) => l.name === 'Geo line 1');
+    const sp = (await planner.get(`/api/spans?lineId=${line.id}&status=submitted`)).body.items[0];
+    expect(sp).toBeDefined();
+    const res = await surveyor.post('/api/import/dry-run', {
+      format: 'geojson',
+      text: fc([spanF(sp.fromStructureLabel, -130.198, sp.toStructureLabel, -130.195, { clearanceM: 7.7 }), { type: 'Feature', geometry: { type: 'Polygon', coordinates: [] }, properties: {} }]),
+    });
+    expect(res.body.rows[0].action).toBe('refuse');
+    expect(res.body.rows[0].reasons[0]).toMatch(/awaiting review/);
+    expect(res.body.rows[1].action).toBe('refuse');
+    expect(res.body.rows[1].reasons.join(' ')).toMatch(/Point .* or LineString/);
+    const notJson = await surveyor.post('/api/import/dry-run', { format: 'geojson', text: '{"type":' });
+    expect(notJson.body.rows[0].reasons[0]).toMatch(/Not valid JSON/);
+  });
+});
+
+describe('a large import', () => {
+  it('when 2000 span rows are dry-run and committed, then both finish in a few seconds', async () => {
+    const rows: string[][] = [];
+    for (let i = 0; i < 2000; i++) rows.push(row(`BIG-${i}`, -130.59 + i * 0.0002, `BIG-${i + 1}`, -130.59 + (i + 1) * 0.0002));
+    const text = csv('Big import line', rows);
+    let started = performance.now();
+    const dry = await surveyor.upload('/api/import/dry-run').attach('file', Buffer.from(text), { filename: 'big.csv', contentType: 'text/csv' });
+    const dryMs = performance.now() - started;
+    expect(dry.status).toBe(200);
+    expect(dry.body.summary.create).toBe(2000);
+    started = performance.now();
+    const commit = await surveyor.upload('/api/import/commit').attach('file', Buffer.from(text), { filename: 'big.csv', contentType: 'text/csv' });
+    const commitMs = performance.now() - started;
+    expect(commit.status).toBe(200);
+    console.log(`import of ${text.length} bytes, 2000 span rows: dry run ${dryMs.toFixed(0)} ms, commit ${commitMs.toFixed(0)} ms`);
+    expect(dryMs).toBeLessThan(10_000);
+    expect(commitMs).toBeLessThan(20_000);
+  }, 60_000);
+});
+

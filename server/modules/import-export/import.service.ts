@@ -14,6 +14,7 @@ import {
 } from '#shared/schemas/inventory.ts';
 import { AppError } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
+import { AuditEntry } from '../audit/audit.entity.ts';
 import type { User } from '../auth/user.entity.ts';
 import { ConductorType } from '../inventory/conductor-type.entity.ts';
 import { Hazard } from '../inventory/hazard.entity.ts';
@@ -26,6 +27,7 @@ import { sameHazards, type HazardRecord } from '../inventory/spans.service.ts';
 import { csvFieldName, geojsonFieldName, parseCsv, parseGeoJson, type FieldNamer, type RawRow } from './formats.ts';
 
 const LAT_LON_TOLERANCE_DEG = 1e-9;
+const structurePartialSchema = structureCreateSchema.partial();
 
 type LineFields = Pick<Line, 'owner' | 'voltageKv' | 'frequencyHz' | 'phases' | 'loadTypicalA' | 'loadMinA' | 'loadPeakA' | 'loadProfileA'>;
 type StructureFields = Pick<Structure, 'lat' | 'lon' | 'kind' | 'attachmentHeightM'>;
@@ -49,6 +51,8 @@ type SpanFields = Pick<
 
 interface PlannedLine {
   key: string;
+  /** The row whose data creates this new line. */
+  createdByRow?: number;
   existing: Line | null;
   fields: LineFields;
   /** Row that first set each field, for conflicts inside the file. */
@@ -137,11 +141,43 @@ export async function planImport(em: EntityManager, format: ImportFormat, text: 
     spans: new Map(),
   };
 
+  // Rows that only wait for a record a later row defines (a Point before the LineString that names its line,
+  // a span before the Points of its structures) are evaluated again after the others.
+  // New lines first, each from the first row that describes it fully, so rows naming only the line (structure Points) can use it.
   for (const raw of rows) {
-    const report = evaluateRow(raw, plan, name, { dbLineByName, dbStructureByKey, dbSpanByKey, dbHazards, kinds, catalogue });
-    plan.report.rows.push(report);
-    plan.report.summary[report.action] += 1;
+    if (!raw.line || raw.reasons.length || dbLineByName.has(raw.line.name) || plan.lines.has(raw.line.name)) continue;
+    const given = Object.fromEntries(Object.entries(raw.line.given).filter(([, v]) => v !== undefined));
+    const parsed = lineCreateSchema.safeParse({ name: raw.line.name, ...given });
+    if (!parsed.success) continue;
+    const v = parsed.data;
+    plan.lines.set(raw.line.name, {
+      key: raw.line.name,
+      existing: null,
+      fields: { owner: v.owner, voltageKv: v.voltageKv, frequencyHz: v.frequencyHz, phases: v.phases, loadTypicalA: v.loadTypicalA, loadMinA: v.loadMinA, loadPeakA: v.loadPeakA, loadProfileA: v.loadProfileA ?? null },
+      setBy: new Map(Object.keys(given).map((k) => [k, raw.row])),
+      changed: new Set(),
+      createdByRow: raw.row,
+    });
   }
+  const lookups = { dbLineByName, dbStructureByKey, dbSpanByKey, dbHazards, kinds, catalogue };
+  const final = new Map<number, ImportRowReport>();
+  let pending = rows;
+  for (;;) {
+    const deferred: { raw: RawRow; report: ImportRowReport }[] = [];
+    for (const raw of pending) {
+      const { report, waiting } = evaluateRow(raw, plan, name, lookups);
+      if (waiting) deferred.push({ raw, report });
+      else final.set(raw.row, report);
+    }
+    if (!deferred.length) break;
+    if (deferred.length === pending.length) {
+      for (const d of deferred) final.set(d.raw.row, d.report);
+      break;
+    }
+    pending = deferred.map((d) => d.raw);
+  }
+  plan.report.rows = rows.map((r) => final.get(r.row)!);
+  for (const r of plan.report.rows) plan.report.summary[r.action] += 1;
   return plan;
 }
 
@@ -155,12 +191,13 @@ interface Lookups {
 }
 
 /** Evaluates one row against the plan so far; the row's changes join the plan only when it is not refused. */
-function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookups): ImportRowReport {
+function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookups): { report: ImportRowReport; waiting: boolean } {
   const reasons = [...raw.reasons];
   const changes: string[] = [];
   const records: NonNullable<ImportRowReport['records']> = [];
   const staged: (() => void)[] = [];
-  const refuse = (): ImportRowReport => ({ row: raw.row, action: 'refuse', subject: raw.subject, reasons, records: [] });
+  let waiting = false;
+  const refuse = () => ({ report: { row: raw.row, action: 'refuse' as const, subject: raw.subject, reasons, records: [] }, waiting });
   if (reasons.length || !raw.line) return refuse();
 
   // ---- line ----
@@ -171,6 +208,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
   let lineAction: 'create' | 'update' | 'unchanged' = 'unchanged';
   let newLine: PlannedLine | null = null;
   if (!pl && !existingLine) {
+    waiting = Object.keys(given).length === 0;
     const parsed = lineCreateSchema.safeParse({ name: lineKey, ...given });
     if (!parsed.success) {
       reasons.push(...issuesOf(parsed.error, 'line', name).map((r) => `${r} (the line "${lineKey}" is new)`));
@@ -237,6 +275,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
     });
     pl = base;
   }
+  if (pl?.createdByRow === raw.row) lineAction = 'create';
   records.push({ type: 'line', action: lineAction, key: lineKey });
 
   // ---- structures ----
@@ -248,6 +287,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
     const existing = prior?.existing ?? (newLine ? null : db.dbStructureByKey.get(key)) ?? null;
     if (!prior && !existing) {
       const parsed = structureCreateSchema.safeParse({ lineId: 'import', label: st.label, ...givenSt });
+      if (!parsed.success && parsed.error.issues.every((i) => givenSt[String(i.path[0])] === undefined)) waiting = true;
       if (!parsed.success) {
         reasons.push(...issuesOf(parsed.error, st.role, name).map((r) => `${r} (structure "${st.label}" is new)`));
         continue;
@@ -266,7 +306,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
       records.push({ type: 'structure', action: 'create', key: st.label });
       continue;
     }
-    const parsed = structureCreateSchema.partial().safeParse(givenSt);
+    const parsed = structurePartialSchema.safeParse(givenSt);
     if (!parsed.success) {
       reasons.push(...issuesOf(parsed.error, st.role, name));
       continue;
@@ -440,7 +480,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
   for (const fn of staged) fn();
   for (const [k, s] of stagedStructures) plan.structures.set(k, s);
   const action: ImportRowReport['action'] = records.some((r) => r.action === 'create') ? 'create' : records.some((r) => r.action === 'update') ? 'update' : 'unchanged';
-  return { row: raw.row, action, subject: raw.subject, reasons: changes, records };
+  return { report: { row: raw.row, action, subject: raw.subject, reasons: changes, records }, waiting: false };
 }
 
 /**
@@ -451,6 +491,16 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
   const now = new Date();
   const lineByKey = new Map<string, Line>();
   const changedLineIds: string[] = [];
+  // New records go in as bulk inserts (thousands of rows); edits of existing ones through the unit of work.
+  const newLines: Line[] = [];
+  const newStructures: Structure[] = [];
+  const newSpans: Span[] = [];
+  const newHazards: Hazard[] = [];
+  const newAudits: Omit<AuditEntry, 'id'>[] = [];
+  const push = <T>(list: T[], row: T): T => {
+    list.push(row);
+    return row;
+  };
   for (const pl of plan.lines.values()) {
     if (pl.existing) {
       lineByKey.set(pl.key, pl.existing);
@@ -460,9 +510,9 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
       Object.assign(pl.existing, pl.fields, { updatedAt: now });
       audit(em, { actorId: user.id, action: 'line.import-update', recordType: 'line', recordId: pl.existing.id, before, after: { ...lineSnapshot(pl.existing), version: pl.existing.version + 1 } });
     } else {
-      const line = em.create(Line, { id: newId(), name: pl.key, ...pl.fields, version: 1, createdAt: now, updatedAt: now });
+      const line = push(newLines, { id: newId(), name: pl.key, ...pl.fields, version: 1, createdAt: now, updatedAt: now } as Line);
       lineByKey.set(pl.key, line);
-      audit(em, { actorId: user.id, action: 'line.import-create', recordType: 'line', recordId: line.id, before: null, after: lineSnapshot(line) });
+      push(newAudits, { at: now, actorId: user.id, action: 'line.import-create', recordType: 'line', recordId: line.id, before: null, after: lineSnapshot(line) });
     }
   }
   const structureByKey = new Map<string, Structure>();
@@ -476,9 +526,9 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
       moved.add(ps.existing.id);
       audit(em, { actorId: user.id, action: 'structure.import-update', recordType: 'structure', recordId: ps.existing.id, before, after: { ...structureSnapshot(ps.existing), version: ps.existing.version + 1 } });
     } else {
-      const s = em.create(Structure, { id: newId(), lineId: lineByKey.get(ps.lineKey)!.id, label: ps.label, ...ps.fields, version: 1, createdAt: now, updatedAt: now });
+      const s = push(newStructures, { id: newId(), lineId: lineByKey.get(ps.lineKey)!.id, label: ps.label, ...ps.fields, version: 1, createdAt: now, updatedAt: now } as Structure);
       structureByKey.set(ps.key, s);
-      audit(em, { actorId: user.id, action: 'structure.import-create', recordType: 'structure', recordId: s.id, before: null, after: structureSnapshot(s) });
+      push(newAudits, { at: now, actorId: user.id, action: 'structure.import-create', recordType: 'structure', recordId: s.id, before: null, after: structureSnapshot(s) });
     }
   }
   const touchedSpanIds = new Set<string>();
@@ -513,7 +563,7 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
       touchedSpanIds.add(span.id);
       audit(em, { actorId: user.id, action, recordType: 'span', recordId: span.id, before, after: { ...spanSnapshot(span, hazards), version: span.version + 1 } });
     } else {
-      const span = em.create(Span, {
+      const span = push(newSpans, {
         id: newId(),
         lineId: lineByKey.get(p.lineKey)!.id,
         fromStructureId: from.id,
@@ -530,10 +580,10 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
         approvedById: null,
         createdAt: now,
         updatedAt: now,
-      });
-      const hazards = p.hazards.map((h) => em.create(Hazard, { id: newId(), spanId: span.id, ...h, createdAt: now }));
+      } as Span);
+      const hazards = p.hazards.map((h) => push(newHazards, { id: newId(), spanId: span.id, ...h, createdAt: now } as Hazard));
       touchedSpanIds.add(span.id);
-      audit(em, { actorId: user.id, action: 'span.import-create', recordType: 'span', recordId: span.id, before: null, after: spanSnapshot(span, hazards) });
+      push(newAudits, { at: now, actorId: user.id, action: 'span.import-create', recordType: 'span', recordId: span.id, before: null, after: spanSnapshot(span, hazards) });
     }
   }
   // Spans outside the file whose structures moved: re-measured, and back to review when approved.
@@ -559,6 +609,15 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
     }
   }
   await em.flush();
+  for (const [entity, rows] of [
+    [Line, newLines],
+    [Structure, newStructures],
+    [Span, newSpans],
+    [Hazard, newHazards],
+    [AuditEntry, newAudits],
+  ] as const) {
+    for (const part of chunks(rows as object[], 400)) await em.insertMany(entity as any, part as any[]);
+  }
   // A changed load estimate changes the assessment of every span on the line.
   if (changedLineIds.length) for (const s of await em.find(Span, { lineId: { $in: changedLineIds } }, { fields: ['id'] })) touchedSpanIds.add(s.id);
   return [...touchedSpanIds];
