@@ -32,6 +32,7 @@ export function spanTilesFor(ctx: AppContext): SpanTileService {
     ctx.onClose(() => {
       off();
       offZone();
+      service.close();
     });
     services.set(ctx, (s = service));
   }

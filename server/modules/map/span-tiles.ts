@@ -13,12 +13,12 @@ const TILE_BUFFER = 64;
 export const FULL_DETAIL_ZOOM = 12;
 /** Structures are drawn from this zoom up (they would be a smear below it). */
 export const STRUCTURE_MIN_ZOOM = 13;
-/** Generalisation cell at low zooms, tile units (128/4096 ≈ 16 px of a 512 px tile). */
+/** Generalisation cell at zooms 10–11, tile units (128/4096 ≈ 16 px of a 512 px tile); twice that below zoom 10. */
 const GENERAL_CELL = 128;
 /** Grid bucket of the in-memory index, degrees. */
 const GRID_DEG = 0.01;
-/** The database fingerprint (catches changes made without a listener, e.g. background rescoring) is read at most this often. */
-const FINGERPRINT_EVERY_MS = 1000;
+/** The database fingerprint (catches changes made without a listener, e.g. background rescoring) is read this often, in the background. */
+const FINGERPRINT_EVERY_MS = 2000;
 const MAX_CACHED_TILES = 4000;
 
 /** The filters the map shares with the spans table (same names as its URL parameters). */
@@ -53,6 +53,7 @@ interface Snapshot {
   structureGrid: Map<number, number[]>;
 }
 
+const STATUS_INDEX: Record<string, number> = { draft: 0, submitted: 1, approved: 2, returned: 3, suspended: 4 };
 const gridKey = (gx: number, gy: number) => gx * 100000 + gy;
 const gx = (lon: number) => Math.floor((lon + 180) / GRID_DEG);
 const gy = (lat: number) => Math.floor((lat + 90) / GRID_DEG);
@@ -86,7 +87,9 @@ export class SpanTileService {
   private snapshots = new Map<string, Promise<Snapshot>>();
   private cache = new Map<string, Buffer>();
   private fingerprint: string | null = null;
-  private fingerprintAt = 0;
+  private watcher: NodeJS.Timeout | null = null;
+  private closed = false;
+  private defaultPair: Promise<TilePair | null> | null = null;
   readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0 };
 
   constructor(private readonly orm: MikroORM) {}
@@ -96,16 +99,15 @@ export class SpanTileService {
     this.version += 1;
     this.snapshots.clear();
     this.cache.clear();
+    this.defaultPair = null;
   }
 
   get dataVersion() {
     return this.version;
   }
 
-  private async checkFingerprint(em: EntityManager) {
-    const now = Date.now();
-    if (now - this.fingerprintAt < FINGERPRINT_EVERY_MS && this.fingerprint !== null) return;
-    this.fingerprintAt = now;
+  /** Reads the database's data fingerprint (counts and latest change times of spans, structures, assessments). */
+  private async readFingerprint(em: EntityManager): Promise<string> {
     const hasAssessments = await tableExists(em, 'assessments');
     const [row] = await em
       .getConnection()
@@ -113,14 +115,47 @@ export class SpanTileService {
         'select (select count(*) from spans) as sc, (select max(updated_at) from spans) as su, (select count(*) from structures) as tc, (select max(updated_at) from structures) as tu' +
           (hasAssessments ? ', (select count(*) from assessments) as ac, (select max(computed_at) from assessments) as au' : ''),
       );
-    const fp = JSON.stringify(row);
-    if (this.fingerprint !== null && fp !== this.fingerprint) this.invalidate();
-    this.fingerprint = fp;
+    return JSON.stringify(row);
+  }
+
+  /**
+   * Watches the fingerprint in the background (never on a tile request), so changes made without a listener
+   * (background rescoring, another process) also start a new data version within FINGERPRINT_EVERY_MS.
+   */
+  private ensureWatcher() {
+    if (this.watcher || this.closed) return;
+    let busy = false;
+    this.watcher = setInterval(() => {
+      if (busy || this.fingerprint === null) return;
+      busy = true;
+      this.readFingerprint(this.orm.em.fork())
+        .then((fp) => {
+          if (this.fingerprint !== null && fp !== this.fingerprint) {
+            this.invalidate();
+            this.fingerprint = fp;
+          }
+        })
+        .catch(() => undefined)
+        .finally(() => (busy = false));
+    }, FINGERPRINT_EVERY_MS);
+    this.watcher.unref();
+  }
+
+  /** Stops the background watcher (the app is closing). */
+  close() {
+    this.closed = true;
+    if (this.watcher) clearInterval(this.watcher);
+    this.watcher = null;
   }
 
   private async resolvePair(em: EntityManager, pair: Partial<TilePair>): Promise<TilePair | null> {
     if (pair.harvesterProfileId && pair.droneProfileId) return pair as TilePair;
-    return defaultAssessmentPair(em);
+    if (!this.defaultPair) {
+      const p = defaultAssessmentPair(em);
+      this.defaultPair = p;
+      p.catch(() => (this.defaultPair = null));
+    }
+    return this.defaultPair;
   }
 
   private loadSnapshot(pair: TilePair | null): Promise<Snapshot> {
@@ -138,6 +173,9 @@ export class SpanTileService {
     this.stats.snapshotLoads += 1;
     const em = this.orm.em.fork();
     const conn = em.getConnection();
+    // The fingerprint the snapshot is read at: the watcher compares later readings with it.
+    this.fingerprint = await this.readFingerprint(em);
+    this.ensureWatcher();
     const withAssessment = pair && (await tableExists(em, 'assessments'));
     const rows = await conn.execute<any[]>(
       'select s.id, s.line_id, s.status, s.length_m, a.lon as lon0, a.lat as lat0, b.lon as lon1, b.lat as lat1' +
@@ -199,7 +237,6 @@ export class SpanTileService {
   /** How many spans pass the map's filters and the box around them (for "fit to results"). */
   async bounds(filters: SpanMapFilters, pair: Partial<TilePair> = {}): Promise<{ count: number; bbox: [number, number, number, number] | null }> {
     const em = this.orm.em.fork();
-    await this.checkFingerprint(em);
     const snap = await this.loadSnapshot(await this.resolvePair(em, pair));
     let count = 0;
     let w = Infinity;
@@ -222,9 +259,7 @@ export class SpanTileService {
    * applied before the low-zoom generalisation (so a line or status filter stays exact at every zoom).
    */
   async tile(z: number, x: number, y: number, pair: Partial<TilePair> = {}, filters: SpanMapFilters = {}): Promise<Buffer> {
-    const em = this.orm.em.fork();
-    await this.checkFingerprint(em);
-    const resolved = await this.resolvePair(em, pair);
+    const resolved = await this.resolvePair(this.orm.em.fork(), pair);
     const key = `${resolved ? `${resolved.harvesterProfileId}|${resolved.droneProfileId}` : '-'}/${filterKey(filters)}/${z}/${x}/${y}`;
     const version = this.version;
     const hit = this.cache.get(key);
@@ -287,7 +322,8 @@ function buildTile(snap: Snapshot, z: number, x: number, y: number, filters: Spa
 
   const spans: VtFeature[] = [];
   const general = z < FULL_DETAIL_ZOOM;
-  const buckets = new Map<string, { feature: VtFeature; harvestW: number; score: number; count: number }>();
+  const buckets = new Map<number, { feature: VtFeature; harvestW: number; score: number; count: number }>();
+  const cellSize = z < 10 ? GENERAL_CELL * 2 : GENERAL_CELL;
   for (const i of candidates) {
     const minLon = Math.min(snap.lon0[i], snap.lon1[i]);
     const maxLon = Math.max(snap.lon0[i], snap.lon1[i]);
@@ -313,7 +349,7 @@ function buildTile(snap: Snapshot, z: number, x: number, y: number, filters: Spa
     // Generalised: per status and cell one representative span carrying the best harvest and score of its cell,
     // so the client's minimum-harvest / minimum-score filters keep every cell that has a qualifying span.
     // (A line filter is applied above, before this, when the tile URL carries it.)
-    const cell = `${snap.statuses[i]}|${Math.floor((x0 + x1) / 2 / GENERAL_CELL)}|${Math.floor((y0 + y1) / 2 / GENERAL_CELL)}`;
+    const cell = (STATUS_INDEX[snap.statuses[i]] ?? 7) * 1e8 + (Math.floor((x0 + x1) / 2 / cellSize) + 1000) * 1e4 + (Math.floor((y0 + y1) / 2 / cellSize) + 1000);
     const b = buckets.get(cell);
     const h = Number.isNaN(harvestW) ? -Infinity : harvestW;
     const s = Number.isNaN(score) ? -Infinity : score;
