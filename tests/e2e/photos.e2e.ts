@@ -6,11 +6,13 @@ import os from 'node:os';
 import path from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Page } from 'playwright-core';
 import { startHarness, type Harness } from './harness.ts';
 
 let h: Harness;
 let tmp: string;
 let photoPath: string;
+let noGpsPath: string;
 
 beforeAll(async () => {
   try {
@@ -25,6 +27,8 @@ beforeAll(async () => {
     .jpeg({ quality: 80 })
     .toBuffer();
   fs.writeFileSync(photoPath, jpeg);
+  noGpsPath = path.join(tmp, 'no-gps.jpg');
+  fs.writeFileSync(noGpsPath, await sharp({ create: { width: 400, height: 300, channels: 3, background: '#8a6' } }).jpeg().toBuffer());
   // 20 m north of the span's middle (the span built below runs east from -30.2, -130.3 for about 200 m).
   execFileSync('exiftool', ['-q', '-overwrite_original', '-GPSLatitude=30.19982', '-GPSLatitudeRef=S', '-GPSLongitude=130.29896', '-GPSLongitudeRef=W', '-DateTimeOriginal=2026:05:04 10:11:12', '-OffsetTimeOriginal=-09:00', photoPath]);
   h = await startHarness();
@@ -35,27 +39,34 @@ afterAll(async () => {
   if (tmp) fs.rmSync(tmp, { recursive: true, force: true });
 });
 
+/** A line, two structures about 200 m apart (east from -30.2, -130.3) and a span between them, through the API with the page's session. */
+async function makeSpan(page: Page): Promise<{ id: string }> {
+  const headers = { Origin: h.baseUrl };
+  const post = async (url: string, data: object) => {
+    const res = await page.request.post(url, { data, headers });
+    expect(res.status(), `${url}: ${await res.text()}`).toBe(201);
+    return res.json();
+  };
+  const line = await post('/api/lines', { name: `Photo journey feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
+  const a = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
+  const b = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
+  return post('/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id });
+}
+
 describe('photo journey', () => {
   it('when a surveyor adds a photo on the span form, then a progress bar runs, the thumbnail shows and the span gallery opens it', async () => {
     const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1300 } });
     await h.signIn(page, 'surveyor');
     await page.waitForURL((u) => u.pathname === '/field');
 
-    // A line, two structures and a span of its own, made through the API with the page's session.
-    const headers = { Origin: h.baseUrl };
-    const post = async (url: string, data: object) => {
-      const res = await page.request.post(url, { data, headers });
-      expect(res.status(), `${url}: ${await res.text()}`).toBe(201);
-      return res.json();
-    };
-    const line = await post('/api/lines', { name: `Photo journey feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
-    const a = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
-    const b = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
-    const span = await post('/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id });
+    const span = await makeSpan(page);
 
     await page.goto(`/field/spans/${span.id}/edit`);
     const uploader = page.getByTestId('photo-uploader');
-    await uploader.waitFor();
+    await uploader.waitFor({ timeout: 60_000 }).catch(async (err) => {
+      await page.screenshot({ path: path.join(os.tmpdir(), 'roostline-photo-e2e-failure.png') });
+      throw err;
+    });
 
     // Record every value the progress bar shows, from the page itself.
     await page.evaluate(() => {
@@ -106,6 +117,33 @@ describe('photo journey', () => {
     });
     expect(await full.evaluate((img: HTMLImageElement) => img.naturalWidth)).toBe(1200);
     await dialog.getByRole('button', { name: 'Close' }).click();
+    await dialog.waitFor({ state: 'hidden' });
+    await context.close();
+  }, 180_000);
+
+  it('when a photo has no GPS, then the surveyor places it by clicking the map and it is marked as placed by hand', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1100 } });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const span = await makeSpan(page);
+    await page.goto(`/field/spans/${span.id}/edit`);
+    await page.getByTestId('photo-input').setInputFiles(noGpsPath);
+    const row = page.getByTestId('photo-upload-row');
+    await row.getByText('No GPS in this file.').waitFor({ timeout: 60_000 });
+    await row.getByRole('button', { name: 'Place on the map' }).click();
+    const dialog = page.getByRole('dialog', { name: 'Place the photo on the map' });
+    await dialog.waitFor();
+    const canvas = dialog.locator('canvas.maplibregl-canvas');
+    await canvas.waitFor({ state: 'visible', timeout: 60_000 });
+    const box = (await canvas.boundingBox())!;
+    await canvas.click({ position: { x: box.width / 2, y: box.height / 2 } });
+    const lat = Number(await dialog.getByLabel(/Latitude/).inputValue());
+    const lon = Number(await dialog.getByLabel(/Longitude/).inputValue());
+    // The map opened on the span's middle (zoom 16), so its centre is within a few metres of it.
+    expect(lat).toBeCloseTo(-30.2, 3);
+    expect(lon).toBeCloseTo(-130.298965, 3);
+    await dialog.getByRole('button', { name: 'Place here' }).click();
+    await row.getByText('(placed by hand)').waitFor();
     await dialog.waitFor({ state: 'hidden' });
     await context.close();
   }, 180_000);

@@ -7,6 +7,7 @@ import { photoApi } from './api.ts';
 import { formatAltitude, formatBearing, formatBytes, formatPosition, formatTakenAt } from './format.ts';
 import { photoQueries } from './queries.ts';
 import type { Photo } from './types.ts';
+import { PlaceOnMapButton } from './photo-uploader.tsx';
 
 export function PhotoGallery({ spanId }: { spanId: string }) {
   const photos = useQuery(photoQueries.bySpan(spanId));
@@ -71,6 +72,15 @@ function PhotoDialog({
     if (d && !d.open) d.showModal();
   }, []);
   const canDelete = photo.uploaderId === me.id || me.roles.includes('admin');
+  const canPlace = photo.lat === null && (me.roles.includes('surveyor') || me.roles.includes('safety'));
+  const place = async (lat: number, lon: number) => {
+    try {
+      await photoApi.update(photo.id, { lat, lon });
+      await queryClient.invalidateQueries({ queryKey: photoQueries.all() });
+    } catch (err) {
+      setError(err instanceof Error ? err.message : 'Could not place the photo');
+    }
+  };
   const altitude =
     photo.altitudeM === null
       ? null
@@ -134,6 +144,11 @@ function PhotoDialog({
         <dd>
           {formatPosition(photo)}
           {photo.positionSource === 'manual' && ' (placed by hand)'}
+          {canPlace && (
+            <span className="ml-2">
+              <PlaceOnMapButton spanId={spanId} onPlace={(lat, lon) => void place(lat, lon)} />
+            </span>
+          )}
         </dd>
         {altitude && (
           <>

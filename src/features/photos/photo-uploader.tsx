@@ -1,13 +1,16 @@
 // Field uploader: camera or gallery, one upload per file with its own progress bar, retry, then the
 // thumbnail and the spans within 60 m for the surveyor to confirm.
-import { useCallback, useEffect, useId, useRef, useState } from 'react';
+import { lazy, Suspense, useCallback, useEffect, useId, useRef, useState } from 'react';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { ApiError } from '../../lib/api.ts';
-import { spanQueries } from '../spans/queries.ts';
+import { inventoryQueries, spanQueries } from '../spans/queries.ts';
 import { photoApi, uploadPhoto, type UploadHandle } from './api.ts';
 import { formatBytes, formatPosition, formatTakenAt } from './format.ts';
 import { photoQueries } from './queries.ts';
 import { MAX_UPLOAD_BYTES, type PhotoWithSuggestions } from './types.ts';
+
+// The map (and maplibre) loads only when someone places a photo by hand.
+const PhotoPlaceDialog = lazy(() => import('./photo-place-dialog.tsx'));
 
 type Status = 'queued' | 'uploading' | 'processing' | 'done' | 'failed';
 
@@ -288,6 +291,41 @@ function PhotoFacts({ photo }: { photo: PhotoWithSuggestions }) {
   );
 }
 
+/** The middle of a span (between its structures), to open the placing map there. */
+export function useSpanMidpoint(spanId: string | null): { lat: number; lon: number } | null {
+  const span = useQuery({ ...spanQueries.detail(spanId ?? ''), enabled: !!spanId });
+  const structures = useQuery(inventoryQueries.structures(span.data?.lineId ?? ''));
+  const a = structures.data?.find((s) => s.id === span.data?.fromStructureId);
+  const b = structures.data?.find((s) => s.id === span.data?.toStructureId);
+  return a && b ? { lat: (a.lat + b.lat) / 2, lon: (a.lon + b.lon) / 2 } : null;
+}
+
+/** "Place on the map" for a photo without position; the dialog is loaded on first use. */
+export function PlaceOnMapButton({ spanId, onPlace }: { spanId: string | null; onPlace: (lat: number, lon: number) => void }) {
+  const [open, setOpen] = useState(false);
+  const center = useSpanMidpoint(open ? spanId : null);
+  return (
+    <>
+      <button type="button" className="btn-ghost min-h-10 px-2 text-xs" onClick={() => setOpen(true)}>
+        Place on the map
+      </button>
+      {open && (
+        <Suspense fallback={<span className="text-xs text-ink-700">Loading the map…</span>}>
+          <PhotoPlaceDialog
+            key={center ? 'span' : 'region'}
+            center={center}
+            onClose={() => setOpen(false)}
+            onPlace={(at) => {
+              setOpen(false);
+              onPlace(at.lat, at.lon);
+            }}
+          />
+        </Suspense>
+      )}
+    </>
+  );
+}
+
 export function SpanName({ id }: { id: string }) {
   const span = useQuery(spanQueries.detail(id));
   if (!span.data) return <span>span {id.slice(0, 6)}…</span>;
@@ -354,6 +392,7 @@ function LinkChoices({
       {photo.lat === null && (
         <div className="flex flex-wrap items-center gap-2">
           <span className="text-xs text-ink-700">No GPS in this file.</span>
+          <PlaceOnMapButton spanId={spanId} onPlace={onPlace} />
           <button type="button" className="btn-ghost min-h-10 px-2 text-xs" onClick={useHere}>
             Use my current position
           </button>
