@@ -58,4 +58,36 @@ describe('invitation journey', () => {
     await expect.poll(() => admin.page.getByRole('button', { name: /^Deactivate / }).count(), { timeout: 5000 }).toBe(1);
     for (const p of [admin, invitee, again]) await p.context.close();
   });
+
+  it('when a user forgets the password, then the sign-in page leads to a reset link by e-mail and the new password signs in', async () => {
+    const user = await h.newPage();
+    await user.page.goto('/sign-in');
+    await user.page.getByRole('link', { name: 'Forgot password?' }).click();
+    await user.page.waitForURL((u) => u.pathname === '/forgot-password');
+    await user.page.getByLabel('E-mail').fill('planner@roostline.test');
+    await user.page.getByRole('button', { name: 'Send the link' }).click();
+    await user.page.getByText('If an account uses that e-mail').waitFor();
+
+    const admin = await h.newPage();
+    await h.signIn(admin.page, 'admin');
+    await admin.page.waitForURL((u) => u.pathname === '/admin');
+    await admin.page.goto('/admin/outbox');
+    const message = admin.page.getByRole('button', { name: /Reset your Roostline password\s*planner@roostline.test/ }).first();
+    await message.waitFor({ timeout: 15_000 });
+    await message.click();
+    const href = await admin.page.locator('a[href*="/reset-password?token="]').first().getAttribute('href');
+    expect(href).toBeTruthy();
+
+    await user.page.goto(href!);
+    await user.page.getByLabel('New password').fill('kingfisher-at-the-ford');
+    await user.page.getByLabel('Repeat the password').fill('kingfisher-at-the-fjord');
+    await user.page.getByRole('button', { name: 'Change password' }).click();
+    await user.page.getByText('The two passwords differ').waitFor();
+    await user.page.getByLabel('Repeat the password').fill('kingfisher-at-the-ford');
+    await user.page.getByRole('button', { name: 'Change password' }).click();
+    await user.page.getByText('Your password is changed').waitFor();
+    await h.signIn(user.page, 'planner', 'kingfisher-at-the-ford');
+    await user.page.waitForURL((u) => u.pathname === '/planning');
+    for (const p of [admin, user]) await p.context.close();
+  });
 });
