@@ -147,4 +147,25 @@ describe('photo journey', () => {
     await dialog.waitFor({ state: 'hidden' });
     await context.close();
   }, 180_000);
+
+  it('when the connection drops during an upload, then the row says so and "Try again" finishes it', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1100 } });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const span = await makeSpan(page);
+    await page.goto(`/field/spans/${span.id}/edit`);
+    await page.getByTestId('photo-uploader').waitFor({ timeout: 60_000 });
+    const cdp = await context.newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: true, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    await page.getByTestId('photo-input').setInputFiles(photoPath);
+    const row = page.getByTestId('photo-upload-row');
+    await row.getByRole('alert').waitFor({ timeout: 30_000 });
+    expect(await row.getByRole('alert').innerText()).toContain('connection dropped');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    await row.getByRole('button', { name: 'Try again' }).click();
+    await row.getByTestId('photo-thumbnail').waitFor({ timeout: 60_000 });
+    expect(await row.getAttribute('data-status')).toBe('done');
+    await context.close();
+  }, 180_000);
 });
