@@ -13,6 +13,7 @@ import type {
   Structure as StructureView,
 } from '#shared/schemas/inventory.ts';
 import { AppError } from '../../http/errors.ts';
+import { assessmentForSpans, defaultPairIds } from '../assessment/assessment.service.ts';
 import { ConductorType } from './conductor-type.entity.ts';
 import { Hazard } from './hazard.entity.ts';
 import { HazardKind } from './hazard-kind.entity.ts';
@@ -80,7 +81,7 @@ export function spanLineString(from: Pick<Structure, 'lat' | 'lon'>, to: Pick<St
   return { type: 'LineString' as const, coordinates: [[from.lon, from.lat], [to.lon, to.lat]] };
 }
 
-// ---------- optional neighbours (photos, assessments), read by table so inventory does not import them ----------
+// ---------- neighbours: photos (read by table) and the stored assessments ----------
 
 const tableCache = new WeakMap<object, Map<string, boolean>>();
 export async function tableExists(em: EntityManager, name: string): Promise<boolean> {
@@ -94,58 +95,16 @@ export async function tableExists(em: EntityManager, name: string): Promise<bool
   return exists;
 }
 
-/** The default harvester × drone pair (first active of each by sortOrder), or null when none / no profiles. */
+/** The default harvester × drone pair (first active of each, as the assessment module defines it), or null. */
 export async function defaultAssessmentPair(em: EntityManager): Promise<{ harvesterProfileId: string; droneProfileId: string } | null> {
-  if (!(await tableExists(em, 'assessments')) || !(await tableExists(em, 'harvester_profiles')) || !(await tableExists(em, 'drone_profiles'))) return null;
-  const [row] = await em
-    .getConnection()
-    .execute<{ h: string | null; d: string | null }[]>(
-      'select (select id from harvester_profiles where active = 1 order by sort_order, created_at, id limit 1) as h, ' +
-        '(select id from drone_profiles where active = 1 order by sort_order, created_at, id limit 1) as d',
-    );
-  return row?.h && row?.d ? { harvesterProfileId: row.h, droneProfileId: row.d } : null;
+  return defaultPairIds(em);
 }
 
-function parseJson(v: unknown): any {
-  if (typeof v !== 'string') return v ?? null;
-  try {
-    return JSON.parse(v);
-  } catch {
-    return null;
-  }
-}
-
+/** The stored assessment of the default pair per span, in the shape the assessment module gives it. */
 async function assessmentsFor(em: EntityManager, spanIds: string[]): Promise<Map<string, SpanAssessmentSummary>> {
   const out = new Map<string, SpanAssessmentSummary>();
   if (!spanIds.length) return out;
-  const pair = await defaultAssessmentPair(em);
-  if (!pair) return out;
-  for (const chunk of chunks(spanIds, 400)) {
-    const rows = await em
-      .getConnection()
-      .execute<any[]>(
-        `select * from assessments where harvester_profile_id = ? and drone_profile_id = ? and span_id in (${chunk.map(() => '?').join(',')})`,
-        [pair.harvesterProfileId, pair.droneProfileId, ...chunk],
-      );
-    for (const r of rows) {
-      const result = parseJson(r.result) ?? {};
-      out.set(r.span_id, {
-        ...result,
-        perchable: !!r.perchable,
-        score: r.score,
-        harvestW: r.harvest_w,
-        chargeTimeMin: r.charge_time_min ?? null,
-        conductorTempC: r.conductor_temp_c ?? null,
-        ampacityA: r.ampacity_a ?? null,
-        gates: result.gates ?? [],
-        factors: result.factors ?? [],
-        methodVersion: r.method_version,
-        harvesterProfileId: r.harvester_profile_id,
-        droneProfileId: r.drone_profile_id,
-        computedAt: typeof r.computed_at === 'number' ? new Date(r.computed_at).toISOString() : r.computed_at,
-      });
-    }
-  }
+  for (const [id, view] of await assessmentForSpans(em, spanIds)) if (view) out.set(id, view as unknown as SpanAssessmentSummary);
   return out;
 }
 

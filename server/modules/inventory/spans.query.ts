@@ -1,10 +1,10 @@
 // GET /api/spans: server-side filtering, sorting and pagination in one SQL query.
-// The default assessment (first active harvester × drone) is joined when the assessments table exists,
-// so harvest power and score can filter and sort.
+// The stored assessment of the default pair (first active harvester × drone) is joined, so harvest power
+// and score can filter and sort; a span without one has no harvest figure and meets no minimum.
 import type { EntityManager } from '@mikro-orm/core';
 import type { Page, Span as SpanView, SpanListQuery, SpanSortKey } from '#shared/schemas/inventory.ts';
 import { Span } from './span.entity.ts';
-import { defaultAssessmentPair, spanViews, tableExists } from './inventory.service.ts';
+import { defaultAssessmentPair, spanViews } from './inventory.service.ts';
 
 export interface SpanFilter {
   status?: string[];
@@ -45,7 +45,7 @@ async function buildQuery(em: EntityManager, f: SpanFilter) {
     'left join structures fs on fs.id = s.from_structure_id ' +
     'left join structures ts on ts.id = s.to_structure_id ';
   const pair = await defaultAssessmentPair(em);
-  const hasAssessment = !!pair && (await tableExists(em, 'assessments'));
+  const hasAssessment = !!pair;
   if (hasAssessment) {
     from += 'left join assessments a on a.span_id = s.id and a.harvester_profile_id = ? and a.drone_profile_id = ? ';
     params.push(pair!.harvesterProfileId, pair!.droneProfileId);
