@@ -296,6 +296,24 @@ describe('users and crews', () => {
     expect(upd[0].after).toEqual({ roles: ['planner', 'admin'] });
   });
 
+  it('when two admins remove each other at the same moment, then exactly one change goes through', async () => {
+    const plannerId = await userId('planner@roostline.test');
+    const adminId = await userId('admin@roostline.test');
+    expect((await admin.patch(`/api/admin/users/${plannerId}`, { roles: ['planner', 'admin'] })).status).toBe(200);
+    const planner = await t.as('planner');
+    const [a, b] = await Promise.all([
+      admin.patch(`/api/admin/users/${plannerId}`, { roles: ['planner'] }),
+      planner.patch(`/api/admin/users/${adminId}`, { roles: ['safety'] }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const admins = (await t.orm.em.fork().find(User, { active: true })).filter((u) => u.roles.includes('admin'));
+    expect(admins).toHaveLength(1);
+    // Put the demo roles back for the other tests.
+    const em = t.orm.em.fork();
+    await em.nativeUpdate(User, { id: adminId }, { roles: ['admin'] });
+    await em.nativeUpdate(User, { id: plannerId }, { roles: ['planner'] });
+  });
+
   it('when an admin edits name and crew, then the change and its audit entry land', async () => {
     const crew = await admin.post('/api/admin/crews', { name: 'Willow Ford crew' });
     expect(crew.status).toBe(201);

@@ -8,6 +8,17 @@ import { AppError } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
 import { Crew, User } from '../auth/user.entity.ts';
 
+/**
+ * Role changes and deactivations run one at a time (one app process serves the database), so two admins
+ * removing each other at the same moment cannot both pass the last-admin check.
+ */
+let accountChanges: Promise<unknown> = Promise.resolve();
+function oneAtATime<T>(fn: () => Promise<T>): Promise<T> {
+  const run = accountChanges.then(fn, fn);
+  accountChanges = run.catch(() => undefined);
+  return run;
+}
+
 export const LAST_ADMIN = 'Roostline needs at least one active admin: give another account the admin role first';
 
 export function toAdminUser(u: User, crewNames: Map<string, string>): AdminUser {
@@ -54,11 +65,16 @@ export async function adminUserView(em: EntityManager, user: User) {
 
 /** Refuses a change that would leave no active admin. */
 async function assertAnotherActiveAdmin(em: EntityManager, user: User) {
-  const admins = (await em.find(User, { active: true })).filter((u) => u.roles.includes('admin') && u.id !== user.id);
+  const admins = (await em.find(User, { active: true }, { refresh: true })).filter((u) => u.roles.includes('admin') && u.id !== user.id);
   if (admins.length === 0) throw AppError.conflict(LAST_ADMIN);
 }
 
-export async function updateUser(em: EntityManager, user: User, input: UserUpdateInput, actor: User) {
+export function updateUser(em: EntityManager, user: User, input: UserUpdateInput, actor: User) {
+  return oneAtATime(() => applyUserUpdate(em, user, input, actor));
+}
+
+async function applyUserUpdate(em: EntityManager, user: User, input: UserUpdateInput, actor: User) {
+  await em.refresh(user);
   if (input.crewId && !(await em.findOne(Crew, { id: input.crewId }))) throw AppError.field('crewId', 'No such crew');
   if (input.roles && user.active && user.roles.includes('admin') && !input.roles.includes('admin')) await assertAnotherActiveAdmin(em, user);
   const before: Record<string, unknown> = {};
@@ -77,7 +93,12 @@ export async function updateUser(em: EntityManager, user: User, input: UserUpdat
 }
 
 /** Deactivation ends every session of the account at once; sign-in is refused from then on. */
-export async function deactivateUser(em: EntityManager, lucia: AppLucia, user: User, actor: User) {
+export function deactivateUser(em: EntityManager, lucia: AppLucia, user: User, actor: User) {
+  return oneAtATime(() => applyDeactivation(em, lucia, user, actor));
+}
+
+async function applyDeactivation(em: EntityManager, lucia: AppLucia, user: User, actor: User) {
+  await em.refresh(user);
   if (user.id === actor.id) throw AppError.conflict('You cannot deactivate your own account; ask another admin');
   if (!user.active) return user;
   if (user.roles.includes('admin')) await assertAnotherActiveAdmin(em, user);
