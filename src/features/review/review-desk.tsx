@@ -132,6 +132,11 @@ export function ReviewDesk() {
               ))}
             </ol>
           )}
+          {list.data && list.data.total > spans.length && (
+            <p className="border-t border-ink-100 px-4 py-2 text-sm text-ink-700">
+              Showing the {spans.length} longest-waiting of {list.data.total}; the <Link to={`/spans?status=${kind}`} className="underline">spans table</Link> has them all.
+            </p>
+          )}
         </section>
         {current ? (
           <SpanReview key={current.id} spanId={current.id} listed={current} mode={mode} setMode={setMode} decide={decide} />
