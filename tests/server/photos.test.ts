@@ -19,7 +19,7 @@ import { Span } from '../../server/modules/inventory/span.entity.ts';
 import { Hazard } from '../../server/modules/inventory/hazard.entity.ts';
 import { Photo } from '../../server/modules/photos/photo.entity.ts';
 import { AuditEntry } from '../../server/modules/audit/audit.entity.ts';
-import { storePhotos } from '../../server/modules/photos/photo.service.ts';
+import { storePhotos, sweepOrphans } from '../../server/modules/photos/photo.service.ts';
 import { processPhoto } from '../../server/modules/photos/photo.pipeline.ts';
 import { localDiskStorage, type PhotoStorage } from '../../server/modules/photos/photo.storage.ts';
 
@@ -315,6 +315,24 @@ describe('refused files leave nothing behind', () => {
     expect(puts).toBe(5);
     expect(storedFiles()).toEqual(before);
     expect(await t.orm.em.fork().count(Photo)).toBe(rows);
+  });
+
+  it('when files without a photo row are older than an hour, then the orphan sweep removes them and keeps the rest', async () => {
+    const ok = await upload(surveyor, 'plain');
+    const disk = localDiskStorage(uploadsDir);
+    await disk.put('photos/orphanold.original', files.plain, 'image/jpeg');
+    await disk.put('photos/orphanold.thumb.jpg', files.plain, 'image/jpeg');
+    await disk.put('photos/orphannew.original', files.plain, 'image/jpeg');
+    const hourAgo = new Date(Date.now() - 2 * 3600_000);
+    fs.utimesSync(path.join(uploadsDir, 'photos/orphanold.original'), hourAgo, hourAgo);
+    fs.utimesSync(path.join(uploadsDir, 'photos/orphanold.thumb.jpg'), hourAgo, hourAgo);
+    for (const suffix of ['.original', '.display.jpg', '.thumb.jpg']) fs.utimesSync(path.join(uploadsDir, `photos/${ok.body.id}${suffix}`), hourAgo, hourAgo);
+    const removed = await sweepOrphans(t.orm.em.fork(), disk);
+    expect(removed.sort()).toEqual(['photos/orphanold.original', 'photos/orphanold.thumb.jpg']);
+    const left = storedFiles();
+    expect(left).toContain('photos/orphannew.original');
+    expect(left).toEqual(expect.arrayContaining([`photos/${ok.body.id}.original`, `photos/${ok.body.id}.display.jpg`, `photos/${ok.body.id}.thumb.jpg`]));
+    await disk.delete('photos/orphannew.original');
   });
 
   it('when the client’s file name tries to climb out of the folder, then it never reaches the file system', async () => {

@@ -11,7 +11,7 @@ import { Hazard } from '../inventory/hazard.entity.ts';
 import { Photo } from './photo.entity.ts';
 import { localDiskStorage, type PhotoStorage } from './photo.storage.ts';
 import { processPhoto, type ProcessedPhoto } from './photo.pipeline.ts';
-import { deletePhoto, snapshot, storePhotos, suggestSpans, toApi, variantKey, type PhotoVariant } from './photo.service.ts';
+import { deletePhoto, snapshot, storePhotos, suggestSpans, sweepOrphans, toApi, variantKey, type PhotoVariant } from './photo.service.ts';
 import type { EntityManager } from '@mikro-orm/core';
 
 /** Most files one request may carry in the `photos` field. */
@@ -99,6 +99,20 @@ async function withSuggestions(em: EntityManager, p: Photo) {
 
 export function photosRouter(ctx: AppContext, storage: PhotoStorage = localDiskStorage(ctx.config.uploadsDir)) {
   const r = featureRouter('/api/photos');
+
+  // Once after start-up: remove files a crash left without a photo row (older than an hour).
+  let sweeping: Promise<unknown> | null = null;
+  const timer = setTimeout(() => {
+    sweeping = sweepOrphans(ctx.orm.em.fork(), storage).then(
+      (removed) => removed.length && console.log(`photos: removed ${removed.length} orphaned file(s)`),
+      (err) => console.error('photos: orphan sweep failed', err),
+    );
+  }, 15_000);
+  timer.unref();
+  ctx.onClose(async () => {
+    clearTimeout(timer);
+    await sweeping;
+  });
 
   const load = async (em: EntityManager, id: string) => {
     const photo = await em.findOne(Photo, { id });

@@ -174,3 +174,28 @@ export async function deletePhoto(em: EntityManager, storage: PhotoStorage, phot
   await em.flush();
   await Promise.allSettled((Object.keys(VARIANT_SUFFIX) as PhotoVariant[]).map((v) => storage.delete(variantKey(photo, v))));
 }
+
+/**
+ * Deletes stored files no photo row refers to (left by a crash between writing files and saving the row,
+ * or a temp file of an interrupted write). Only files older than `olderThanMs` go, so uploads in flight are safe.
+ */
+export async function sweepOrphans(em: EntityManager, storage: PhotoStorage, olderThanMs = 60 * 60_000, now = new Date()): Promise<string[]> {
+  if (!storage.list) return [];
+  const keys = (await storage.list('photos/')).filter((k) => now.getTime() - k.modifiedAt.getTime() > olderThanMs);
+  if (!keys.length) return [];
+  const idOf = (key: string) => key.slice('photos/'.length).split('.')[0];
+  const ids = [...new Set(keys.map((k) => idOf(k.key)))];
+  const known = new Set<string>();
+  for (let i = 0; i < ids.length; i += 500) {
+    const rows = await em.find(Photo, { id: { $in: ids.slice(i, i + 500) } }, { fields: ['id'] });
+    for (const r of rows) known.add(r.id);
+  }
+  const removed: string[] = [];
+  for (const { key } of keys) {
+    const known_ = known.has(idOf(key)) && !key.endsWith('.tmp');
+    if (known_) continue;
+    await storage.delete(key);
+    removed.push(key);
+  }
+  return removed;
+}
