@@ -13,7 +13,7 @@ const TILE_BUFFER = 64;
 export const FULL_DETAIL_ZOOM = 12;
 /** Structures are drawn from this zoom up (they would be a smear below it). */
 export const STRUCTURE_MIN_ZOOM = 13;
-/** Generalisation cell at zooms 10–11, tile units (128/4096 ≈ 16 px of a 512 px tile); twice that below zoom 10. */
+/** Generalisation cell at zoom 11, tile units (128/4096 ≈ 16 px of a 512 px tile); twice that at zoom 10 and below. */
 const GENERAL_CELL = 128;
 /** Grid bucket of the in-memory index, degrees. */
 const GRID_DEG = 0.01;
@@ -323,7 +323,7 @@ function buildTile(snap: Snapshot, z: number, x: number, y: number, filters: Spa
   const spans: VtFeature[] = [];
   const general = z < FULL_DETAIL_ZOOM;
   const buckets = new Map<number, { feature: VtFeature; harvestW: number; score: number; count: number }>();
-  const cellSize = z < 10 ? GENERAL_CELL * 2 : GENERAL_CELL;
+  const cellSize = z <= 10 ? GENERAL_CELL * 2 : GENERAL_CELL;
   for (const i of candidates) {
     const minLon = Math.min(snap.lon0[i], snap.lon1[i]);
     const maxLon = Math.max(snap.lon0[i], snap.lon1[i]);
