@@ -192,8 +192,7 @@ export async function sweepOrphans(em: EntityManager, storage: PhotoStorage, old
   }
   const removed: string[] = [];
   for (const { key } of keys) {
-    const known_ = known.has(idOf(key)) && !key.endsWith('.tmp');
-    if (known_) continue;
+    if (known.has(idOf(key)) && !key.endsWith('.tmp')) continue;
     await storage.delete(key);
     removed.push(key);
   }
