@@ -6,6 +6,7 @@ import { Span } from '../../server/modules/inventory/span.entity.ts';
 import { Structure } from '../../server/modules/inventory/structure.entity.ts';
 import { AuditEntry } from '../../server/modules/audit/audit.entity.ts';
 import { xmlEscape } from '../../server/modules/import-export/formats.ts';
+import { INVENTORY_CSV_COLUMNS } from '../../shared/schemas/inventory.ts';
 import { geodesicInverse } from '../../shared/engineering/geodesic.ts';
 
 let t: TestApp;
@@ -130,6 +131,14 @@ describe('CSV import', () => {
     const r2 = await surveyor.post('/api/import/dry-run', { format: 'csv', text: 'name,lat\nx,1' });
     expect(r2.body.rows[0]).toMatchObject({ row: 0, action: 'refuse' });
     expect(r2.body.rows[0].reasons[0]).toMatch(/line_name, from_label, to_label/);
+  });
+
+  it('when the template is downloaded and dry-run, then its example row would be created', async () => {
+    const tpl = await planner.get('/api/import/template.csv');
+    expect(tpl.status).toBe(200);
+    expect(tpl.text.split('\r\n')[0]).toBe(INVENTORY_CSV_COLUMNS.join(','));
+    const res = await surveyor.post('/api/import/dry-run', { format: 'csv', text: tpl.text });
+    expect(res.body.rows).toEqual([expect.objectContaining({ row: 1, action: 'create', reasons: [] })]);
   });
 
   it('when a planner or safety officer imports, then 403; admin may', async () => {

@@ -2,7 +2,8 @@
 import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
 import multer from 'multer';
 import { z } from 'zod';
-import { IMPORT_FORMATS, spanListQuerySchema, type ImportFormat } from '#shared/schemas/inventory.ts';
+import Papa from 'papaparse';
+import { IMPORT_FORMATS, INVENTORY_CSV_COLUMNS, spanListQuerySchema, type ImportFormat } from '#shared/schemas/inventory.ts';
 import type { AppContext } from '../../context.ts';
 import { currentUser, featureRouter } from '../../http/access.ts';
 import { AppError, errorBody, parse } from '../../http/errors.ts';
@@ -74,6 +75,50 @@ export function importExportRouter(_ctx: AppContext) {
   imp.post('/commit', ['surveyor', 'admin'], textBody, receive, async (req, res) => {
     const { format, text } = importSource(req);
     res.json(await commitImport(req.em, currentUser(req), format, text));
+  });
+
+  // A starting file: the columns with one example span (invented), for people building an import by hand.
+  imp.get('/template.csv', 'signed-in', (_req, res) => {
+    const example: Record<(typeof INVENTORY_CSV_COLUMNS)[number], string> = {
+      line_name: 'Example Feeder 9',
+      line_owner: 'Harrow Vale Power Cooperative',
+      voltage_kv: '12.47',
+      frequency_hz: '60',
+      phases: '3',
+      load_typical_a: '150',
+      load_min_a: '50',
+      load_peak_a: '240',
+      load_profile_a: '',
+      from_label: 'EX9-001',
+      from_lat: '-30.21',
+      from_lon: '-130.31',
+      from_kind: 'pole',
+      from_attachment_height_m: '11.5',
+      to_label: 'EX9-002',
+      to_lat: '-30.2105',
+      to_lon: '-130.309',
+      to_kind: 'pole',
+      to_attachment_height_m: '11.5',
+      conductor_code_word: 'Penguin',
+      conductor_size: '',
+      conductor_material: '',
+      conductor_diameter_mm: '',
+      conductor_resistance_low_ohm_per_m: '',
+      conductor_temp_low_c: '',
+      conductor_resistance_high_ohm_per_m: '',
+      conductor_temp_high_c: '',
+      phase_position: 'B (centre)',
+      clearance_m: '7.2',
+      lowest_clearance_m: '6.9',
+      terrain: 'open-field',
+      load_current_a: '',
+      survey_date: '2026-11-02',
+      hazards: JSON.stringify([{ kindId: 'road-crossing', severity: 'medium', positionAlongM: 30, note: 'Farm road' }]),
+    };
+    res
+      .type('text/csv; charset=utf-8')
+      .attachment('roostline-inventory-template.csv')
+      .send(Papa.unparse({ fields: [...INVENTORY_CSV_COLUMNS], data: [INVENTORY_CSV_COLUMNS.map((c) => example[c])] }, { newline: '\r\n' }) + '\r\n');
   });
 
   const exp = featureRouter('/api/spans');
