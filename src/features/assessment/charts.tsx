@@ -7,6 +7,7 @@ const INK = '#1d4f57';
 const BRASS = '#c98f28';
 const ALARM = '#b3261e';
 const GRID = '#dce9ea';
+const SHORT = '#b6d0d3';
 
 /** Each factor's points against the most it could give (its weight share of 100). */
 export function FactorContributionChart({ factors }: { factors: FactorView[] }) {
@@ -24,9 +25,9 @@ export function FactorContributionChart({ factors }: { factors: FactorView[] }) 
           <XAxis type="number" domain={[0, 'dataMax']} unit=" pt" />
           <YAxis type="category" dataKey="name" width={170} tick={{ fontSize: 13 }} />
           <Tooltip formatter={(v, name) => [`${v} points`, name === 'contribution' ? 'contributes' : 'short of its weight']} />
-          <Legend formatter={(v) => (v === 'contribution' ? 'Points contributed' : 'Points short of the factor’s weight')} />
+          <Legend formatter={(v) => <span className="text-ink-800">{v === 'contribution' ? 'Points contributed' : 'Points short of the factor’s weight'}</span>} />
           <Bar dataKey="contribution" stackId="a" fill={INK} isAnimationActive={false} />
-          <Bar dataKey="missed" stackId="a" fill={GRID} isAnimationActive={false} />
+          <Bar dataKey="missed" stackId="a" fill={SHORT} isAnimationActive={false} />
         </BarChart>
       </ResponsiveContainer>
     </div>
