@@ -123,6 +123,19 @@ describe('versioned edits', () => {
     expect(saved.body).toMatchObject({ version: 2, clearanceM: 9.1, terrain: 'open-field' });
   });
 
+  it('when two saves of the same version race, then exactly one wins and the other gets 409', async () => {
+    const { spans } = await fresh(2);
+    const id = spans[0].id;
+    const [a, b] = await Promise.all([
+      surveyor.patch(`/api/spans/${id}`, { version: 1, clearanceM: 9.3 }),
+      surveyor.patch(`/api/spans/${id}`, { version: 1, clearanceM: 9.4 }),
+    ]);
+    expect([a.status, b.status].sort()).toEqual([200, 409]);
+    const winner = a.status === 200 ? a : b;
+    const saved = await planner.get(`/api/spans/${id}`);
+    expect(saved.body).toMatchObject({ version: 2, clearanceM: winner.body.clearanceM });
+  });
+
   it('when version is missing, then 400 names version', async () => {
     const { spans } = await fresh(2);
     const res = await surveyor.patch(`/api/spans/${spans[0].id}`, { clearanceM: 9 });
