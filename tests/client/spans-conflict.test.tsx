@@ -72,6 +72,18 @@ describe('version conflict', () => {
     expect(merged.hazards).toHaveLength(1);
   });
 
+  it('when the panel knows where the user started, then fields only the other person changed default to the saved reading', () => {
+    const onResolve = vi.fn();
+    render(<ConflictPanel mine={mine} base={spanToFormValues(saved, 'metric')} saved={theirs} unitSystem="metric" lookups={lookups} busy={false} onResolve={onResolve} />);
+    const lowest = screen.getAllByRole('row').find((r) => r.getAttribute('data-conflict-field') === 'lowestClearance')!;
+    expect(within(lowest).getByText('changed by someone else')).toBeTruthy();
+    expect((screen.getByLabelText(/Lowest clearance: keep saved/) as HTMLInputElement).checked).toBe(true);
+    expect((screen.getByLabelText(/Clearance at the perch point: keep mine/) as HTMLInputElement).checked).toBe(true);
+    fireEvent.click(screen.getByRole('button', { name: 'Save my choices on version 6' }));
+    const [keys] = onResolve.mock.calls[0] as [Set<ConflictKey>, boolean];
+    expect([...keys].sort()).toEqual(['clearance', 'hazards', 'terrain']);
+  });
+
   it('when the user keeps the saved record, then nothing of theirs is applied', () => {
     const onResolve = vi.fn();
     render(<ConflictPanel mine={mine} saved={theirs} unitSystem="metric" lookups={lookups} busy={false} onResolve={onResolve} />);

@@ -1,6 +1,9 @@
 // A span from the field to the planner: surveyor fills the tablet form (US units), saves a draft, submits;
 // a safety officer approves; a planner finds it in the spans table by filter, from a shareable URL.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import fs from 'node:fs';
+import path from 'node:path';
+import Papa from 'papaparse';
 import type { Page } from 'playwright-core';
 import { startHarness, type Harness } from './harness.ts';
 
@@ -26,9 +29,16 @@ async function apiCall(page: Page, method: 'post' | 'patch', url: string, data: 
 
 let spanId = '';
 
+/** A page with room for a busy machine: the shared CI box runs several browser journeys at once. */
+async function open(opts?: Parameters<Harness['newPage']>[0]) {
+  const p = await h.newPage(opts);
+  p.context.setDefaultTimeout(60_000);
+  return p;
+}
+
 describe('span journey', () => {
   it('when a surveyor fills the form on a tablet, saves a draft and submits, then the span is awaiting review in SI units', async () => {
-    const { context, page } = await h.newPage({ viewport: TABLET, hasTouch: true });
+    const { context, page } = await open({ viewport: TABLET, hasTouch: true });
     await context.grantPermissions(['geolocation'], { origin: h.baseUrl });
     await context.setGeolocation(POLE_A);
     await h.signIn(page, 'surveyor');
@@ -124,7 +134,7 @@ describe('span journey', () => {
 
   it('when a safety officer opens the span and approves it, then it shows as approved', async () => {
     expect(spanId).not.toBe('');
-    const { context, page } = await h.newPage();
+    const { context, page } = await open();
     await h.signIn(page, 'safety');
     await page.waitForURL((u) => u.pathname === '/review');
     await page.goto(`/spans/${spanId}`);
@@ -140,7 +150,7 @@ describe('span journey', () => {
 
   it('when a planner filters the spans table, then the approved span is found and the view is in the URL', async () => {
     expect(spanId).not.toBe('');
-    const { context, page } = await h.newPage();
+    const { context, page } = await open();
     await h.signIn(page, 'planner');
     await page.waitForURL((u) => u.pathname === '/planning');
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Spans', exact: true }).click();
@@ -157,7 +167,7 @@ describe('span journey', () => {
 
     // The same URL opened afresh shows the same view.
     const shared = page.url();
-    const other = await h.newPage();
+    const other = await open();
     await h.signIn(other.page, 'planner');
     await other.page.waitForURL((u) => u.pathname === '/planning');
     await other.page.goto(shared);
@@ -171,6 +181,79 @@ describe('span journey', () => {
     await filters.getByLabel('Status').selectOption('draft');
     await page.waitForURL((u) => u.searchParams.get('status') === 'draft');
     await page.getByText('No span matches these filters.').waitFor();
+    await context.close();
+  }, 120_000);
+
+  it('when someone saves the span while the surveyor edits it, then saving shows both versions and keeps both changes', async () => {
+    const { context, page } = await open({ viewport: TABLET, hasTouch: true });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    await apiCall(page, 'patch', '/api/me', { unitSystem: 'metric' });
+    const drafts = await (await page.request.get('/api/spans?mine=true&status=draft&pageSize=5')).json();
+    const draft = drafts.items[0];
+    expect(draft, 'the demo scenario has drafts of the surveyor').toBeTruthy();
+    await page.goto(`/field/spans/${draft.id}/edit`);
+    await page.getByRole('heading', { level: 1, name: `Span ${draft.fromStructureLabel} → ${draft.toStructureLabel}` }).waitFor();
+
+    // Meanwhile, from another device: a new clearance at the perch point.
+    const otherClearanceM = draft.clearanceM === 12.34 ? 12.35 : 12.34;
+    const lowest = draft.lowestClearanceM !== null && draft.lowestClearanceM > otherClearanceM ? null : draft.lowestClearanceM;
+    const other = await apiCall(page, 'patch', `/api/spans/${draft.id}`, { version: draft.version, clearanceM: otherClearanceM, lowestClearanceM: lowest });
+    expect(other.version).toBe(draft.version + 1);
+
+    // On the tablet the surveyor changes the phase position and saves their (now stale) form.
+    await page.getByLabel('Phase / position (optional)').fill(`E2E ${RUN}`);
+    await page.getByRole('button', { name: 'Save draft' }).click();
+    const panel = page.getByRole('alertdialog');
+    await panel.waitFor();
+    expect(await panel.innerText()).toContain(`version ${other.version}`);
+    const clearanceRow = panel.locator('[data-conflict-field="clearance"]');
+    expect(await clearanceRow.innerText()).toContain('changed by someone else');
+    expect(await clearanceRow.innerText()).toContain('12.3');
+    expect(await panel.locator('[data-conflict-field="phasePosition"]').innerText()).toContain('you changed this');
+    await panel.getByRole('button', { name: `Save my choices on version ${other.version}` }).click();
+    await page.getByText('Draft saved.').waitFor();
+
+    const after = await (await page.request.get(`/api/spans/${draft.id}`)).json();
+    expect(after.version).toBe(other.version + 1);
+    expect(after.phasePosition).toBe(`E2E ${RUN}`);
+    expect(after.clearanceM).toBe(otherClearanceM);
+    await context.close();
+  }, 120_000);
+
+  it('when a surveyor imports an export of a line, then the dry run reports no changes; an edited row updates on commit', async () => {
+    const { context, page } = await open();
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const lines = await (await page.request.get('/api/lines')).json();
+    const line = lines.items.find((l: { name: string }) => l.name.startsWith('Journey test line'));
+    expect(line, 'the line made by the first journey').toBeTruthy();
+    const csv = await (await page.request.get(`/api/spans/export.csv?lineId=${line.id}`)).text();
+    const dir = fs.mkdtempSync(path.join(h.dataDir, 'import-'));
+    const file = path.join(dir, 'line.csv');
+    fs.writeFileSync(file, csv);
+
+    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Import' }).click();
+    await page.waitForURL((u) => u.pathname === '/import');
+    await page.getByLabel('File (.csv, .geojson)').setInputFiles(file);
+    await page.getByRole('button', { name: 'Check the file (dry run)' }).click();
+    await page.getByRole('table', { name: 'Import report' }).waitFor();
+    expect(await page.getByText('Nothing would change').isVisible()).toBe(true);
+    expect(await page.locator('tr[data-action]').evaluateAll((rows) => rows.map((r) => r.getAttribute('data-action')))).toEqual(['unchanged']);
+    expect(await page.getByRole('button', { name: /^Commit/ }).isDisabled()).toBe(true);
+
+    // Change one span's perch-point clearance in the file: the dry run names it, the commit saves it.
+    const parsed = Papa.parse<Record<string, string>>(csv, { header: true, skipEmptyLines: true });
+    parsed.data[0].clearance_m = '9.75';
+    const edited = path.join(dir, 'line-edited.csv');
+    fs.writeFileSync(edited, Papa.unparse(parsed.data, { columns: parsed.meta.fields }));
+    await page.getByLabel('File (.csv, .geojson)').setInputFiles(edited);
+    await page.getByRole('button', { name: 'Check the file (dry run)' }).click();
+    await page.locator('tr[data-action="update"]').waitFor();
+    await page.getByRole('button', { name: 'Commit 1 change' }).click();
+    await page.getByText('Saved: 0 created, 1 updated').waitFor();
+    const spans = await (await page.request.get(`/api/spans?lineId=${line.id}`)).json();
+    expect(spans.items[0].clearanceM).toBe(9.75);
     await context.close();
   }, 120_000);
 });

@@ -89,13 +89,23 @@ const LABELS: Record<ConflictKey, string> = {
   hazards: 'Hazards',
 };
 
-/** Every compared item, with the two readings; `differs` marks the ones the user must decide. */
-export function compareWithSaved(mine: SpanFormValues, saved: Span, system: UnitSystem, look: ConflictLookups): (ConflictRow & { differs: boolean })[] {
+/**
+ * Every compared item, with the two readings; `differs` marks the ones the user must decide, and `changedByMe`
+ * the ones the user edited since loading `base` (the others differ only because someone else changed them).
+ */
+export function compareWithSaved(
+  mine: SpanFormValues,
+  saved: Span,
+  system: UnitSystem,
+  look: ConflictLookups,
+  base?: SpanFormValues,
+): (ConflictRow & { differs: boolean; changedByMe: boolean })[] {
   const savedValues = spanToFormValues(saved, system);
   return (Object.keys(KEY_FIELDS) as ConflictKey[]).map((key) => {
     const a = describe(key, mine, system, look);
     const b = describe(key, savedValues, system, look);
-    return { key, label: LABELS[key], mine: a, saved: b, differs: a !== b };
+    const changedByMe = base ? a !== describe(key, base, system, look) : true;
+    return { key, label: LABELS[key], mine: a, saved: b, differs: a !== b, changedByMe };
   });
 }
 

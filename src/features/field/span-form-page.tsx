@@ -53,7 +53,7 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
   const [busy, setBusy] = useState(false);
   const [notice, setNotice] = useState<string | null>(null);
   const [formError, setFormError] = useState<string | null>(null);
-  const [conflict, setConflict] = useState<{ mine: SpanFormValues; saved: Span; intent: Intent } | null>(null);
+  const [conflict, setConflict] = useState<{ mine: SpanFormValues; base: SpanFormValues; saved: Span; intent: Intent } | null>(null);
 
   const form = useForm<SpanFormValues>({
     defaultValues: initial ? spanToFormValues(initial, system) : emptySpanForm(),
@@ -123,7 +123,7 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
       if (err instanceof ApiError && err.status === 400 && err.issues.length) showIssues(mapIssues(err.issues));
       else if (err instanceof ApiError && err.status === 409) {
         const current = savedFromConflict(err.body);
-        if (current) setConflict({ mine: values, saved: current, intent });
+        if (current) setConflict({ mine: values, base: structuredClone(form.formState.defaultValues) as SpanFormValues, saved: current, intent });
         else if (err.issues.some((i) => i.path !== 'status')) showIssues(mapIssues(err.issues.filter((i) => i.path !== 'status')));
         else setFormError(err.message);
       } else setFormError(err instanceof Error ? err.message : 'The span was not saved. Your entries are still here; try again.');
@@ -192,6 +192,7 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
         <div className="mb-4">
           <ConflictPanel
             mine={conflict.mine}
+            base={conflict.base}
             saved={conflict.saved}
             unitSystem={system}
             busy={busy}

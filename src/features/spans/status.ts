@@ -19,7 +19,7 @@ export const SPAN_STATUS_LOOK: Record<SpanStatus, StatusLook> = {
   submitted: { label: SPAN_STATUS_LABELS.submitted, hint: 'Sent to the safety desk for a decision.', badge: 'bg-brass-100 text-brass-700 border-brass-300', glyph: '…' },
   approved: { label: SPAN_STATUS_LABELS.approved, hint: 'A safety officer approved it for perching.', badge: 'bg-green-50 text-go border-green-300', glyph: '✓' },
   returned: { label: SPAN_STATUS_LABELS.returned, hint: 'The reviewer asked the surveyor to fix something.', badge: 'bg-red-50 text-alarm border-red-300', glyph: '↩' },
-  suspended: { label: SPAN_STATUS_LABELS.suspended, hint: 'Approved before, now withdrawn by safety until reinstated.', badge: 'bg-ink-900 text-chalk border-ink-900', glyph: '⏸' },
+  suspended: { label: SPAN_STATUS_LABELS.suspended, hint: 'Approved before, now withdrawn by safety until reinstated.', badge: 'bg-ink-900 text-chalk border-ink-900', glyph: '||' },
 };
 
 export function statusLabel(status: string): string {

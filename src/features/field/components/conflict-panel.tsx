@@ -7,6 +7,8 @@ import type { SpanFormValues } from '../form-values.ts';
 
 interface Props {
   mine: SpanFormValues;
+  /** The values the user started from; fields they did not touch default to the saved reading. */
+  base?: SpanFormValues;
   saved: Span;
   unitSystem: UnitSystem;
   lookups: ConflictLookups;
@@ -15,10 +17,10 @@ interface Props {
   onResolve: (takeMine: Set<ConflictKey>, save: boolean) => void;
 }
 
-export function ConflictPanel({ mine, saved, unitSystem, lookups, busy, onResolve }: Props) {
-  const rows = useMemo(() => compareWithSaved(mine, saved, unitSystem, lookups), [mine, saved, unitSystem, lookups]);
+export function ConflictPanel({ mine, base, saved, unitSystem, lookups, busy, onResolve }: Props) {
+  const rows = useMemo(() => compareWithSaved(mine, saved, unitSystem, lookups, base), [mine, saved, unitSystem, lookups, base]);
   const differing = rows.filter((r) => r.differs);
-  const [choice, setChoice] = useState<Record<string, 'mine' | 'saved'>>(() => Object.fromEntries(differing.map((r) => [r.key, 'mine'])));
+  const [choice, setChoice] = useState<Record<string, 'mine' | 'saved'>>(() => Object.fromEntries(differing.map((r) => [r.key, r.changedByMe ? 'mine' : 'saved'])));
   const takeMine = () => new Set(differing.filter((r) => choice[r.key] !== 'saved').map((r) => r.key));
 
   return (
@@ -42,7 +44,10 @@ export function ConflictPanel({ mine, saved, unitSystem, lookups, busy, onResolv
             <tbody>
               {differing.map((r) => (
                 <tr key={r.key} className="border-b border-ink-100 align-top" data-conflict-field={r.key}>
-                  <th scope="row" className="py-2 pr-3 font-semibold">{r.label}</th>
+                  <th scope="row" className="py-2 pr-3 font-semibold">
+                    {r.label}
+                    <span className="block text-xs font-normal text-ink-700">{r.changedByMe ? 'you changed this' : 'changed by someone else'}</span>
+                  </th>
                   <td className="py-2 pr-3">
                     <label className="touch-choice w-full justify-start gap-3 has-[:checked]:border-ink-900 has-[:checked]:bg-brass-100">
                       <input type="radio" name={`conflict-${r.key}`} checked={choice[r.key] !== 'saved'} onChange={() => setChoice((c) => ({ ...c, [r.key]: 'mine' }))} />

@@ -194,7 +194,7 @@ export function SpansTablePage() {
                 {row.getVisibleCells().map((cell) => {
                   const numeric = (cell.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
                   return (
-                    <td key={cell.id} className={`px-3 py-2 ${numeric ? 'text-right tabular-nums' : ''}`}>
+                    <td key={cell.id} className={`whitespace-nowrap px-3 py-2 ${numeric ? 'text-right tabular-nums' : ''}`}>
                       {flexRender(cell.column.columnDef.cell, cell.getContext())}
                     </td>
                   );
