@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type Client, type TestApp } from './helpers.ts';
 import { buildLine, completeSpan } from './inventory-fixtures.ts';
 import { ROLES, type Role } from '../../shared/roles.ts';
+import sharp from 'sharp';
 import { Span } from '../../server/modules/inventory/span.entity.ts';
 
 // The review desk's server side: the queue it reads, the decisions it sends, and the history they leave.
@@ -144,6 +145,17 @@ describe('review decisions', () => {
     expect((await as.safety.get(`/api/spans/${id}`)).body.status).toBe('submitted');
     // Returning it to the surveyor is still possible.
     expect((await as.safety.post(`/api/spans/${id}/return`, { reason: 'Inside the nesting-season exclude zone; pick another span' })).status).toBe(200);
+  });
+
+  it('when a photo is added to the span, then the span history shows it next to the span changes', async () => {
+    const id = await submittedSpan();
+    const jpeg = await sharp({ create: { width: 64, height: 48, channels: 3, background: '#7a8f6a' } }).jpeg().toBuffer();
+    const up = await as.surveyor.upload('/api/photos').field('spanId', id).attach('photo', jpeg, { filename: 'perch.jpg', contentType: 'image/jpeg' });
+    expect(up.status).toBe(201);
+    const entries = await history(as.safety, id);
+    expect(entries[0].action).toBe('photo.upload');
+    expect(entries[0].after.spanId).toBe(id);
+    expect(entries.map((e) => e.action)).toContain('span.submit');
   });
 
   it('when any signed-in role asks for a span history, then it gets it; an unknown span is 404; anonymous 401', async () => {
