@@ -132,6 +132,8 @@ describe('versioned edits', () => {
     ]);
     expect([a.status, b.status].sort()).toEqual([200, 409]);
     const winner = a.status === 200 ? a : b;
+    const loser = a.status === 200 ? b : a;
+    expect(loser.body.error.current).toMatchObject({ id, version: 2 });
     const saved = await planner.get(`/api/spans/${id}`);
     expect(saved.body).toMatchObject({ version: 2, clearanceM: winner.body.clearanceM });
   });

@@ -23,6 +23,7 @@ import { ConductorType } from './conductor-type.entity.ts';
 import { HazardKind } from './hazard-kind.entity.ts';
 import { Line } from './line.entity.ts';
 import { Structure } from './structure.entity.ts';
+import { Span } from './span.entity.ts';
 import { StaleVersionError, conductorCatalogueView, hazardKindView, lineView, spanViewOf, structureView } from './inventory.service.ts';
 import { createLine, createStructure, lineCounts, updateLine, updateStructure } from './lines.service.ts';
 import { createSpan, getSpanOr404, transitionSpan, updateSpan, type TransitionName } from './spans.service.ts';
@@ -30,13 +31,28 @@ import { listSpans } from './spans.query.ts';
 import { importExportRouter } from '../import-export/import-export.router.ts';
 
 /** Stale versions answer 409 with the saved record in `error.current`, so the client can show both versions. */
-export const staleVersionHandler: ErrorRequestHandler = (err, _req, res, next) => {
+export const staleVersionHandler: ErrorRequestHandler = async (err, req, res, next) => {
   if (err instanceof StaleVersionError) {
     res.status(409).json({ error: { ...errorBody(err.code, err.message, err.issues).error, current: err.current } });
     return;
   }
   if (err instanceof OptimisticLockError) {
-    res.status(409).json(errorBody('conflict', 'This record was changed by someone else at the same moment; reload it and apply your change again'));
+    // Two saves of the same version raced and this one lost at the database: answer like any stale write.
+    const entity = (err as OptimisticLockError & { entity?: unknown }).entity;
+    const em = req.em.fork();
+    let current: unknown = null;
+    if (entity instanceof Span) {
+      const saved = await em.findOne(Span, { id: entity.id });
+      if (saved) current = await spanViewOf(em, saved);
+    } else if (entity instanceof Structure) {
+      const saved = await em.findOne(Structure, { id: entity.id });
+      if (saved) current = structureView(saved);
+    } else if (entity instanceof Line) {
+      const saved = await em.findOne(Line, { id: entity.id });
+      if (saved) current = lineView(saved);
+    }
+    const body = errorBody('conflict', 'This record was changed by someone else at the same moment. Your change was not saved; compare it with the saved one and apply it again.');
+    res.status(409).json({ error: { ...body.error, current } });
     return;
   }
   next(err);
