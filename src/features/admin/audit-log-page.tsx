@@ -1,5 +1,5 @@
 import { useQuery } from '@tanstack/react-query';
-import { useSearchParams } from 'react-router';
+import { Link, useSearchParams } from 'react-router';
 import { useMe } from '../auth/queries.ts';
 import type { AuditFilters } from './api.ts';
 import { auditQueries } from './queries.ts';
@@ -82,6 +82,7 @@ export function AuditLogPage() {
                   <button type="button" className="text-sm text-ink-700 underline" onClick={() => setMany({ recordType: e.recordType, recordId: e.recordId })}>
                     {e.recordType} {e.recordId}
                   </button>
+                  {e.recordType === 'span' && <Link to={`/spans/${e.recordId}`} className="text-sm font-semibold underline">Open span</Link>}
                   <time className="ml-auto text-sm text-ink-500" dateTime={e.at}>{dateTime(e.at)}</time>
                 </div>
                 <AuditDiff entry={e} />
