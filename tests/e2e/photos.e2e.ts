@@ -40,7 +40,7 @@ afterAll(async () => {
 });
 
 /** A line, two structures about 200 m apart (east from -30.2, -130.3) and a span between them, through the API with the page's session. */
-async function makeSpan(page: Page): Promise<{ id: string }> {
+async function makeSpan(page: Page, extra: object = {}): Promise<{ id: string; hazards: { id: string }[] }> {
   const headers = { Origin: h.baseUrl };
   const post = async (url: string, data: object) => {
     const res = await page.request.post(url, { data, headers });
@@ -50,7 +50,7 @@ async function makeSpan(page: Page): Promise<{ id: string }> {
   const line = await post('/api/lines', { name: `Photo journey feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
   const a = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
   const b = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
-  return post('/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id });
+  return post('/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id, ...extra });
 }
 
 describe('photo journey', () => {
@@ -166,6 +166,24 @@ describe('photo journey', () => {
     await row.getByRole('button', { name: 'Try again' }).click();
     await row.getByTestId('photo-thumbnail').waitFor({ timeout: 60_000 });
     expect(await row.getAttribute('data-status')).toBe('done');
+    await context.close();
+  }, 180_000);
+
+  it('when the span has hazards, then the surveyor can say which one the photo shows', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1100 } });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const kinds = (await (await page.request.get('/api/hazard-kinds')).json()).items as { id: string; label: string }[];
+    expect(kinds.length).toBeGreaterThan(0);
+    const span = await makeSpan(page, { hazards: [{ kindId: kinds[0].id, severity: 'high', note: 'under the perch point' }] });
+    await page.goto(`/field/spans/${span.id}/edit`);
+    await page.getByTestId('photo-input').setInputFiles(noGpsPath);
+    const row = page.getByTestId('photo-upload-row');
+    const picker = row.getByLabel('Shows hazard');
+    await picker.waitFor({ timeout: 60_000 });
+    await picker.selectOption({ label: `${kinds[0].label} (high) — under the perch point` });
+    const photoId = (await row.getByTestId('photo-thumbnail').getAttribute('src'))!.split('/')[3];
+    await expect.poll(async () => (await (await page.request.get(`/api/photos/${photoId}`)).json()).hazardId, { timeout: 20_000 }).toBe(span.hazards[0].id);
     await context.close();
   }, 180_000);
 });

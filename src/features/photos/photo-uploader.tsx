@@ -133,6 +133,15 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
     }
   };
 
+  const setHazard = async (key: string, photoId: string, hazardId: string | null) => {
+    try {
+      patch(key, { photo: await photoApi.update(photoId, { hazardId }), error: null });
+      refresh();
+    } catch (err) {
+      patch(key, { error: err instanceof Error ? err.message : 'Could not link the hazard' });
+    }
+  };
+
   const place = async (key: string, photoId: string, lat: number, lon: number) => {
     try {
       patch(key, { photo: await photoApi.update(photoId, { lat, lon }), error: null });
@@ -194,6 +203,7 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
               }}
               onLink={(target) => item.photo && void link(item.key, item.photo.id, target)}
               onPlace={(lat, lon) => item.photo && void place(item.key, item.photo.id, lat, lon)}
+              onHazard={(hazardId) => item.photo && void setHazard(item.key, item.photo.id, hazardId)}
             />
           ))}
         </ul>
@@ -209,6 +219,7 @@ function UploadRow({
   onRemove,
   onLink,
   onPlace,
+  onHazard,
 }: {
   item: Item;
   spanId: string | null;
@@ -216,6 +227,7 @@ function UploadRow({
   onRemove: () => void;
   onLink: (spanId: string | null) => void;
   onPlace: (lat: number, lon: number) => void;
+  onHazard: (hazardId: string | null) => void;
 }) {
   const pct = Math.round(item.progress * 100);
   const photo = item.photo;
@@ -264,6 +276,7 @@ function UploadRow({
           {photo && <PhotoFacts photo={photo} />}
           {photo && item.error && <p className="field-error mt-0">{item.error}</p>}
           {photo && <LinkChoices photo={photo} spanId={spanId} onLink={onLink} onPlace={onPlace} />}
+          {photo && <HazardPicker photo={photo} onChange={onHazard} />}
         </div>
         <div className="flex flex-none flex-col gap-1">
           {item.status === 'failed' && item.retryable && (
@@ -323,6 +336,31 @@ export function PlaceOnMapButton({ spanId, onPlace }: { spanId: string | null; o
         </Suspense>
       )}
     </>
+  );
+}
+
+/** Which of the span's hazards the photo shows (none by default). */
+export function HazardPicker({ photo, onChange }: { photo: { spanId: string | null; hazardId: string | null }; onChange: (hazardId: string | null) => void }) {
+  const span = useQuery({ ...spanQueries.detail(photo.spanId ?? ''), enabled: !!photo.spanId });
+  const kinds = useQuery(inventoryQueries.hazardKinds());
+  const id = useId();
+  const hazards = span.data?.hazards ?? [];
+  if (!photo.spanId || !hazards.length) return null;
+  const label = (kindId: string) => kinds.data?.find((k) => k.id === kindId)?.label ?? kindId;
+  return (
+    <div className="flex flex-wrap items-center gap-2">
+      <label htmlFor={id} className="text-xs font-semibold text-ink-800">
+        Shows hazard
+      </label>
+      <select id={id} className="field-input min-h-10 w-auto py-1 text-sm" value={photo.hazardId ?? ''} onChange={(e) => onChange(e.target.value || null)}>
+        <option value="">None in particular</option>
+        {hazards.map((h) => (
+          <option key={h.id} value={h.id}>
+            {label(h.kindId)} ({h.severity}){h.note ? ` — ${h.note.slice(0, 40)}` : ''}
+          </option>
+        ))}
+      </select>
+    </div>
   );
 }
 
