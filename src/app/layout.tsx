@@ -22,10 +22,12 @@ export function AppLayout() {
             <Logo /> Roostline
           </NavLink>
           <nav aria-label="Main" className="flex flex-1 flex-wrap gap-1">
-            {navFor(me.roles).map((item) => (
+            {navFor(me.roles).map((item, _i, items) => (
               <NavLink
                 key={item.to}
                 to={item.to}
+                // A parent entry (/admin) is not highlighted while one of its own entries (/admin/audit) is.
+                end={items.some((other) => other.to.startsWith(item.to + '/'))}
                 className={({ isActive }) =>
                   `rounded-lg px-3 py-2 text-sm font-semibold ${isActive ? 'bg-brass-500 text-ink-900' : 'text-ink-100 hover:bg-ink-700'}`
                 }
