@@ -53,6 +53,9 @@ function spanTileUrl(f: Pick<MapFilters, 'status' | 'lineId'>, harvesterProfileI
   return `${location.origin}/api/tiles/spans/{z}/{x}/{y}.mvt${s ? `?${s}` : ''}`;
 }
 
+/** The first label layer of /map/style.json (server/modules/map/style.ts). */
+const LABELS_FROM = 'road-label';
+
 function withFilter(layer: OverlayLayer, filter: unknown[]): OverlayLayer {
   return { ...layer, filter } as unknown as OverlayLayer;
 }
@@ -117,10 +120,8 @@ export function MapPage() {
     setMap(m);
     if (m) {
       (window as unknown as { __roostlineMap?: MapLibreMap }).__roostlineMap = m;
-      const markReady = () => {
-        if (m.loaded() && m.areTilesLoaded()) setReady(true);
-      };
-      m.on('idle', markReady);
+      // 'idle': the style, every visible tile and every transition are done (a test's "map ready").
+      m.once('idle', () => setReady(true));
     }
   };
 
@@ -296,13 +297,14 @@ export function MapPage() {
           >
             <NavigationControl position="top-right" showCompass={false} />
             <ScaleControl position="bottom-left" unit={me.unitSystem === 'us' ? 'imperial' : 'metric'} />
-            <Layer {...ZONES_FILL_LAYER} />
-            <Layer {...ZONES_OUTLINE_LAYER} />
-            <Layer {...withFilter(SPANS_CASING_LAYER, filterExpr)} />
-            <Layer {...withFilter(lineLayer, filterExpr)} />
-            <Layer {...withFilter(SPANS_SELECTED_LAYER, ['==', ['get', 'id'], selectedSpanId ?? ''])} />
-            <Layer {...withFilter(STRUCTURES_LAYER, filters.lineId ? ['==', ['get', 'lineId'], filters.lineId] : ['all'])} />
-            <Layer {...PHOTOS_LAYER} />
+            {/* Overlays go under the basemap's labels, so place and road names stay readable. */}
+            <Layer {...ZONES_FILL_LAYER} beforeId={LABELS_FROM} />
+            <Layer {...ZONES_OUTLINE_LAYER} beforeId={LABELS_FROM} />
+            <Layer {...withFilter(SPANS_CASING_LAYER, filterExpr)} beforeId={LABELS_FROM} />
+            <Layer {...withFilter(lineLayer, filterExpr)} beforeId={LABELS_FROM} />
+            <Layer {...withFilter(SPANS_SELECTED_LAYER, ['==', ['get', 'id'], selectedSpanId ?? ''])} beforeId={LABELS_FROM} />
+            <Layer {...withFilter(STRUCTURES_LAYER, filters.lineId ? ['==', ['get', 'lineId'], filters.lineId] : ['all'])} beforeId={LABELS_FROM} />
+            <Layer {...PHOTOS_LAYER} beforeId={LABELS_FROM} />
           </MapView>
           {selectedSpanId && (
             <div className="absolute bottom-3 left-3 right-3 z-10 sm:right-auto sm:w-96">
