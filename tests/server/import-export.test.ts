@@ -181,6 +181,15 @@ describe('export and round trip', () => {
     expect(res.body.rows.every((r: any) => r.action === 'unchanged')).toBe(true);
   });
 
+  it('when a text cell would start a spreadsheet formula, then the CSV export guards it and the import takes the guard off', async () => {
+    const built = await buildLine(surveyor, 2, { name: '=HYPERLINK("x") line', owner: '+Owner' });
+    const exp = await planner.get(`/api/spans/export.csv?lineId=${built.line.id}`);
+    const cells = exp.text.split('\r\n')[1]!;
+    expect(cells.startsWith(`"'=HYPERLINK(""x"") line",'+Owner,`)).toBe(true);
+    const res = await surveyor.post('/api/import/dry-run', { format: 'csv', text: exp.text });
+    expect(res.body.rows.map((r: any) => r.action)).toEqual(['unchanged']);
+  });
+
   it('when exporting approved spans only, then the filter applies', async () => {
     const res = await planner.get(`/api/spans/export.geojson?status=approved&lineId=${lineId}`);
     const body = JSON.parse(res.text);

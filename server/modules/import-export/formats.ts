@@ -65,6 +65,17 @@ function num(v: string | undefined): unknown {
   const n = Number(t);
   return Number.isFinite(n) ? n : t;
 }
+/**
+ * Spreadsheets run a cell that starts with = + - @ (or a tab / carriage return) as a formula. Exported text cells
+ * that would get a leading apostrophe, which import takes off again, so a round trip keeps the text.
+ */
+export function guardCell(v: string): string {
+  return /^[=+\-@\t\r]/.test(v) ? `'${v}` : v;
+}
+export function unguardCell(v: string): string {
+  return /^'[=+\-@\t\r]/.test(v) ? v.slice(1) : v;
+}
+
 function text(v: string | undefined): string | null | undefined {
   if (v === undefined) return undefined;
   const t = v.trim();
@@ -89,7 +100,7 @@ export function parseCsv(source: string): RawRow[] {
     errorsByRow.set(e.row, [...(errorsByRow.get(e.row) ?? []), e.message]);
   }
   return parsed.data.map((r, i) => {
-    const get = (c: string) => (has(c) ? (r[c] ?? '') : undefined);
+    const get = (c: string) => (has(c) ? unguardCell(r[c] ?? '') : undefined);
     const reasons = [...(errorsByRow.get(i) ?? [])];
     const lineName = (get('line_name') ?? '').trim();
     const fromLabel = (get('from_label') ?? '').trim();
@@ -178,8 +189,8 @@ export function spansToCsv(spans: SpanView[], lines: Map<string, LineView>, stru
     const to = structures.get(s.toStructureId)!;
     const c = s.conductor;
     const record: Record<(typeof header)[number], string> = {
-      line_name: l.name,
-      line_owner: l.owner,
+      line_name: guardCell(l.name),
+      line_owner: guardCell(l.owner),
       voltage_kv: csvNumber(l.voltageKv),
       frequency_hz: csvNumber(l.frequencyHz),
       phases: csvNumber(l.phases),
@@ -187,25 +198,25 @@ export function spansToCsv(spans: SpanView[], lines: Map<string, LineView>, stru
       load_min_a: csvNumber(l.loadMinA),
       load_peak_a: csvNumber(l.loadPeakA),
       load_profile_a: l.loadProfileA ? l.loadProfileA.join(';') : '',
-      from_label: from.label,
+      from_label: guardCell(from.label),
       from_lat: csvNumber(from.lat),
       from_lon: csvNumber(from.lon),
       from_kind: from.kind,
       from_attachment_height_m: csvNumber(from.attachmentHeightM),
-      to_label: to.label,
+      to_label: guardCell(to.label),
       to_lat: csvNumber(to.lat),
       to_lon: csvNumber(to.lon),
       to_kind: to.kind,
       to_attachment_height_m: csvNumber(to.attachmentHeightM),
       conductor_code_word: c?.codeWord ?? '',
-      conductor_size: c?.size ?? '',
+      conductor_size: guardCell(c?.size ?? ''),
       conductor_material: c?.material ?? '',
       conductor_diameter_mm: csvNumber(c?.diameterMm),
       conductor_resistance_low_ohm_per_m: csvNumber(c?.resistanceLowOhmPerM),
       conductor_temp_low_c: csvNumber(c?.tempLowC),
       conductor_resistance_high_ohm_per_m: csvNumber(c?.resistanceHighOhmPerM),
       conductor_temp_high_c: csvNumber(c?.tempHighC),
-      phase_position: s.phasePosition ?? '',
+      phase_position: guardCell(s.phasePosition ?? ''),
       clearance_m: csvNumber(s.clearanceM),
       lowest_clearance_m: csvNumber(s.lowestClearanceM),
       terrain: s.terrain ?? '',
