@@ -256,4 +256,23 @@ describe('span journey', () => {
     expect(spans.items[0].clearanceM).toBe(9.75);
     await context.close();
   }, 120_000);
+
+  it('when the tablet reloads before a save, then the typed entries are offered back and restored', async () => {
+    const { context, page } = await open({ viewport: TABLET, hasTouch: true });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const lines = await (await page.request.get('/api/lines')).json();
+    await page.goto('/field/spans/new');
+    await page.getByLabel('Line', { exact: true }).selectOption(lines.items[0].id);
+    await page.getByLabel('Ground clearance at the perch point (m)').fill('12.5');
+    await page.getByLabel('Terrain under the span').selectOption('water');
+    await page.waitForTimeout(1000);
+    await page.reload();
+    await page.getByRole('heading', { name: 'Unsaved entries on this device' }).waitFor();
+    await page.getByRole('button', { name: 'Restore my entries' }).click();
+    expect(await page.getByLabel('Ground clearance at the perch point (m)').inputValue()).toBe('12.5');
+    expect(await page.getByLabel('Terrain under the span').inputValue()).toBe('water');
+    expect(await page.getByLabel('Line', { exact: true }).inputValue()).toBe(lines.items[0].id);
+    await context.close();
+  }, 120_000);
 });

@@ -17,6 +17,7 @@ import { Field, QuantityField } from './components/form-bits.tsx';
 import { HazardList } from './components/hazard-list.tsx';
 import { StructurePicker } from './components/structure-picker.tsx';
 import { mergeChoices, savedFromConflict, type ConflictKey } from './conflict.ts';
+import { backupDiffers, backupKey, clearBackup, readBackup, writeBackup, type FormBackup } from './local-backup.ts';
 import {
   emptySpanForm,
   formValuesToCreate,
@@ -63,6 +64,44 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
   });
   const { register, watch, setValue, setError, clearErrors, formState, getValues, reset } = form;
   const lineId = watch('lineId');
+
+  // Entries are copied to the device as they are typed, until the server has them.
+  const storageKey = backupKey(me.id, saved?.id ?? null);
+  const [offer, setOffer] = useState<FormBackup | null>(() => {
+    const b = readBackup(window.localStorage, backupKey(me.id, initial?.id ?? null));
+    return b && backupDiffers(b, initial ? spanToFormValues(initial, system) : emptySpanForm()) ? b : null;
+  });
+  const offerPending = useRef(offer !== null);
+  useEffect(() => {
+    let timer: ReturnType<typeof setTimeout> | undefined;
+    const sub = watch(() => {
+      if (offerPending.current) return;
+      clearTimeout(timer);
+      timer = setTimeout(() => {
+        const values = getValues();
+        if (backupDiffers({ values, baseVersion: null, savedAt: '' }, form.formState.defaultValues as SpanFormValues))
+          writeBackup(window.localStorage, storageKey, { values, baseVersion: versionRef.current ?? null, savedAt: new Date().toISOString() });
+      }, 400);
+    });
+    return () => {
+      clearTimeout(timer);
+      sub.unsubscribe();
+    };
+  }, [watch, getValues, form, storageKey]);
+
+  const restoreBackup = (b: FormBackup) => {
+    offerPending.current = false;
+    setOffer(null);
+    for (const [k, v] of Object.entries(b.values)) setValue(k as keyof SpanFormValues, v as never, { shouldDirty: true });
+    // Saving against the version the entries were made on: if the record moved on since, the conflict view shows both.
+    if (b.baseVersion !== null) versionRef.current = b.baseVersion;
+    setNotice('Unsaved entries restored from this device.');
+  };
+  const discardBackup = () => {
+    offerPending.current = false;
+    setOffer(null);
+    clearBackup(window.localStorage, storageKey);
+  };
 
   const lines = useQuery(inventoryQueries.lines());
   const structures = useQuery(inventoryQueries.structures(lineId));
@@ -113,6 +152,11 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
       }
       await queryClient.invalidateQueries({ queryKey: spanQueries.lists() });
       reset(spanToFormValues(result, system));
+      // The server has everything now: the device copy (of this span, or of the new-span form) can go.
+      clearBackup(window.localStorage, backupKey(me.id, saved?.id ?? null));
+      clearBackup(window.localStorage, backupKey(me.id, result.id));
+      offerPending.current = false;
+      setOffer(null);
       if (intent === 'submit') {
         navigate('/field', { state: { notice: result.status === 'submitted' ? 'Span submitted for review.' : 'Changes saved.' } });
         return;
@@ -187,6 +231,27 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
         )}
         {saved?.status === 'suspended' && saved.suspendReason && <p className="rounded-lg bg-ink-50 p-3 text-sm">Suspended by safety: {saved.suspendReason}</p>}
       </header>
+
+      {offer && (
+        <section className="card mb-4 space-y-3 border-2 border-brass-500" aria-labelledby="backup-title">
+          <h2 id="backup-title" className="text-lg font-bold">Unsaved entries on this device</h2>
+          <p>
+            Entries from {new Date(offer.savedAt).toLocaleString()} were not saved to the server
+            {saved && offer.baseVersion !== null && offer.baseVersion !== saved.version
+              ? ` (made on version ${offer.baseVersion}; the record is now version ${saved.version}, so saving will show you both)`
+              : ''}
+            .
+          </p>
+          <div className="flex flex-wrap gap-3">
+            <button type="button" className="btn-primary min-h-12" onClick={() => restoreBackup(offer)}>
+              Restore my entries
+            </button>
+            <button type="button" className="btn-ghost min-h-12" onClick={discardBackup}>
+              Discard them
+            </button>
+          </div>
+        </section>
+      )}
 
       {conflict && (
         <div className="mb-4">

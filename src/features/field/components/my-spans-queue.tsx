@@ -4,7 +4,7 @@ import { Link, useLocation } from 'react-router';
 import { TERRAIN_LABELS } from '#shared/schemas/inventory.ts';
 import { formatQuantity } from '#shared/units.ts';
 import { useMe } from '../../auth/queries.ts';
-import { spanQueries } from '../../spans/queries.ts';
+import { fieldQueries } from '../queries.ts';
 import { StatusBadge } from '../../spans/components/status-badge.tsx';
 import { groupQueue } from '../queue.ts';
 
@@ -12,7 +12,7 @@ export function MySpansQueue() {
   const me = useMe();
   const location = useLocation();
   const notice = (location.state as { notice?: string } | null)?.notice;
-  const spans = useQuery(spanQueries.list({ surveyorId: me.id, pageSize: 200, sort: '-updatedAt' }));
+  const spans = useQuery(fieldQueries.mySpans(me.id));
   const groups = groupQueue(spans.data?.items ?? []);
 
   return (
