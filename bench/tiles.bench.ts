@@ -142,7 +142,17 @@ export async function run(): Promise<BenchRow[]> {
       rows.push({ step: `z${z} cached`, tiles: tiles.length, 'median ms': ms(pct(warm, 50)), 'p95 ms': ms(pct(warm, 95)), 'cpu ms': ms(warmCpu) });
     }
 
-    // A change starts a new data version: the next tile re-reads the spans.
+    // One span edited (status and harvest): the change is patched in, then the tile is rebuilt.
+    const edited = `bl0p0`;
+    const conn0 = orm.em.fork().getConnection();
+    await conn0.execute("update spans set status = 'approved', updated_at = ? where id = ?", [Date.now() + 1000, edited]);
+    t = performance.now();
+    c = cpuMs();
+    await service.syncNow();
+    await service.tile(first.z, first.x, first.y);
+    rows.push({ step: 'one span edited: patch + next tile', ms: ms(performance.now() - t), 'cpu ms': ms(cpuMs() - c) });
+
+    // Without patching (e.g. after a deletion), the next tile re-reads every span.
     service.invalidate();
     t = performance.now();
     c = cpuMs();

@@ -186,6 +186,24 @@ describe('approval blocked by a zone', () => {
   });
 });
 
+describe('tile updates in place', () => {
+  it('when a span is added and a structure moved, then the next tiles show the new span and the span at its new place', async () => {
+    const path = tileOf(14);
+    await getTile(surveyor, path); // a warm snapshot and cache
+    const extra = await surveyor.post('/api/structures', { lineId, lat: START.lat, lon: START.lon + 4 * STEP_DEG, kind: 'pole', attachmentHeightM: 14 });
+    expect(extra.status).toBe(201);
+    const added = await surveyor.post('/api/spans', { lineId, fromStructureId: structureIds[3], toStructureId: extra.body.id });
+    expect(added.status).toBe(201);
+    const afterAdd = features((await getTile(surveyor, path)).tile!, 'spans');
+    expect(afterAdd.map((f) => f.properties.id)).toContain(added.body.id);
+    const moved = await surveyor.patch(`/api/structures/${extra.body.id}`, { version: extra.body.version, lat: START.lat + 0.001 });
+    expect(moved.status).toBe(200);
+    const afterMove = features((await getTile(surveyor, path)).tile!, 'spans').find((f) => f.properties.id === added.body.id)!;
+    const [a, b] = afterMove.loadGeometry()[0];
+    expect(b.y).toBeLessThan(a.y); // further north is further up the tile
+  });
+});
+
 describe('zones and the tile cache', () => {
   it('when a caution zone is drawn over a span, then the span is rescored and its tile shows the lower score without a restart', async () => {
     const path = tileOf(14);

@@ -21,13 +21,13 @@ export function spanTilesFor(ctx: AppContext): SpanTileService {
     const service = new SpanTileService(ctx.orm);
     // Listeners are process-wide; only changes made through this app's database concern its tiles.
     const mine = (em: EntityManager) => em.getDriver() === ctx.orm.em.getDriver();
-    const off = registerSpanListener((em) => {
-      if (mine(em)) service.invalidate();
+    // A saved span change is patched into the tiles before the response goes out, so the next tile shows it.
+    const off = registerSpanListener(async (em) => {
+      if (mine(em)) await service.syncNow();
     });
-    // A zone change rescores the spans it covers (in the background); the tiles drop their cache now, and the
-    // data-version check picks up the new scores as they land.
-    const offZone = registerZoneListener((em) => {
-      if (mine(em)) service.invalidate();
+    // A zone change rescores the spans it covers in the background; the watcher picks the new scores up as they land.
+    const offZone = registerZoneListener(async (em) => {
+      if (mine(em)) await service.syncNow();
     });
     ctx.onClose(() => {
       off();

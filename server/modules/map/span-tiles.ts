@@ -35,23 +35,43 @@ export interface TilePair {
 }
 
 interface Snapshot {
+  /** Live spans (entries are patched in place or appended). */
   n: number;
   ids: string[];
+  index: Map<string, number>;
   lineIds: string[];
   statuses: string[];
-  lon0: Float64Array;
-  lat0: Float64Array;
-  lon1: Float64Array;
-  lat1: Float64Array;
-  lengthM: Float64Array;
+  lon0: number[];
+  lat0: number[];
+  lon1: number[];
+  lat1: number[];
+  lengthM: number[];
   /** NaN = no assessment. */
-  score: Float64Array;
-  harvestW: Float64Array;
-  perchable: Int8Array;
+  score: number[];
+  harvestW: number[];
+  /** -1 = no assessment. */
+  perchable: number[];
   grid: Map<number, number[]>;
   structures: { id: string; lineId: string; lon: number; lat: number; kind: string; label: string }[];
+  structureIndex: Map<string, number>;
   structureGrid: Map<number, number[]>;
+  pair: TilePair | null;
+  /** The database fingerprint this snapshot is current with. */
+  fp: Fingerprint;
 }
+
+interface Fingerprint {
+  sc: number;
+  su: unknown;
+  tc: number;
+  tu: unknown;
+  ac: number;
+  au: unknown;
+}
+
+const sameFp = (a: Fingerprint, b: Fingerprint) => JSON.stringify(a) === JSON.stringify(b);
+/** Above this many changed spans a snapshot is re-read whole rather than patched. */
+const PATCH_LIMIT = 20_000;
 
 const STATUS_INDEX: Record<string, number> = { draft: 0, submitted: 1, approved: 2, returned: 3, suspended: 4 };
 const gridKey = (gx: number, gy: number) => gx * 100000 + gy;
@@ -86,7 +106,7 @@ export class SpanTileService {
   private version = 1;
   private snapshots = new Map<string, Promise<Snapshot>>();
   private cache = new Map<string, Buffer>();
-  private fingerprint: string | null = null;
+  private syncing: Promise<void> = Promise.resolve();
   private watcher: NodeJS.Timeout | null = null;
   private closed = false;
   private defaultPair: Promise<TilePair | null> | null = null;
@@ -107,15 +127,91 @@ export class SpanTileService {
   }
 
   /** Reads the database's data fingerprint (counts and latest change times of spans, structures, assessments). */
-  private async readFingerprint(em: EntityManager): Promise<string> {
+  private async readFingerprint(em: EntityManager): Promise<Fingerprint> {
     const hasAssessments = await tableExists(em, 'assessments');
     const [row] = await em
       .getConnection()
-      .execute<Record<string, unknown>[]>(
+      .execute<any[]>(
         'select (select count(*) from spans) as sc, (select max(updated_at) from spans) as su, (select count(*) from structures) as tc, (select max(updated_at) from structures) as tu' +
           (hasAssessments ? ', (select count(*) from assessments) as ac, (select max(computed_at) from assessments) as au' : ''),
       );
-    return JSON.stringify(row);
+    return { sc: Number(row.sc), su: row.su ?? null, tc: Number(row.tc), tu: row.tu ?? null, ac: Number(row.ac ?? 0), au: row.au ?? null };
+  }
+
+  /**
+   * Brings every loaded snapshot up to date with the database: the spans changed since its fingerprint are
+   * re-read and patched in (a deletion re-reads the snapshot whole); cached tiles are dropped when anything changed.
+   * Span writes call it right after saving; a background watcher calls it every FINGERPRINT_EVERY_MS.
+   */
+  syncNow(): Promise<void> {
+    this.syncing = this.syncing.then(() => this.sync()).catch((err) => console.error('span tile sync failed', err));
+    return this.syncing;
+  }
+
+  private async sync() {
+    if (this.closed || this.snapshots.size === 0) return;
+    const em = this.orm.em.fork();
+    const next = await this.readFingerprint(em);
+    let changed = false;
+    for (const [key, promise] of [...this.snapshots]) {
+      const snap = await promise.catch(() => null);
+      if (!snap || this.snapshots.get(key) !== promise || sameFp(snap.fp, next)) continue;
+      changed = true;
+      const ok = await this.patch(em, snap, next).catch(() => false);
+      if (!ok) this.snapshots.delete(key);
+    }
+    if (changed) {
+      this.version += 1;
+      this.cache.clear();
+      this.defaultPair = null;
+    }
+  }
+
+  /** Patches one snapshot from `snap.fp` up to `next`; false when it must be re-read whole instead. */
+  private async patch(em: EntityManager, snap: Snapshot, next: Fingerprint): Promise<boolean> {
+    const old = snap.fp;
+    if (next.sc < old.sc || next.tc < old.tc || next.ac < old.ac) return false;
+    const conn = em.getConnection();
+    const spanIds = new Set<string>();
+    const since = (column: string, table: string, value: unknown) =>
+      value === null ? conn.execute<any[]>(`select * from ${table}`) : conn.execute<any[]>(`select * from ${table} where ${column} >= ?`, [value]);
+    for (const r of await conn.execute<any[]>(old.su === null ? 'select id from spans' : 'select id from spans where updated_at >= ?', old.su === null ? [] : [old.su])) spanIds.add(r.id);
+    const structures: any[] = old.tu === next.tu && old.tc === next.tc ? [] : await since('updated_at', 'structures', old.tu);
+    const movedIds = structures.map((t) => t.id as string);
+    for (let i = 0; i < movedIds.length; i += 400) {
+      const chunk = movedIds.slice(i, i + 400);
+      const marks = chunk.map(() => '?').join(',');
+      for (const r of await conn.execute<any[]>(`select id from spans where from_structure_id in (${marks}) or to_structure_id in (${marks})`, [...chunk, ...chunk])) spanIds.add(r.id);
+    }
+    if ((old.ac !== next.ac || old.au !== next.au) && (await tableExists(em, 'assessments'))) {
+      const rows = old.au === null ? await conn.execute<any[]>('select span_id from assessments') : await conn.execute<any[]>('select span_id from assessments where computed_at >= ?', [old.au]);
+      for (const r of rows) spanIds.add(r.span_id);
+    }
+    if (spanIds.size > PATCH_LIMIT || structures.length > PATCH_LIMIT) return false;
+    const ids = [...spanIds];
+    const rows: any[] = [];
+    for (let i = 0; i < ids.length; i += 400) rows.push(...(await this.spanRows(em, snap.pair, ids.slice(i, i + 400))));
+    // Every query done: apply the changes in one synchronous step (no tile is built from a half-patched snapshot).
+    for (const t of structures) upsertStructure(snap, t);
+    for (const r of rows) upsertSpan(snap, r);
+    snap.fp = next;
+    // A span or structure deleted while another was added keeps the counts level: re-read whole then.
+    return snap.n === next.sc && snap.structures.length === next.tc;
+  }
+
+  /** The rows a snapshot is made of: all spans, or the given ones. */
+  private async spanRows(em: EntityManager, pair: TilePair | null, ids?: string[]): Promise<any[]> {
+    const withAssessment = pair && (await tableExists(em, 'assessments'));
+    const params: unknown[] = withAssessment ? [pair!.harvesterProfileId, pair!.droneProfileId] : [];
+    if (ids) params.push(...ids);
+    return em.getConnection().execute<any[]>(
+      'select s.id, s.line_id, s.status, s.length_m, a.lon as lon0, a.lat as lat0, b.lon as lon1, b.lat as lat1' +
+        (withAssessment ? ', x.score, x.harvest_w, x.perchable' : '') +
+        ' from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id' +
+        (withAssessment ? ' left join assessments x on x.span_id = s.id and x.harvester_profile_id = ? and x.drone_profile_id = ?' : '') +
+        (ids ? ` where s.id in (${ids.map(() => '?').join(',')})` : ''),
+      params,
+    );
   }
 
   /**
@@ -124,20 +220,7 @@ export class SpanTileService {
    */
   private ensureWatcher() {
     if (this.watcher || this.closed) return;
-    let busy = false;
-    this.watcher = setInterval(() => {
-      if (busy || this.fingerprint === null) return;
-      busy = true;
-      this.readFingerprint(this.orm.em.fork())
-        .then((fp) => {
-          if (this.fingerprint !== null && fp !== this.fingerprint) {
-            this.invalidate();
-            this.fingerprint = fp;
-          }
-        })
-        .catch(() => undefined)
-        .finally(() => (busy = false));
-    }, FINGERPRINT_EVERY_MS);
+    this.watcher = setInterval(() => void this.syncNow(), FINGERPRINT_EVERY_MS);
     this.watcher.unref();
   }
 
@@ -172,65 +255,34 @@ export class SpanTileService {
   private async readSnapshot(pair: TilePair | null): Promise<Snapshot> {
     this.stats.snapshotLoads += 1;
     const em = this.orm.em.fork();
-    const conn = em.getConnection();
-    // The fingerprint the snapshot is read at: the watcher compares later readings with it.
-    this.fingerprint = await this.readFingerprint(em);
+    // The fingerprint is read first: anything written after it is picked up by the next sync.
+    const fp = await this.readFingerprint(em);
     this.ensureWatcher();
-    const withAssessment = pair && (await tableExists(em, 'assessments'));
-    const rows = await conn.execute<any[]>(
-      'select s.id, s.line_id, s.status, s.length_m, a.lon as lon0, a.lat as lat0, b.lon as lon1, b.lat as lat1' +
-        (withAssessment ? ', x.score, x.harvest_w, x.perchable' : '') +
-        ' from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id' +
-        (withAssessment ? ' left join assessments x on x.span_id = s.id and x.harvester_profile_id = ? and x.drone_profile_id = ?' : ''),
-      withAssessment ? [pair!.harvesterProfileId, pair!.droneProfileId] : [],
-    );
-    const n = rows.length;
+    const rows = await this.spanRows(em, pair);
+    const structures = await em.getConnection().execute<any[]>('select id, line_id, lon, lat, kind, label from structures');
     const snap: Snapshot = {
-      n,
-      ids: new Array(n),
-      lineIds: new Array(n),
-      statuses: new Array(n),
-      lon0: new Float64Array(n),
-      lat0: new Float64Array(n),
-      lon1: new Float64Array(n),
-      lat1: new Float64Array(n),
-      lengthM: new Float64Array(n),
-      score: new Float64Array(n),
-      harvestW: new Float64Array(n),
-      perchable: new Int8Array(n),
+      n: 0,
+      ids: [],
+      index: new Map(),
+      lineIds: [],
+      statuses: [],
+      lon0: [],
+      lat0: [],
+      lon1: [],
+      lat1: [],
+      lengthM: [],
+      score: [],
+      harvestW: [],
+      perchable: [],
       grid: new Map(),
       structures: [],
+      structureIndex: new Map(),
       structureGrid: new Map(),
+      pair,
+      fp,
     };
-    rows.forEach((r, i) => {
-      snap.ids[i] = r.id;
-      snap.lineIds[i] = r.line_id;
-      snap.statuses[i] = r.status;
-      snap.lon0[i] = r.lon0;
-      snap.lat0[i] = r.lat0;
-      snap.lon1[i] = r.lon1;
-      snap.lat1[i] = r.lat1;
-      snap.lengthM[i] = r.length_m;
-      snap.score[i] = r.score ?? NaN;
-      snap.harvestW[i] = r.harvest_w ?? NaN;
-      snap.perchable[i] = r.perchable === null || r.perchable === undefined ? -1 : r.perchable ? 1 : 0;
-      for (let x = gx(Math.min(r.lon0, r.lon1)); x <= gx(Math.max(r.lon0, r.lon1)); x++) {
-        for (let y = gy(Math.min(r.lat0, r.lat1)); y <= gy(Math.max(r.lat0, r.lat1)); y++) {
-          const k = gridKey(x, y);
-          const list = snap.grid.get(k);
-          if (list) list.push(i);
-          else snap.grid.set(k, [i]);
-        }
-      }
-    });
-    const structures = await conn.execute<any[]>('select id, line_id, lon, lat, kind, label from structures');
-    structures.forEach((s, i) => {
-      snap.structures.push({ id: s.id, lineId: s.line_id, lon: s.lon, lat: s.lat, kind: s.kind, label: s.label });
-      const k = gridKey(gx(s.lon), gy(s.lat));
-      const list = snap.structureGrid.get(k);
-      if (list) list.push(i);
-      else snap.structureGrid.set(k, [i]);
-    });
+    for (const r of rows) upsertSpan(snap, r);
+    for (const t of structures) upsertStructure(snap, t);
     return snap;
   }
 
@@ -276,6 +328,72 @@ export class SpanTileService {
     }
     return bytes;
   }
+}
+
+function gridCellsOf(lonA: number, latA: number, lonB: number, latB: number): number[] {
+  const keys: number[] = [];
+  for (let x = gx(Math.min(lonA, lonB)); x <= gx(Math.max(lonA, lonB)); x++) for (let y = gy(Math.min(latA, latB)); y <= gy(Math.max(latA, latB)); y++) keys.push(gridKey(x, y));
+  return keys;
+}
+
+function addToGrid(grid: Map<number, number[]>, keys: number[], i: number) {
+  for (const k of keys) {
+    const list = grid.get(k);
+    if (list) list.push(i);
+    else grid.set(k, [i]);
+  }
+}
+
+function removeFromGrid(grid: Map<number, number[]>, keys: number[], i: number) {
+  for (const k of keys) {
+    const list = grid.get(k);
+    if (!list) continue;
+    const at = list.indexOf(i);
+    if (at >= 0) list.splice(at, 1);
+  }
+}
+
+/** Adds a span row to the snapshot, or replaces the entry of the same id (moving it on the grid if need be). */
+function upsertSpan(snap: Snapshot, r: any) {
+  let i = snap.index.get(r.id);
+  if (i === undefined) {
+    i = snap.n++;
+    snap.index.set(r.id, i);
+    snap.ids[i] = r.id;
+  } else if (snap.lon0[i] !== r.lon0 || snap.lat0[i] !== r.lat0 || snap.lon1[i] !== r.lon1 || snap.lat1[i] !== r.lat1) {
+    removeFromGrid(snap.grid, gridCellsOf(snap.lon0[i], snap.lat0[i], snap.lon1[i], snap.lat1[i]), i);
+  } else {
+    i = -1 - i; // same place: no grid change
+  }
+  const at = i < 0 ? -1 - i : i;
+  snap.lineIds[at] = r.line_id;
+  snap.statuses[at] = r.status;
+  snap.lon0[at] = r.lon0;
+  snap.lat0[at] = r.lat0;
+  snap.lon1[at] = r.lon1;
+  snap.lat1[at] = r.lat1;
+  snap.lengthM[at] = r.length_m;
+  snap.score[at] = r.score ?? NaN;
+  snap.harvestW[at] = r.harvest_w ?? NaN;
+  snap.perchable[at] = r.perchable === null || r.perchable === undefined ? -1 : r.perchable ? 1 : 0;
+  if (i >= 0) addToGrid(snap.grid, gridCellsOf(r.lon0, r.lat0, r.lon1, r.lat1), at);
+}
+
+function upsertStructure(snap: Snapshot, t: any) {
+  const entry = { id: t.id, lineId: t.line_id, lon: t.lon, lat: t.lat, kind: t.kind, label: t.label };
+  const i = snap.structureIndex.get(t.id);
+  if (i === undefined) {
+    const at = snap.structures.push(entry) - 1;
+    snap.structureIndex.set(t.id, at);
+    addToGrid(snap.structureGrid, [gridKey(gx(t.lon), gy(t.lat))], at);
+    return;
+  }
+  const prev = snap.structures[i];
+  if (prev.lon !== t.lon || prev.lat !== t.lat) {
+    removeFromGrid(snap.structureGrid, [gridKey(gx(prev.lon), gy(prev.lat))], i);
+    addToGrid(snap.structureGrid, [gridKey(gx(t.lon), gy(t.lat))], i);
+  }
+  snap.structures[i] = entry;
 }
 
 function filterKey(f: SpanMapFilters) {
