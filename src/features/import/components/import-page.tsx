@@ -3,7 +3,7 @@ import { useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { INVENTORY_CSV_COLUMNS, type ImportAction, type ImportFormat, type ImportReport } from '#shared/schemas/inventory.ts';
 import { ApiError } from '../../../lib/api.ts';
-import { formatOfFile, runImport, type ProcessingProgress } from '../api.ts';
+import { formatOfFile, runImport } from '../api.ts';
 import type { UploadProgress } from '../upload.ts';
 import { ProgressBar } from './progress-bar.tsx';
 
@@ -22,7 +22,8 @@ export function ImportPage() {
   const [format, setFormat] = useState<ImportFormat>('csv');
   const [phase, setPhase] = useState<Phase>('idle');
   const [upload, setUpload] = useState<UploadProgress | null>(null);
-  const [processing, setProcessing] = useState<ProcessingProgress | null | 'waiting'>(null);
+  // True once the file is up and the server is working through the rows (it answers with the whole report).
+  const [processing, setProcessing] = useState(false);
   const [report, setReport] = useState<ImportReport | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [show, setShow] = useState<ImportAction | 'all'>('all');
@@ -32,7 +33,7 @@ export function ImportPage() {
     if (!file) return;
     setError(null);
     setUpload({ loaded: 0, total: file.size, fraction: 0 });
-    setProcessing(null);
+    setProcessing(false);
     setPhase(step === 'dry-run' ? 'checking' : 'committing');
     abort.current = new AbortController();
     try {
@@ -42,9 +43,8 @@ export function ImportPage() {
         format,
         (p) => {
           setUpload(p);
-          if (p.fraction === 1) setProcessing('waiting');
+          if (p.fraction === 1) setProcessing(true);
         },
-        (p) => setProcessing(p ?? 'waiting'),
         abort.current.signal,
       );
       setReport(r);
@@ -58,7 +58,7 @@ export function ImportPage() {
       setError(err instanceof ApiError && err.issues.length ? `${err.message}: ${err.issues.map((i) => `${i.path} — ${i.message}`).join('; ')}` : err instanceof Error ? err.message : 'The import failed; nothing was changed.');
     } finally {
       setUpload(null);
-      setProcessing(null);
+      setProcessing(false);
       abort.current = null;
     }
   };
@@ -134,8 +134,8 @@ export function ImportPage() {
             {processing && (
               <ProgressBar
                 label={phase === 'checking' ? 'Checking rows' : 'Saving'}
-                value={processing === 'waiting' || !processing.total ? null : processing.done / processing.total}
-                detail={processing !== 'waiting' && processing.total ? `${processing.done} of ${processing.total} rows` : 'the server is working through the rows'}
+                value={null}
+                detail={phase === 'checking' ? 'the server is checking every row' : 'saving every row in one transaction'}
               />
             )}
           </div>
