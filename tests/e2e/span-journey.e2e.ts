@@ -165,6 +165,13 @@ describe('span journey', () => {
     await expect.poll(() => page.locator('tbody tr[data-span-id]').count(), { timeout: 15_000 }).toBe(1);
     expect(await row.innerText()).toContain('Approved');
 
+    // The export buttons carry the same filter.
+    const csvHref = await page.getByRole('group', { name: 'Export the filtered spans' }).getByRole('link', { name: 'CSV' }).getAttribute('href');
+    expect(csvHref).toBe(`/api/spans/export.csv?status=approved&q=${encodeURIComponent(LABEL_A)}`);
+    const exported = await (await page.request.get(csvHref!)).text();
+    expect(exported).toContain(LABEL_A);
+    expect(exported.trim().split('\n')).toHaveLength(2);
+
     // The same URL opened afresh shows the same view.
     const shared = page.url();
     const other = await open();
