@@ -1,4 +1,8 @@
 import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { gzipSync } from 'node:zlib';
+import { writePmtiles } from '../../server/modules/map/pmtiles-writer.ts';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { PbfReader } from 'pbf';
 import { VectorTile } from '@mapbox/vector-tile';
@@ -247,6 +251,24 @@ describe('map style and assets', () => {
     expect(range.status).toBe(206);
     expect(Buffer.from(range.body).subarray(0, 7).toString()).toBe('PMTiles');
     expect((await c.get('/map/sprites/../../package.json')).status).toBe(404);
+  });
+
+  it('when BASEMAP_PATH names a PMTiles file of another region, then the style opens on that region', async () => {
+    const file = path.join(os.tmpdir(), `roostline-region-${process.pid}.pmtiles`);
+    fs.writeFileSync(file, writePmtiles({ tiles: [{ z: 0, x: 0, y: 0, data: gzipSync(Buffer.from('x')) }], metadata: {}, bounds: [10.1, 45.2, 10.9, 45.8], center: [10.5, 45.5, 9] }));
+    const other = await makeTestApp({ basemapPath: file });
+    try {
+      const style = (await other.client().get('/map/style.json')).body;
+      expect(style.center).toEqual([10.5, 45.5]);
+      expect(style.zoom).toBe(9);
+      expect(style.metadata['roostline:bbox']).toEqual([10.1, 45.2, 10.9, 45.8]);
+    } finally {
+      await other.close();
+      fs.rmSync(file, { force: true });
+    }
+    const own = (await t.client().get('/map/style.json')).body;
+    expect(own.center[0]).toBeCloseTo(-130.3, 6);
+    expect(own.center[1]).toBeCloseTo(-30.2, 6);
   });
 
   it('when BASEMAP_PATH names another file, then that file is served', async () => {

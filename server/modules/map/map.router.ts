@@ -9,7 +9,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import { parse } from '../../http/errors.ts';
 import { registerSpanListener } from '../inventory/inventory.service.ts';
 import { registerZoneListener } from '../zones/zone.service.ts';
-import { buildStyle, MAP_ASSETS_DIR, FONT_FILES } from './style.ts';
+import { basemapExtent, buildStyle, MAP_ASSETS_DIR, FONT_FILES } from './style.ts';
 import { SpanTileService } from './span-tiles.ts';
 
 const services = new WeakMap<AppContext, SpanTileService>();
@@ -69,7 +69,7 @@ export function mapRouter(ctx: AppContext) {
   const r = featureRouter('');
 
   r.get('/map/style.json', 'public', (req, res) => {
-    res.set('Cache-Control', 'no-cache').json(buildStyle(requestOrigin(req)));
+    res.set('Cache-Control', 'no-cache').json(buildStyle(requestOrigin(req), basemapExtent(ctx.config.basemapPath)));
   });
 
   // The basemap file itself; the client's PMTiles reader fetches byte ranges of it.

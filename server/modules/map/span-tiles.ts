@@ -173,10 +173,18 @@ export class SpanTileService {
     if (next.sc < old.sc || next.tc < old.tc || next.ac < old.ac) return false;
     const conn = em.getConnection();
     const spanIds = new Set<string>();
-    const since = (column: string, table: string, value: unknown) =>
-      value === null ? conn.execute<any[]>(`select * from ${table}`) : conn.execute<any[]>(`select * from ${table} where ${column} >= ?`, [value]);
-    for (const r of await conn.execute<any[]>(old.su === null ? 'select id from spans' : 'select id from spans where updated_at >= ?', old.su === null ? [] : [old.su])) spanIds.add(r.id);
-    const structures: any[] = old.tu === next.tu && old.tc === next.tc ? [] : await since('updated_at', 'structures', old.tu);
+    // Rows changed after the snapshot's latest change time, plus those stamped with exactly that time (a write in
+    // the same millisecond as the reading) unless a bulk write stamped very many rows with it: those were read.
+    const tooMany = false;
+    const since = async (table: string, column: string, value: unknown, columns: string): Promise<any[]> => {
+      if (value === null) return conn.execute<any[]>(`select ${columns} from ${table}`);
+      const later = await conn.execute<any[]>(`select ${columns} from ${table} where ${column} > ?`, [value]);
+      const [{ n }] = await conn.execute<{ n: number }[]>(`select count(*) as n from ${table} where ${column} = ?`, [value]);
+      if (Number(n) <= 1000) later.push(...(await conn.execute<any[]>(`select ${columns} from ${table} where ${column} = ?`, [value])));
+      return later;
+    };
+    if (old.su !== next.su || old.sc !== next.sc) for (const r of await since('spans', 'updated_at', old.su, 'id')) spanIds.add(r.id);
+    const structures: any[] = old.tu === next.tu && old.tc === next.tc ? [] : await since('structures', 'updated_at', old.tu, 'id, line_id, lon, lat, kind, label');
     const movedIds = structures.map((t) => t.id as string);
     for (let i = 0; i < movedIds.length; i += 400) {
       const chunk = movedIds.slice(i, i + 400);
@@ -184,9 +192,9 @@ export class SpanTileService {
       for (const r of await conn.execute<any[]>(`select id from spans where from_structure_id in (${marks}) or to_structure_id in (${marks})`, [...chunk, ...chunk])) spanIds.add(r.id);
     }
     if ((old.ac !== next.ac || old.au !== next.au) && (await tableExists(em, 'assessments'))) {
-      const rows = old.au === null ? await conn.execute<any[]>('select span_id from assessments') : await conn.execute<any[]>('select span_id from assessments where computed_at >= ?', [old.au]);
-      for (const r of rows) spanIds.add(r.span_id);
+      for (const r of await since('assessments', 'computed_at', old.au, 'span_id')) spanIds.add(r.span_id);
     }
+    if (tooMany) return false;
     if (spanIds.size > PATCH_LIMIT || structures.length > PATCH_LIMIT) return false;
     const ids = [...spanIds];
     const rows: any[] = [];

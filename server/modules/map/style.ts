@@ -1,4 +1,6 @@
+import fs from 'node:fs';
 import { createRequire } from 'node:module';
+import { bytesToHeader } from 'pmtiles';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { DEMO_BBOX, DEMO_CENTER } from '#shared/demo-region.ts';
@@ -102,13 +104,51 @@ export function basemapLayers() {
   ];
 }
 
+export interface BasemapExtent {
+  bbox: [number, number, number, number];
+  center: [number, number];
+  zoom: number;
+}
+
+const extentCache = new Map<string, { mtimeMs: number; extent: BasemapExtent }>();
+
+/**
+ * Bounds and centre of the configured basemap, from its PMTiles header, so a user's own region opens where it is;
+ * the demo region when the file cannot be read.
+ */
+export function basemapExtent(file: string): BasemapExtent {
+  const fallback: BasemapExtent = { bbox: [DEMO_BBOX.west, DEMO_BBOX.south, DEMO_BBOX.east, DEMO_BBOX.north], center: DEMO_CENTER, zoom: 10 };
+  try {
+    const { mtimeMs } = fs.statSync(file);
+    const cached = extentCache.get(file);
+    if (cached && cached.mtimeMs === mtimeMs) return cached.extent;
+    const fd = fs.openSync(file, 'r');
+    const bytes = Buffer.alloc(127);
+    try {
+      fs.readSync(fd, bytes, 0, 127, 0);
+    } finally {
+      fs.closeSync(fd);
+    }
+    if (bytes.subarray(0, 7).toString() !== 'PMTiles') return fallback;
+    const h = bytesToHeader(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + 127) as ArrayBuffer);
+    const valid = h.minLon < h.maxLon && h.minLat < h.maxLat;
+    const extent: BasemapExtent = valid
+      ? { bbox: [h.minLon, h.minLat, h.maxLon, h.maxLat], center: [h.centerLon, h.centerLat], zoom: h.centerZoom || Math.max(h.minZoom, 10) }
+      : fallback;
+    extentCache.set(file, { mtimeMs, extent });
+    return extent;
+  } catch {
+    return fallback;
+  }
+}
+
 /** The map style; every URL in it is on `origin` (the app itself). Overlay layers are added by the client. */
-export function buildStyle(origin: string) {
+export function buildStyle(origin: string, extent: BasemapExtent = basemapExtent('')) {
   return {
     version: 8,
     name: 'Roostline',
-    center: DEMO_CENTER,
-    zoom: 10,
+    center: extent.center,
+    zoom: extent.zoom,
     'font-faces': {
       [LABEL_FONT]: [
         { url: `${origin}/map/fonts/label-latin.woff2`, 'unicode-range': ['U+0000-00FF', 'U+0131', 'U+0152-0153', 'U+02BB-02BC', 'U+02C6', 'U+02DA', 'U+02DC', 'U+2000-206F', 'U+20AC', 'U+2122', 'U+2191', 'U+2193', 'U+2212', 'U+2215', 'U+FEFF', 'U+FFFD'] },
@@ -116,7 +156,8 @@ export function buildStyle(origin: string) {
       ],
     },
     sprite: `${origin}/map/sprites/sprite`,
-    metadata: { 'roostline:bbox': [DEMO_BBOX.west, DEMO_BBOX.south, DEMO_BBOX.east, DEMO_BBOX.north] },
+    // The client keeps the view near the basemap's region with this box.
+    metadata: { 'roostline:bbox': extent.bbox },
     sources: {
       basemap: { type: 'vector', url: `pmtiles://${origin}/map/basemap.pmtiles` },
       // Spans and structures come in the same server tiles (layers `spans` and `structures`).

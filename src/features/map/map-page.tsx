@@ -8,7 +8,6 @@ import MapView, { Layer, NavigationControl, ScaleControl, type MapLayerMouseEven
 import { addProtocol, setWorkerUrl, type Map as MapLibreMap, type VectorTileSource } from 'maplibre-gl';
 import workerUrl from 'maplibre-gl/dist/maplibre-gl-worker.mjs?url';
 import { Protocol } from 'pmtiles';
-import { DEMO_BBOX, DEMO_CENTER } from '#shared/demo-region.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { inventoryQueries } from '../spans/queries.ts';
@@ -120,6 +119,9 @@ export function MapPage() {
     setMap(m);
     if (m) {
       (window as unknown as { __roostlineMap?: MapLibreMap }).__roostlineMap = m;
+      // The style opens on the basemap's own region (its centre and zoom); keep the view near its box.
+      const bbox = (m.getStyle().metadata as Record<string, unknown> | undefined)?.['roostline:bbox'] as number[] | undefined;
+      if (bbox?.length === 4) m.setMaxBounds([bbox[0] - 1, bbox[1] - 1, bbox[2] + 1, bbox[3] + 1]);
       // 'idle': the style, every visible tile and every transition are done (a test's "map ready").
       m.once('idle', () => setReady(true));
     }
@@ -280,8 +282,6 @@ export function MapPage() {
           <MapView
             ref={mapRef}
             mapStyle={`${location.origin}/map/style.json`}
-            initialViewState={{ longitude: DEMO_CENTER[0], latitude: DEMO_CENTER[1], zoom: 10.5 }}
-            maxBounds={[DEMO_BBOX.west - 1, DEMO_BBOX.south - 1, DEMO_BBOX.east + 1, DEMO_BBOX.north + 1] as never}
             minZoom={8}
             maxZoom={18}
             dragRotate={false}
