@@ -175,7 +175,6 @@ export class SpanTileService {
     const spanIds = new Set<string>();
     // Rows changed after the snapshot's latest change time, plus those stamped with exactly that time (a write in
     // the same millisecond as the reading) unless a bulk write stamped very many rows with it: those were read.
-    const tooMany = false;
     const since = async (table: string, column: string, value: unknown, columns: string): Promise<any[]> => {
       if (value === null) return conn.execute<any[]>(`select ${columns} from ${table}`);
       const later = await conn.execute<any[]>(`select ${columns} from ${table} where ${column} > ?`, [value]);
@@ -194,7 +193,6 @@ export class SpanTileService {
     if ((old.ac !== next.ac || old.au !== next.au) && (await tableExists(em, 'assessments'))) {
       for (const r of await since('assessments', 'computed_at', old.au, 'span_id')) spanIds.add(r.span_id);
     }
-    if (tooMany) return false;
     if (spanIds.size > PATCH_LIMIT || structures.length > PATCH_LIMIT) return false;
     const ids = [...spanIds];
     const rows: any[] = [];
