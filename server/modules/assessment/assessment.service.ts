@@ -23,7 +23,7 @@ import { Zone } from '../zones/zone.entity.ts';
 import { isZoneActive } from '../zones/zone.service.ts';
 import { Assessment } from './assessment.entity.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
-import { activeDrones, activeHarvesters, currentSettings, defaultPair } from './profiles.service.ts';
+import { activeDrones, activeHarvesters, currentSettings, defaultPair, harvesterModel } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
 
 const BATCH = 500;
@@ -117,27 +117,6 @@ export function spanInputOf(rec: SpanRecords, now: Date = new Date()): { input: 
       surveyAgeDays,
       zones: { inExclude: rec.zones.inExclude, inCautionCount: rec.zones.inCautionCount },
     },
-  };
-}
-
-export function harvesterModel(p: HarvesterProfile): HarvesterModel {
-  return {
-    id: p.id,
-    name: p.name,
-    coreMaterial: p.coreMaterial,
-    turns: p.turns,
-    coreAreaMm2: p.coreAreaMm2,
-    pathLengthMm: p.pathLengthMm,
-    relativePermeability: p.relativePermeability,
-    airGapMm: p.airGapMm,
-    saturationT: p.saturationT,
-    windingResistanceOhm: p.windingResistanceOhm,
-    converterEfficiency: p.converterEfficiency,
-    massKg: p.massKg,
-    gripperMinDiameterMm: p.gripperMinDiameterMm,
-    gripperMaxDiameterMm: p.gripperMaxDiameterMm,
-    contactTempLimitC: p.contactTempLimitC,
-    usefulMinHarvestW: p.usefulMinHarvestW,
   };
 }
 

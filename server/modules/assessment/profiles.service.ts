@@ -6,6 +6,7 @@ import { harvest } from '#shared/engineering/ct-harvester.ts';
 import { benchTest as benchArithmetic } from '#shared/engineering/bench-test.ts';
 import type { BenchTestView, DroneProfileView, HarvesterProfileView, ScoringSettingsView } from '#shared/schemas/assessment.ts';
 import { BenchTest, DroneProfile, HarvesterProfile, ScoringSettingsVersion } from './profile.entity.ts';
+import type { HarvesterProfile as HarvesterModel } from '#shared/engineering/ct-harvester.ts';
 
 /**
  * Puts the invented demo profiles and the default scoring settings into empty tables, whether or not the demo
@@ -83,7 +84,8 @@ export function settingsView(row: ScoringSettingsVersion): ScoringSettingsView {
   };
 }
 
-export function harvesterView(p: HarvesterProfile): HarvesterProfileView {
+/** The profile as the pure engineering functions take it. */
+export function harvesterModel(p: HarvesterProfile): HarvesterModel {
   return {
     id: p.id,
     name: p.name,
@@ -101,6 +103,13 @@ export function harvesterView(p: HarvesterProfile): HarvesterProfileView {
     gripperMaxDiameterMm: p.gripperMaxDiameterMm,
     contactTempLimitC: p.contactTempLimitC,
     usefulMinHarvestW: p.usefulMinHarvestW,
+  };
+}
+
+export function harvesterView(p: HarvesterProfile): HarvesterProfileView {
+  return {
+    ...harvesterModel(p),
+    windingResistanceOhm: p.windingResistanceOhm,
     active: p.active,
     sortOrder: p.sortOrder,
     version: p.version,
