@@ -15,21 +15,11 @@ import { defaultAssessmentPair } from '../server/modules/inventory/inventory.ser
 import { SpanTileService } from '../server/modules/map/span-tiles.ts';
 import { DEMO_BBOX } from '../shared/demo-region.ts';
 import type { BenchRow } from './run.ts';
+import { prng } from '../shared/prng.ts';
 
 const SPANS = Number(process.env.BENCH_SPANS ?? 100_000);
 const SPANS_PER_LINE = 100;
 const STEP_DEG = 0.0018; // ≈ 170–200 m
-
-function prng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function tileOf(lon: number, lat: number, z: number) {
   const r = (lat * Math.PI) / 180;

@@ -10,21 +10,10 @@ import vtpbf from 'vt-pbf';
 import type { Feature, FeatureCollection, Geometry, Position } from 'geojson';
 import { DEMO_BBOX, DEMO_CENTER, DEMO_TOWNS, type DemoTown } from '../shared/demo-region.ts';
 import { writePmtiles, type PmtilesTile } from '../server/modules/map/pmtiles-writer.ts';
+import { prng } from '../shared/prng.ts';
 
 export const BASEMAP_MAX_ZOOM = 14;
 export const BASEMAP_LAYERS = ['land', 'landuse', 'water', 'waterway', 'roads', 'places'] as const;
-
-/** mulberry32: a small deterministic PRNG, so the same seed always draws the same region. */
-function prng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const KM_PER_DEG_LAT = 111.32;
 const KM_PER_DEG_LON = KM_PER_DEG_LAT * Math.cos((DEMO_CENTER[1] * Math.PI) / 180);

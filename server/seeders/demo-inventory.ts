@@ -11,20 +11,9 @@ import { Line } from '../modules/inventory/line.entity.ts';
 import { Span } from '../modules/inventory/span.entity.ts';
 import { Structure } from '../modules/inventory/structure.entity.ts';
 import { spanLengthM } from '../modules/inventory/inventory.service.ts';
+import { prng } from '../../shared/prng.ts';
 
 export const DEMO_OWNER = 'Harrow Vale Power Cooperative';
-
-/** mulberry32: a small seeded PRNG, so the demo is identical on every machine. */
-export function prng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const ID_ALPHABET = 'abcdefghijklmnopqrstuvwxyz234567';
 
