@@ -7,6 +7,7 @@ import { audit } from '../audit/audit.service.ts';
 import { Photo } from './photo.entity.ts';
 import type { PhotoStorage } from './photo.storage.ts';
 import type { ProcessedPhoto } from './photo.pipeline.ts';
+import type { PhotoView } from '#shared/schemas/photos.ts';
 
 /** How far from a span's line a photo may be and still be suggested for it, m. */
 export const SUGGEST_WITHIN_M = 60;
@@ -18,28 +19,7 @@ export const VARIANT_SUFFIX: Record<PhotoVariant, string> = { original: '.origin
 
 export const variantKey = (photo: Pick<Photo, 'storageKey'>, v: PhotoVariant) => photo.storageKey + VARIANT_SUFFIX[v];
 
-export interface PhotoApi {
-  id: string;
-  spanId: string | null;
-  hazardId: string | null;
-  uploaderId: string;
-  lat: number | null;
-  lon: number | null;
-  altitudeM: number | null;
-  bearingDeg: number | null;
-  bearingRef: string | null;
-  takenAt: string | null;
-  takenAtHasOffset: boolean;
-  positionSource: Photo['positionSource'];
-  contentType: string;
-  width: number;
-  height: number;
-  bytes: number;
-  thumbnailUrl: string;
-  displayUrl: string;
-  originalUrl: string;
-  createdAt: string;
-}
+export type PhotoApi = PhotoView;
 
 export function toApi(p: Photo): PhotoApi {
   const base = `/api/photos/${p.id}`;

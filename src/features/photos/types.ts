@@ -1,33 +1,7 @@
-// Photo records as the API returns them (SI units: m, degrees).
-export interface Photo {
-  id: string;
-  spanId: string | null;
-  hazardId: string | null;
-  uploaderId: string;
-  lat: number | null;
-  lon: number | null;
-  altitudeM: number | null;
-  bearingDeg: number | null;
-  bearingRef: string | null;
-  /** As written in the file: ISO 8601 with its offset, or a local time without one (takenAtHasOffset false). */
-  takenAt: string | null;
-  takenAtHasOffset: boolean;
-  positionSource: 'exif' | 'manual' | null;
-  contentType: string;
-  width: number;
-  height: number;
-  bytes: number;
-  thumbnailUrl: string;
-  displayUrl: string;
-  originalUrl: string;
-  createdAt: string;
-}
+import type { PhotoView, PhotoViewWithSuggestions } from '#shared/schemas/photos.ts';
 
-/** Upload, GET /:id and PATCH answers also carry the spans within 60 m, nearest first. */
-export interface PhotoWithSuggestions extends Photo {
-  suggestedSpanIds: string[];
-  suggestions: { spanId: string; distanceM: number }[];
-}
+export type Photo = PhotoView;
+export type PhotoWithSuggestions = PhotoViewWithSuggestions;
 
 /** Kept in step with the server's default (MAX_UPLOAD_BYTES); the server has the last word. */
 export const MAX_UPLOAD_BYTES = 25 * 1024 * 1024;
