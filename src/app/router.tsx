@@ -4,6 +4,7 @@ import { homeRedirect, requireSession, RoleGate, RouteErrorBoundary, signInLoade
 import { SignInPage } from '../features/auth/sign-in-page.tsx';
 import { AccountPage } from '../features/account/account-page.tsx';
 import { RoleHome } from '../features/home/role-home.tsx';
+import { PlanningHome } from '../features/planning/planning-home.tsx';
 import { StatusPage } from '../components/status-page.tsx';
 import { MySpansQueue } from '../features/field/components/my-spans-queue.tsx';
 import { SpanFormPage } from '../features/field/span-form-page.tsx';
@@ -50,7 +51,7 @@ export const router = createBrowserRouter([
           { path: 'spans/:id', element: <SpanDetailPage photosSlot={spanDetailPhotosSlot} /> },
           { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
           { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety"><ReviewDesk /></RoleHome></RoleGate> },
-          { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner" /></RoleGate> },
+          { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner"><PlanningHome /></RoleHome></RoleGate> },
           { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin"><AdminHome /></RoleHome></RoleGate> },
           { path: 'admin/outbox', element: <RoleGate roles={['admin']}><OutboxPage /></RoleGate> },
           { path: 'admin/profiles', element: <RoleGate roles={['admin']}><ProfilesPage /></RoleGate> },

@@ -55,3 +55,22 @@ describe('sign-in journeys', () => {
     await context.close();
   });
 });
+
+describe('planning home', () => {
+  it('when the planner lands, then approved spans are listed by harvestable power, highest first, with a chart', async () => {
+    const { context, page } = await h.newPage();
+    await h.signIn(page, 'planner');
+    await page.waitForURL((u) => u.pathname === '/planning');
+    const rows = page.locator('section[aria-labelledby="top-spans"] tbody tr');
+    await rows.first().waitFor({ timeout: 60_000 });
+    const watts = (await rows.locator('td:nth-child(3)').allInnerTexts()).map((t) => parseFloat(t));
+    expect(watts.length).toBeGreaterThan(1);
+    expect(watts.every((w) => w >= 20)).toBe(true);
+    expect([...watts].sort((a, b) => b - a)).toEqual(watts);
+    expect(await page.locator('[aria-label="Harvest power of the best spans"] svg').count()).toBeGreaterThan(0);
+    // A minimum above anything the demo harvests empties the list.
+    await page.getByLabel('Minimum harvest (W)').fill('100000');
+    await page.getByText('No approved span harvests at least 100000 W').waitFor();
+    await context.close();
+  });
+});
