@@ -13,7 +13,6 @@ import {
 } from '#shared/engineering/assessment.ts';
 import { ACSR_CONDUCTORS, DEFAULT_ABSORPTIVITY, DEFAULT_EMISSIVITY, findConductor, thermalConductorOf } from '#shared/engineering/conductors.ts';
 import { harvestCurve, harvestPowerW, type HarvesterProfile as HarvesterModel } from '#shared/engineering/ct-harvester.ts';
-import type { DroneProfile as DroneModel } from '#shared/engineering/demo-profiles.ts';
 import type { HarvestCurveView, SpanAssessmentView } from '#shared/schemas/assessment.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Line } from '../inventory/line.entity.ts';
@@ -23,7 +22,7 @@ import { Zone } from '../zones/zone.entity.ts';
 import { isZoneActive } from '../zones/zone.service.ts';
 import { Assessment } from './assessment.entity.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
-import { activeDrones, activeHarvesters, currentSettings, defaultPair, harvesterModel } from './profiles.service.ts';
+import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneModel, harvesterModel } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
 
 const BATCH = 500;
@@ -117,19 +116,6 @@ export function spanInputOf(rec: SpanRecords, now: Date = new Date()): { input: 
       surveyAgeDays,
       zones: { inExclude: rec.zones.inExclude, inCautionCount: rec.zones.inCautionCount },
     },
-  };
-}
-
-export function droneModel(p: DroneProfile): DroneModel {
-  return {
-    id: p.id,
-    name: p.name,
-    batteryWh: p.batteryWh,
-    reservePercent: p.reservePercent,
-    cruiseSpeedMps: p.cruiseSpeedMps,
-    windLimitMps: p.windLimitMps,
-    payloadKg: p.payloadKg,
-    approachClearanceM: p.approachClearanceM,
   };
 }
 

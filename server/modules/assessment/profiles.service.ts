@@ -7,6 +7,7 @@ import { benchTest as benchArithmetic } from '#shared/engineering/bench-test.ts'
 import type { BenchTestView, DroneProfileView, HarvesterProfileView, ScoringSettingsView } from '#shared/schemas/assessment.ts';
 import { BenchTest, DroneProfile, HarvesterProfile, ScoringSettingsVersion } from './profile.entity.ts';
 import type { HarvesterProfile as HarvesterModel } from '#shared/engineering/ct-harvester.ts';
+import type { DroneProfile as DroneModel } from '#shared/engineering/demo-profiles.ts';
 
 /**
  * Puts the invented demo profiles and the default scoring settings into empty tables, whether or not the demo
@@ -118,7 +119,7 @@ export function harvesterView(p: HarvesterProfile): HarvesterProfileView {
   };
 }
 
-export function droneView(p: DroneProfile): DroneProfileView {
+export function droneModel(p: DroneProfile): DroneModel {
   return {
     id: p.id,
     name: p.name,
@@ -128,6 +129,12 @@ export function droneView(p: DroneProfile): DroneProfileView {
     windLimitMps: p.windLimitMps,
     payloadKg: p.payloadKg,
     approachClearanceM: p.approachClearanceM,
+  };
+}
+
+export function droneView(p: DroneProfile): DroneProfileView {
+  return {
+    ...droneModel(p),
     active: p.active,
     sortOrder: p.sortOrder,
     version: p.version,

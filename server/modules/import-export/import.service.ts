@@ -23,7 +23,7 @@ import { Line } from '../inventory/line.entity.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
 import { chunks, lineSnapshot, newId, notifySpanChanged, spanLengthM, spanSnapshot, structureSnapshot } from '../inventory/inventory.service.ts';
-import { sameHazards, type HazardRecord } from '../inventory/spans.service.ts';
+import { sameHazards, type ConductorFields, type HazardRecord } from '../inventory/spans.service.ts';
 import { csvFieldName, geojsonFieldName, parseCsv, parseGeoJson, type FieldNamer, type RawRow } from './formats.ts';
 
 const LAT_LON_TOLERANCE_DEG = 1e-9;
@@ -31,16 +31,9 @@ const structurePartialSchema = structureCreateSchema.partial();
 
 type LineFields = Pick<Line, 'owner' | 'voltageKv' | 'frequencyHz' | 'phases' | 'loadTypicalA' | 'loadMinA' | 'loadPeakA' | 'loadProfileA'>;
 type StructureFields = Pick<Structure, 'lat' | 'lon' | 'kind' | 'attachmentHeightM'>;
-type SpanFields = Pick<
+type SpanFields = ConductorFields &
+  Pick<
   Span,
-  | 'conductorCodeWord'
-  | 'conductorSize'
-  | 'conductorMaterial'
-  | 'conductorDiameterMm'
-  | 'conductorResistanceLowOhmPerM'
-  | 'conductorTempLowC'
-  | 'conductorResistanceHighOhmPerM'
-  | 'conductorTempHighC'
   | 'phasePosition'
   | 'clearanceM'
   | 'lowestClearanceM'

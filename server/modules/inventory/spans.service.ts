@@ -38,7 +38,7 @@ export async function getSpanOr404(em: EntityManager, id: string): Promise<Span>
 
 // ---------- conductor ----------
 
-type ConductorFields = Pick<
+export type ConductorFields = Pick<
   Span,
   | 'conductorCodeWord'
   | 'conductorSize'
