@@ -7,6 +7,7 @@ import { Migration20261202032922 } from './Migration20261202032922.ts';
 import { Migration20261202032934 } from './Migration20261202032934.ts';
 import { Migration20261202033100 } from './Migration20261202033100.ts';
 import { Migration20261202034000 } from './Migration20261202034000.ts';
+import { Migration20261202052703 } from './Migration20261202052703.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202031719', class: Migration20261202031719 },
@@ -16,4 +17,5 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202032934', class: Migration20261202032934 },
   { name: 'Migration20261202033100', class: Migration20261202033100 },
   { name: 'Migration20261202034000', class: Migration20261202034000 },
+  { name: 'Migration20261202052703', class: Migration20261202052703 },
 ];

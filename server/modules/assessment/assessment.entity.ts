@@ -44,6 +44,6 @@ export const AssessmentSchema = new EntitySchema<Assessment>({
     settingsVersion: { type: 'integer' },
     harvesterVersion: { type: 'integer' },
     droneVersion: { type: 'integer' },
-    computedAt: { type: 'Date' },
+    computedAt: { type: 'Date', index: true }, // read by the map's change watcher
   },
 });

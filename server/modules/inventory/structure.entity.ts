@@ -29,6 +29,6 @@ export const StructureSchema = new EntitySchema<Structure>({
     attachmentHeightM: { type: 'double' },
     version: { type: 'integer', version: true },
     createdAt: { type: 'Date' },
-    updatedAt: { type: 'Date' },
+    updatedAt: { type: 'Date', index: true }, // read by the map's change watcher
   },
 });
