@@ -19,6 +19,7 @@ import { zonesRouter } from './modules/zones/zones.router.ts';
 import { mapRouter } from './modules/map/map.router.ts';
 import { photosRouter } from './modules/photos/photo.router.ts';
 import { assessmentRouters } from './modules/assessment/index.ts';
+import { evidenceRouter } from './modules/evidence/evidence.router.ts';
 
 export interface CreateAppOptions {
   orm: MikroORM;
@@ -66,6 +67,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api/zones', zonesRouter(ctx));
   app.use('/api/photos', photosRouter(ctx));
   app.use(assessmentRouters(ctx));
+  app.use(evidenceRouter(ctx));
   app.use(mapRouter(ctx));
   app.use('/api', notFoundHandler);
 
