@@ -20,6 +20,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/admin/outbox', label: 'Outbox', roles: ['admin'] },
   { to: '/admin/profiles', label: 'Profiles', roles: ['admin'] },
   { to: '/admin/scoring', label: 'Scoring', roles: ['admin'] },
+  { to: '/evidence', label: 'Load evidence', roles: ['admin', 'safety', 'planner'] },
   { to: '/calculators', label: 'Calculators' },
   { to: '/account', label: 'Account' },
 ];

@@ -22,6 +22,8 @@ import { AcceptInvitationPage } from '../features/auth/accept-invitation-page.ts
 import { ResetPasswordPage } from '../features/auth/reset-password-page.tsx';
 import { ForgotPasswordPage } from '../features/auth/forgot-password-page.tsx';
 import { ReviewDesk } from '../features/review/review-desk.tsx';
+import { EvidenceLinesPage } from '../features/evidence/components/evidence-lines-page.tsx';
+import { LineEvidencePage } from '../features/evidence/components/line-evidence-page.tsx';
 
 function Loading() {
   return <p className="p-8 text-center text-ink-700">Loading…</p>;
@@ -57,6 +59,8 @@ export const router = createBrowserRouter([
           { path: 'admin/profiles', element: <RoleGate roles={['admin']}><ProfilesPage /></RoleGate> },
           { path: 'admin/scoring', element: <RoleGate roles={['admin']}><ScoringSettingsPage /></RoleGate> },
           { path: 'calculators', Component: CalculatorsPage },
+          { path: 'evidence', Component: EvidenceLinesPage },
+          { path: 'evidence/lines/:id', Component: LineEvidencePage },
           { path: 'admin/audit', element: <RoleGate roles={['admin', 'safety']}><AuditLogPage /></RoleGate> },
           { path: 'account', Component: AccountPage },
           { path: '*', element: <StatusPage code={404} title="Nothing here" message="That page does not exist." /> },

@@ -190,3 +190,32 @@ describe('implied current calculator', () => {
     expect(res.body.error.message).toMatch(/ceiling of \d+\.\d\d W/);
   });
 });
+
+describe('demo load series', () => {
+  it('when the demo scenario is seeded, then its first line has a year of 15-minute readings whose hours follow its estimate', async () => {
+    const { seedDemoInventory, DEMO_LINES } = await import('../../server/seeders/demo-inventory.ts');
+    const { seedDemoLoadSeries } = await import('../../server/seeders/demo-load-series.ts');
+    const demo = await makeTestApp({}, { seed: async (orm) => {
+      await seedDemoInventory(orm.em.fork());
+      await seedDemoLoadSeries(orm.em.fork());
+    } });
+    try {
+      const c = await demo.as('planner');
+      const lines = (await c.get('/api/lines')).body.items as { id: string; name: string; loadProfileA: number[] }[];
+      const first = lines.find((l) => l.name === DEMO_LINES[0].name)!;
+      const ev = await c.get(`/api/lines/${first.id}/load-evidence?month=2026-04`);
+      expect(ev.status).toBe(200);
+      expect(ev.body.series).toMatchObject({ readingCount: 365 * 96, dayCount: 365, firstAt: '2026-01-01T00:00:00-09:00', lastAt: '2026-12-31T23:45:00-09:00' });
+      expect(ev.body.months).toHaveLength(12);
+      expect(ev.body.profile.source).toBe('series');
+      // The generator scales the estimate by season × day noise × reading noise, each within ±15 %, ±8 %, ±4 %.
+      for (const h of ev.body.profile.hours) {
+        expect(h.n).toBe(30 * 4);
+        expect(h.p50A / first.loadProfileA[h.hour]).toBeGreaterThan(0.75);
+        expect(h.p50A / first.loadProfileA[h.hour]).toBeLessThan(1.3);
+      }
+    } finally {
+      await demo.close();
+    }
+  });
+});

@@ -6,7 +6,7 @@ import { impliedCurrentA, PowerAboveCeilingError } from '#shared/engineering/imp
 import type { AppContext } from '../../context.ts';
 import { currentUser, featureRouter } from '../../http/access.ts';
 import { AppError, errorBody, parse } from '../../http/errors.ts';
-import { currentMonth, importLoadSeries, loadEvidence, loadProfile, LoadSeriesRefusedError } from './load-series.service.ts';
+import { currentMonth, importLoadSeries, seriesSummaries, loadEvidence, loadProfile, LoadSeriesRefusedError } from './load-series.service.ts';
 
 /** Largest load-series file accepted, bytes (several years of 5-minute readings). */
 export const MAX_LOAD_SERIES_BYTES = 200 * 1024 * 1024;
@@ -56,6 +56,11 @@ export function evidenceRouter(_ctx: AppContext) {
     res.json(await loadEvidence(req.em, String(req.params.id), q.month));
   });
 
+  const summaries = featureRouter('/api/load-series');
+  summaries.get('/', 'signed-in', async (req, res) => {
+    res.json({ items: await seriesSummaries(req.em) });
+  });
+
   const calc = featureRouter('/api/calc');
   calc.post('/implied-current', 'signed-in', (req, res) => {
     const input = parse(impliedCurrentSchema, req.body);
@@ -71,6 +76,7 @@ export function evidenceRouter(_ctx: AppContext) {
 
   root.use('/api/lines', lines.router);
   root.use('/api/calc', calc.router);
+  root.use('/api/load-series', summaries.router);
   root.use(evidenceErrorHandler);
   return root;
 }

@@ -207,3 +207,15 @@ export async function loadEvidence(em: EntityManager, lineId: string, month?: st
     harvest,
   };
 }
+
+/** What each line's series holds, for the list of lines. */
+export async function seriesSummaries(em: EntityManager) {
+  return (await em.find(LoadSeries, {})).map((s) => ({
+    lineId: s.lineId,
+    firstAt: s.firstAt,
+    lastAt: s.lastAt,
+    readingCount: s.readingCount,
+    dayCount: s.dayCount,
+    importedAt: s.importedAt.toISOString(),
+  }));
+}

@@ -1,0 +1,8 @@
+import { queryOptions } from '@tanstack/react-query';
+import { evidenceApi } from './api.ts';
+
+export const evidenceQueries = {
+  lines: () => queryOptions({ queryKey: ['evidence', 'lines'], queryFn: async () => (await evidenceApi.lines()).items }),
+  summaries: () => queryOptions({ queryKey: ['evidence', 'summaries'], queryFn: async () => (await evidenceApi.summaries()).items }),
+  line: (lineId: string, month?: string) => queryOptions({ queryKey: ['evidence', 'line', lineId, month ?? 'latest'], queryFn: () => evidenceApi.evidence(lineId, month) }),
+};
