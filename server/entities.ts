@@ -16,5 +16,6 @@ import { HazardKindSchema } from './modules/inventory/hazard-kind.entity.ts';
 import { ConductorTypeSchema } from './modules/inventory/conductor-type.entity.ts';
 import { PhotoSchema } from './modules/photos/photo.entity.ts';
 import { LoadSeriesDaySchema, LoadSeriesSchema } from './modules/evidence/load-series.entity.ts';
+import { FlightRecordSchema, PerchEventSchema } from './modules/evidence/flight-record.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema, FlightRecordSchema, PerchEventSchema];

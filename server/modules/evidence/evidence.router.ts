@@ -1,11 +1,15 @@
 // Load evidence: a line's metered currents (import, monthly profile, line page) and the implied-current calculator.
 import { Transform, type TransformCallback } from 'node:stream';
-import express, { type ErrorRequestHandler } from 'express';
+import express, { type ErrorRequestHandler, type RequestHandler } from 'express';
+import multer from 'multer';
+import { z } from 'zod';
 import { impliedCurrentSchema, loadProfileQuerySchema, loadSeriesQuerySchema } from '#shared/schemas/load-evidence.ts';
 import { impliedCurrentA, PowerAboveCeilingError } from '#shared/engineering/implied-current.ts';
 import type { AppContext } from '../../context.ts';
 import { currentUser, featureRouter } from '../../http/access.ts';
 import { AppError, errorBody, parse } from '../../http/errors.ts';
+import { getFlightRecord, listFlightRecords, perchEvidence, uploadFlightRecord } from './flight-record.service.ts';
+import { flightTemplateCsv } from './flight-template.ts';
 import { currentMonth, importLoadSeries, seriesSummaries, loadEvidence, loadProfile, LoadSeriesRefusedError } from './load-series.service.ts';
 
 /** Largest load-series file accepted, bytes (several years of 5-minute readings). */
@@ -31,6 +35,20 @@ export const evidenceErrorHandler: ErrorRequestHandler = (err, _req, res, next) 
   }
   next(err);
 };
+
+const MAX_FLIGHT_BYTES = 50 * 1024 * 1024;
+const flightUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: MAX_FLIGHT_BYTES, files: 1, fields: 5 } }).single('file');
+const receiveFlight: RequestHandler = (req, res, next) =>
+  flightUpload(req, res, (err: unknown) => {
+    if (!err) return next();
+    if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') return next(new AppError(413, 'payload_too_large', `file: larger than ${MAX_FLIGHT_BYTES / 1024 / 1024} MB`, [{ path: 'file', message: 'too large' }]));
+    next(AppError.field('file', 'send the flight record as the multipart field "file"'));
+  });
+const flightFieldsSchema = z.object({
+  spanId: z.string().max(64).optional(),
+  missionId: z.string().max(64).optional(),
+  harvesterProfileId: z.string().max(64).optional(),
+});
 
 export function evidenceRouter(_ctx: AppContext) {
   const root = express.Router();
@@ -61,6 +79,26 @@ export function evidenceRouter(_ctx: AppContext) {
     res.json({ items: await seriesSummaries(req.em) });
   });
 
+  const flights = featureRouter('/api/flight-records');
+  flights.get('/template.csv', 'signed-in', (_req, res) => {
+    res.type('text/csv').attachment('roostline-flight-record.csv').send(flightTemplateCsv());
+  });
+  flights.post('/', ['planner', 'safety', 'admin'], receiveFlight, async (req, res) => {
+    if (!req.file) throw AppError.field('file', 'attach the flight record (CSV or GPX) as "file"');
+    const fields = parse(flightFieldsSchema, req.body);
+    const text = req.file.buffer.toString('utf8');
+    if (text.includes('\u0000')) throw new AppError(415, 'unsupported_media_type', 'file: not a text file (CSV or GPX expected)', [{ path: 'file', message: 'not a text file' }]);
+    res.status(201).json(await uploadFlightRecord(req.em, currentUser(req), { text, name: req.file.originalname }, fields));
+  });
+  flights.get('/', 'signed-in', async (req, res) => res.json({ items: await listFlightRecords(req.em) }));
+  flights.get('/:id', 'signed-in', async (req, res) => res.json(await getFlightRecord(req.em, String(req.params.id))));
+
+  const ev = featureRouter('/api/evidence');
+  ev.get('/perches', 'signed-in', async (req, res) => {
+    const q = parse(z.object({ spanId: z.string().max(64).optional() }), req.query);
+    res.json(await perchEvidence(req.em, q));
+  });
+
   const calc = featureRouter('/api/calc');
   calc.post('/implied-current', 'signed-in', (req, res) => {
     const input = parse(impliedCurrentSchema, req.body);
@@ -77,6 +115,8 @@ export function evidenceRouter(_ctx: AppContext) {
   root.use('/api/lines', lines.router);
   root.use('/api/calc', calc.router);
   root.use('/api/load-series', summaries.router);
+  root.use('/api/flight-records', flights.router);
+  root.use('/api/evidence', ev.router);
   root.use(evidenceErrorHandler);
   return root;
 }
