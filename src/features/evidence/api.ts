@@ -27,3 +27,48 @@ export const evidenceApi = {
   importSeries: (lineId: string, file: Blob, mode: 'dry-run' | 'commit', timeZone: string | undefined, onProgress?: (p: UploadProgress) => void) =>
     uploadWithProgress<LoadSeriesReport>(`/api/lines/${lineId}/load-series${qs({ mode, timeZone })}`, file, onProgress, undefined, 'text/csv'),
 };
+
+export interface PerchEventView {
+  id: string;
+  kind: 'perch' | 'hover';
+  spanId: string | null;
+  lineId: string | null;
+  lineName?: string | null;
+  startAt: string;
+  endAt: string;
+  durationS: number;
+  lat: number;
+  lon: number;
+  spanDistanceM: number | null;
+  measuredW: number | null;
+  predictedW: number | null;
+  predictedSource: 'series' | 'estimate' | null;
+  lineCurrentA: number | null;
+  impliedCurrentA: number | null;
+  meteredCurrentA: number | null;
+  batteryStartPct: number | null;
+  batteryEndPct: number | null;
+  note: string | null;
+  ratio: number | null;
+  lowHarvest: boolean;
+}
+
+export interface FlightRecordView {
+  id: string;
+  fileName: string;
+  format: 'csv' | 'gpx';
+  startedAt: string;
+  endedAt: string;
+  pointCount: number;
+  track: [number, number][];
+  events: PerchEventView[];
+}
+
+export const flightApi = {
+  upload: (file: File, onProgress?: (p: UploadProgress) => void) => {
+    const body = new FormData();
+    body.append('file', file);
+    return uploadWithProgress<FlightRecordView>('/api/flight-records', body, onProgress);
+  },
+  perches: () => api.get<{ items: PerchEventView[]; lowHarvestSpanIds: string[] }>('/api/evidence/perches'),
+};

@@ -50,3 +50,29 @@ export function monthLabel(month: string): string {
   const [y, m] = month.split('-').map(Number);
   return `${MONTHS[m - 1]} ${y}`;
 }
+
+/** Residuals per line: the median of measured ÷ predicted over its perches, and how many perches. */
+export function residualsByLine(items: { lineName?: string | null; ratio: number | null }[]) {
+  const by = new Map<string, number[]>();
+  for (const i of items) if (i.ratio !== null && i.lineName) by.set(i.lineName, [...(by.get(i.lineName) ?? []), i.ratio]);
+  return [...by.entries()].map(([line, ratios]) => {
+    const s = [...ratios].sort((a, b) => a - b);
+    const mid = s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
+    return { line, medianPct: Math.round((mid - 1) * 1000) / 10, perches: s.length };
+  });
+}
+
+/** Track and stops projected to an SVG box (equirectangular around the track's middle latitude). */
+export function projectTrack(track: [number, number][], stops: { lat: number; lon: number }[], width: number, height: number) {
+  const lons = track.map((p) => p[0]);
+  const lats = track.map((p) => p[1]);
+  const midLat = (Math.min(...lats) + Math.max(...lats)) / 2;
+  const k = Math.cos((midLat * Math.PI) / 180);
+  const x0 = Math.min(...lons) * k;
+  const x1 = Math.max(...lons) * k;
+  const y0 = Math.min(...lats);
+  const y1 = Math.max(...lats);
+  const scale = Math.min((width - 20) / (x1 - x0 || 1e-9), (height - 20) / (y1 - y0 || 1e-9));
+  const at = (lon: number, lat: number): [number, number] => [10 + (lon * k - x0) * scale, height - 10 - (lat - y0) * scale];
+  return { path: track.map(([lon, lat]) => at(lon, lat)), stops: stops.map((s) => at(s.lon, s.lat)) };
+}

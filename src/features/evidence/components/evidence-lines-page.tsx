@@ -4,6 +4,7 @@ import { formatQuantity } from '#shared/units.ts';
 import { useMe } from '../../auth/queries.ts';
 import { evidenceQueries } from '../queries.ts';
 import { count, writtenTime } from '../format.ts';
+import { FlightRecordsSection } from './flight-records-section.tsx';
 
 /** Every line with what metered evidence it has. */
 export function EvidenceLinesPage() {
@@ -12,6 +13,7 @@ export function EvidenceLinesPage() {
   const summaries = useQuery(evidenceQueries.summaries());
   const byLine = new Map((summaries.data ?? []).map((s) => [s.lineId, s]));
   return (
+    <div className="space-y-4">
     <section className="card" aria-labelledby="evidence-lines">
       <h1 id="evidence-lines" className="mb-2 text-xl font-bold">Load evidence by line</h1>
       {lines.isPending && <p>Loading…</p>}
@@ -35,5 +37,7 @@ export function EvidenceLinesPage() {
         </tbody>
       </table>
     </section>
+    <FlightRecordsSection canUpload={me.roles.some((r) => r === 'planner' || r === 'safety' || r === 'admin')} />
+    </div>
   );
 }

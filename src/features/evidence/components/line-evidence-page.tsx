@@ -28,7 +28,7 @@ export function LineEvidencePage() {
     <div className="space-y-4">
       <div className="flex flex-wrap items-baseline gap-3">
         <Link to="/evidence" className="underline">Load evidence</Link>
-        <h1 className="text-2xl font-bold">{line ? `${line.name} · ${formatQuantity(line.voltageKv, 'voltage', me.unitSystem)}` : 'Line'}</h1>
+        <h1 className="text-2xl font-bold">{line ? line.name : 'Line'}</h1>
       </div>
       {q.error && <p role="alert" className="field-error">{q.error.message}</p>}
       {ev && (
