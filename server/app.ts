@@ -7,6 +7,7 @@ import type { AppConfig } from './env.ts';
 import type { AppContext } from './context.ts';
 import { createLucia } from './modules/auth/lucia.ts';
 import { errorHandler, notFoundHandler } from './http/errors.ts';
+import { Lifecycle } from './lifecycle.ts';
 import { originCheck, sessionMiddleware } from './http/session.ts';
 import { healthRouter } from './modules/health/health.router.ts';
 import { authRouter, meRouter } from './modules/auth/auth.router.ts';
@@ -30,10 +31,12 @@ export interface CreateAppOptions {
 
 export function createApp({ orm, config, clientDir = path.resolve('dist') }: CreateAppOptions) {
   const closers: (() => Promise<void> | void)[] = [];
-  const ctx: AppContext = { orm, config, lucia: createLucia(orm, config.secureCookies), onClose: (fn) => closers.push(fn) };
+  const lifecycle = new Lifecycle();
+  const ctx: AppContext = { orm, config, lucia: createLucia(orm, config.secureCookies), onClose: (fn) => closers.push(fn), lifecycle };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
+  app.use(lifecycle.middleware());
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -56,7 +59,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use(express.json({ limit: '1mb' }));
   app.use('/api', sessionMiddleware(ctx), originCheck(ctx));
 
-  app.use('/api/health', healthRouter());
+  app.use('/api/health', healthRouter(ctx));
   app.use('/api/auth', authRouter(ctx));
   app.use('/api/me', meRouter(ctx));
   app.use('/api', inventoryRouter(ctx));
@@ -83,5 +86,5 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   const close = async () => {
     for (const fn of closers.reverse()) await fn();
   };
-  return { app, ctx, close };
+  return { app, ctx, close, lifecycle };
 }

@@ -5,6 +5,20 @@ import { Migrator } from '@mikro-orm/migrations';
 import { entities } from './entities.ts';
 import { migrationsList } from './migrations/index.ts';
 
+/**
+ * How long a connection waits for another process's lock before SQLite gives up (SQLite retries inside this
+ * window itself). Inside the server there is one connection (knex's SQLite pool holds one), so the server's own
+ * writes queue in order and never meet a lock; only another process (a backup, a restore check) can hold one.
+ */
+export const BUSY_TIMEOUT_MS = 15_000;
+
+/**
+ * Every connection's settings, in order. WAL lets readers (and an online backup) go on while a writer commits;
+ * synchronous=FULL syncs the WAL at every commit, so a change answered with success survives a power cut as well
+ * as a killed process (NORMAL would only survive the latter).
+ */
+export const CONNECTION_PRAGMAS = ['PRAGMA foreign_keys = ON', 'PRAGMA journal_mode = WAL', 'PRAGMA synchronous = FULL', `PRAGMA busy_timeout = ${BUSY_TIMEOUT_MS}`];
+
 export function ormOptions(databasePath: string): Options {
   return {
     dbName: databasePath,
@@ -13,13 +27,14 @@ export function ormOptions(databasePath: string): Options {
     allowGlobalContext: false,
     debug: false,
     migrations: { migrationsList, snapshot: false, silent: true, transactional: true, allOrNothing: true },
-    // WAL lets readers go on while a writer commits; foreign keys on for every connection.
     pool: {
       afterCreate: (conn: any, done: (err: Error | null, conn: unknown) => void) => {
-        conn.run('PRAGMA foreign_keys = ON', () => {
-          if (databasePath === ':memory:') return done(null, conn);
-          conn.run('PRAGMA journal_mode = WAL', () => conn.run('PRAGMA busy_timeout = 5000', (err: Error | null) => done(err, conn)));
-        });
+        const pragmas = databasePath === ':memory:' ? CONNECTION_PRAGMAS.slice(0, 1) : CONNECTION_PRAGMAS;
+        const next = (i: number) => {
+          if (i === pragmas.length) return done(null, conn);
+          conn.run(pragmas[i], (err: Error | null) => (err ? done(err, conn) : next(i + 1)));
+        };
+        next(0);
       },
     },
   };
@@ -31,4 +46,10 @@ export async function initORM(databasePath: string): Promise<MikroORM> {
   const orm = await MikroORM.init(ormOptions(databasePath));
   await orm.getMigrator().up();
   return orm;
+}
+
+/** `PRAGMA integrity_check`: "ok", or the problems SQLite found. */
+export async function integrityCheck(orm: MikroORM): Promise<string> {
+  const rows = await orm.em.fork().getConnection().execute<{ integrity_check: string }[]>('PRAGMA integrity_check');
+  return rows.map((r) => r.integrity_check).join('\n');
 }

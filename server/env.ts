@@ -22,6 +22,16 @@ export interface AppConfig {
   signInBurst: number;
   signInWindowMs: number;
   logRequests: boolean;
+  /** On SIGTERM/SIGINT, how long requests in flight may take to finish before they are cut (SHUTDOWN_GRACE_MS; 20 s). */
+  shutdownGraceMs: number;
+  /** Health warns when the disk holding the database or the uploads has less free space than this (DISK_WARN_MB; 1024). */
+  diskWarnBytes: number;
+  /** Folder for the scheduled daily backup (BACKUP_DIR; unset = no scheduled backup). */
+  backupDir: string | null;
+  /** How many scheduled backups to keep, newest first (BACKUP_KEEP; 7). */
+  backupKeep: number;
+  /** UTC hour of the scheduled backup (BACKUP_HOUR_UTC; 2). */
+  backupHourUtc: number;
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
@@ -41,6 +51,11 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     signInBurst: Number(env.SIGN_IN_BURST ?? 10),
     signInWindowMs: Number(env.SIGN_IN_WINDOW_MS ?? 15 * 60_000),
     logRequests: env.LOG_REQUESTS === 'true',
+    shutdownGraceMs: Number(env.SHUTDOWN_GRACE_MS ?? 20_000),
+    diskWarnBytes: Number(env.DISK_WARN_MB ?? 1024) * 1024 * 1024,
+    backupDir: env.BACKUP_DIR ? path.resolve(env.BACKUP_DIR) : null,
+    backupKeep: Math.max(1, Number(env.BACKUP_KEEP ?? 7)),
+    backupHourUtc: Math.min(23, Math.max(0, Number(env.BACKUP_HOUR_UTC ?? 2))),
   };
 }
 

@@ -2,28 +2,56 @@ import { loadConfig } from './env.ts';
 import { initORM } from './db.ts';
 import { createApp } from './app.ts';
 import { seedDemoIfEmpty } from './seeders/index.ts';
+import { localDiskStorage } from './modules/photos/photo.storage.ts';
+import { sweepOrphans } from './modules/photos/photo.service.ts';
+import { claimServerLock, releaseServerLock } from './server-lock.ts';
 
+const startedAt = new Date();
 const config = loadConfig();
+claimServerLock(config.databasePath);
 const orm = await initORM(config.databasePath);
 if (config.seedDemo && (await seedDemoIfEmpty(orm))) console.log('Seeded the demo scenario into an empty database.');
-const { app, close } = createApp({ orm, config });
+
+// Files written before this start that no photo row names were left by a crash mid-upload (files are written
+// before the row): nothing can still be on its way to use them, so they go before the first request.
+const removed = await sweepOrphans(orm.em.fork(), localDiskStorage(config.uploadsDir), 0, startedAt).catch((err) => {
+  console.error('photos: start-up orphan sweep failed', err);
+  return [];
+});
+if (removed.length) console.log(`photos: removed ${removed.length} file(s) an interrupted upload left behind`);
+
+const { app, ctx, close, lifecycle } = createApp({ orm, config });
 const server = app.listen(config.port, () => {
   console.log(`Roostline is listening on http://localhost:${config.port} (database ${config.databasePath})`);
 });
 
 let stopping = false;
+/**
+ * SIGTERM/SIGINT: health answers "draining" and new requests get 503 at once; requests in flight get up to
+ * SHUTDOWN_GRACE_MS to finish; then background jobs stop at their next batch (their pending record stays, so the
+ * next start runs them again), the database is closed (which checkpoints the WAL) and the process exits 0.
+ */
 async function shutdown(signal: string) {
   if (stopping) return;
   stopping = true;
-  console.log(`${signal}: finishing open requests, then closing.`);
-  const force = setTimeout(() => process.exit(1), 10_000).unref();
-  server.close(async () => {
-    await close();
-    await orm.close();
-    clearTimeout(force);
-    process.exit(0);
+  lifecycle.draining = true;
+  console.log(`${signal}: draining — ${lifecycle.inFlight} request(s) in flight, up to ${config.shutdownGraceMs / 1000} s to finish.`);
+  // Should closing itself hang, leave with an error after the grace period and a margin.
+  setTimeout(() => {
+    console.error('Shutdown did not finish in time; exiting.');
+    process.exit(1);
+  }, config.shutdownGraceMs + 15_000).unref();
+  const finished = await lifecycle.idle(config.shutdownGraceMs);
+  if (!finished) console.error(`${lifecycle.inFlight} request(s) still running after ${config.shutdownGraceMs / 1000} s: cutting them.`);
+  await new Promise<void>((resolve) => {
+    server.close(() => resolve());
+    server.closeAllConnections();
   });
-  server.closeIdleConnections();
+  await close();
+  await orm.close();
+  releaseServerLock(config.databasePath);
+  console.log('Closed cleanly.');
+  process.exit(0);
 }
 process.on('SIGTERM', () => void shutdown('SIGTERM'));
 process.on('SIGINT', () => void shutdown('SIGINT'));

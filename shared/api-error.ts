@@ -15,4 +15,6 @@ export type ApiErrorCode =
   | 'payload_too_large'
   | 'unsupported_media_type'
   | 'too_many_requests'
+  | 'insufficient_storage'
+  | 'unavailable'
   | 'internal';

@@ -54,8 +54,27 @@ export function errorBody(code: ApiErrorCode, message: string, issues?: ApiIssue
   return { error: issues?.length ? { code, message, issues } : { code, message } };
 }
 
+/** Storage and database faults in words for the person whose change did not save; reads go on meanwhile. */
+export function storageFault(err: unknown): AppError | null {
+  const code = String((err as { code?: unknown })?.code ?? '');
+  const text = String((err as { message?: unknown })?.message ?? '');
+  if (code === 'ENOSPC' || code === 'EDQUOT' || code === 'SQLITE_FULL' || /SQLITE_FULL/.test(text))
+    return new AppError(507, 'insufficient_storage', "The server's disk is full, so this was not saved. Everything saved before is safe; ask your administrator to free space, then try again.");
+  if (code === 'EROFS' || code === 'EACCES' || code === 'EPERM' || code === 'SQLITE_READONLY' || /SQLITE_READONLY/.test(text))
+    return new AppError(503, 'unavailable', 'The server cannot write to its storage right now, so this was not saved. Everything saved before is safe; ask your administrator, then try again.');
+  if (code === 'SQLITE_BUSY' || /SQLITE_BUSY/.test(text))
+    return new AppError(503, 'unavailable', 'The server is busy and did not save this. Nothing was changed; try again in a moment.');
+  return null;
+}
+
 export const errorHandler: ErrorRequestHandler = (err, _req, res, _next) => {
   if (res.headersSent) return;
+  const fault = err instanceof AppError ? null : storageFault(err);
+  if (fault) {
+    console.error(err);
+    res.status(fault.status).set('Retry-After', '30').json(errorBody(fault.code, fault.message));
+    return;
+  }
   if (err instanceof AppError) {
     res.status(err.status).json(errorBody(err.code, err.message, err.issues));
     return;

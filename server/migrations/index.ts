@@ -9,6 +9,7 @@ import { Migration20261202033100 } from './Migration20261202033100.ts';
 import { Migration20261202034000 } from './Migration20261202034000.ts';
 import { Migration20261202052703 } from './Migration20261202052703.ts';
 import { Migration20261203094922 } from './Migration20261203094922.ts';
+import { Migration20261203102803 } from './Migration20261203102803.ts';
 import { Migration20261203113007 } from './Migration20261203113007.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
@@ -21,5 +22,6 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202034000', class: Migration20261202034000 },
   { name: 'Migration20261202052703', class: Migration20261202052703 },
   { name: 'Migration20261203094922', class: Migration20261203094922 },
+  { name: 'Migration20261203102803', class: Migration20261203102803 },
   { name: 'Migration20261203113007', class: Migration20261203113007 },
 ];

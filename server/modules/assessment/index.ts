@@ -1,4 +1,5 @@
 // The assessment feature as app.ts mounts it: its routers, and the hooks that keep stored assessments current.
+import { randomUUID } from 'node:crypto';
 import express from 'express';
 import type { EntityManager } from '@mikro-orm/core';
 import type { Polygon } from 'geojson';
@@ -8,7 +9,7 @@ import { registerSpanListener, type SpanChange } from '../inventory/inventory.se
 import { registerZoneListener, type ZoneChange } from '../zones/zone.service.ts';
 import { calcRouter } from '../calc/calc.router.ts';
 import { jobsRouter } from '../jobs/jobs.router.ts';
-import { jobRunnerFor } from '../jobs/job-runner.ts';
+import { enqueueDurable, listPending } from '../jobs/pending-work.ts';
 import { METHOD_VERSION } from '#shared/engineering/assessment.ts';
 import { assessSpans } from './assessment.service.ts';
 import { profilesRouter } from './profiles.router.ts';
@@ -37,14 +38,30 @@ async function spansNear(em: EntityManager, polygons: Polygon[]): Promise<string
   return [...ids];
 }
 
-/** Rescores a list of spans in the background (a line's load changed, a zone moved, an import landed). */
-function startRescoreOf(ctx: AppContext, reason: string, spanIds: string[]) {
-  return jobRunnerFor(ctx).enqueue('rescore-spans', reason, async (progress) => {
-    await assessmentReady(ctx);
-    const em = ctx.orm.em.fork();
-    progress.setTotal(spanIds.length);
-    await assessSpans(em, spanIds, { onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
+/** Rescores a list of spans in the background (a line's load changed, a zone moved, an import landed); recorded for a restart. */
+function startRescoreOf(ctx: AppContext, reason: string, spanIds: string[], key = `rescore:spans:${randomUUID()}`) {
+  return enqueueDurable(ctx, {
+    key,
+    kind: 'rescore-spans',
+    reason,
+    payload: { spanIds },
+    work: async (progress) => {
+      await assessmentReady(ctx);
+      const em = ctx.orm.em.fork();
+      progress.setTotal(spanIds.length);
+      await assessSpans(em, spanIds, { onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
+    },
   });
+}
+
+/** Rescoring a crash or a shutdown interrupted (its record is still in pending_work) runs again at start-up. */
+async function resumePendingRescores(ctx: AppContext) {
+  for (const row of await listPending(ctx)) {
+    const reason = `${row.reason} (again after a restart)`;
+    if (row.kind === 'rescore-all') startRescore(ctx, reason);
+    else if (row.kind === 'rescore-line') startRescore(ctx, reason, row.payload as { lineId?: string });
+    else if (row.kind === 'rescore-spans') startRescoreOf(ctx, reason, (row.payload as { spanIds: string[] }).spanIds, row.key);
+  }
 }
 
 /** Spans with no stored assessment, or one from an older method version, are rescored once at start-up. */
@@ -60,7 +77,9 @@ async function rescoreStaleAtStart(ctx: AppContext) {
 }
 
 export function assessmentRouters(ctx: AppContext) {
-  void rescoreStaleAtStart(ctx).catch((err) => console.error('start-up rescore check failed', err));
+  void resumePendingRescores(ctx)
+    .then(() => rescoreStaleAtStart(ctx))
+    .catch((err) => console.error('start-up rescore check failed', err));
   // Listeners are process-wide lists; each app only handles changes made through its own database.
   const mine = (em: EntityManager) => em.getDriver() === ctx.orm.em.getDriver();
 

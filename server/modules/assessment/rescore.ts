@@ -4,7 +4,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import type { RequestHandler } from 'express';
 import type { JobView } from '#shared/schemas/assessment.ts';
 import type { AppContext } from '../../context.ts';
-import { jobRunnerFor } from '../jobs/job-runner.ts';
+import { enqueueDurable } from '../jobs/pending-work.ts';
 import { assessSpans, countSpans } from './assessment.service.ts';
 import { ensureAssessmentDefaults } from './profiles.service.ts';
 
@@ -32,14 +32,19 @@ export function waitForAssessmentDefaults(ctx: AppContext): RequestHandler {
   };
 }
 
-/** Rescores every span (or one line's spans) in the background; a waiting job of the same scope is reused. */
+/**
+ * Rescores every span (or one line's spans) in the background; a waiting job of the same scope is reused. The need
+ * is recorded in the database first, so a crash or shutdown before the job ends reruns it on the next start.
+ */
 export function startRescore(ctx: AppContext, reason: string, scope: { lineId?: string } = {}): JobView {
-  const runner = jobRunnerFor(ctx);
   const key = scope.lineId ? `rescore:line:${scope.lineId}` : 'rescore:all';
-  return runner.enqueue(
-    scope.lineId ? 'rescore-line' : 'rescore-all',
+  return enqueueDurable(ctx, {
+    key,
+    kind: scope.lineId ? 'rescore-line' : 'rescore-all',
     reason,
-    async (progress) => {
+    payload: scope,
+    coalesce: true,
+    work: async (progress) => {
       await assessmentReady(ctx);
       const em = ctx.orm.em.fork();
       progress.setTotal(await countSpans(em, scope));
@@ -50,8 +55,7 @@ export function startRescore(ctx: AppContext, reason: string, scope: { lineId?: 
         shouldStop: () => progress.aborted,
       });
     },
-    { coalesceKey: key },
-  );
+  });
 }
 
 /** Recomputes some spans now, in the caller's unit of work (used after a span write). */

@@ -1,10 +1,49 @@
+import path from 'node:path';
+import type { AppContext } from '../../context.ts';
 import { featureRouter } from '../../http/access.ts';
+import { diskSpace, formatBytes, type DiskSpace } from './disk.ts';
 
-export function healthRouter() {
+/** Disk figures are read at most once a second, so a busy monitor cannot turn health into load. */
+const DISK_CACHE_MS = 1000;
+
+export function healthRouter(ctx: AppContext) {
   const r = featureRouter('/api/health');
-  // Answers only once the app exists, and the app is created after migrations have run.
-  r.get('/', 'public', (_req, res) => {
-    res.json({ status: 'ok' });
+  const places = [
+    ...(ctx.config.databasePath === ':memory:' ? [] : [{ holds: 'database', dir: path.dirname(ctx.config.databasePath) }]),
+    { holds: 'uploads', dir: ctx.config.uploadsDir },
+  ];
+  let cached: { at: number; disks: DiskSpace[] } | null = null;
+  const disks = async () => {
+    if (!cached || Date.now() - cached.at > DISK_CACHE_MS) cached = { at: Date.now(), disks: await diskSpace(places) };
+    return cached.disks;
+  };
+  const warnings = (list: DiskSpace[]) =>
+    list
+      .filter((d) => d.freeBytes < ctx.config.diskWarnBytes)
+      .map((d) => `Free disk space for the ${d.holds.join(' and ')} is low: ${formatBytes(d.freeBytes)} left (warning below ${formatBytes(ctx.config.diskWarnBytes)})`);
+
+  // Answers only once the app exists, and the app is created after migrations have run. Healthy: {"status":"ok"};
+  // low disk adds `warnings`; a shutdown in progress answers 503 {"status":"draining"}.
+  r.get('/', 'public', async (_req, res) => {
+    if (ctx.lifecycle.draining) {
+      res.status(503).set('Retry-After', '5').json({ status: 'draining' });
+      return;
+    }
+    const w = warnings(await disks());
+    res.json(w.length ? { status: 'ok', warnings: w } : { status: 'ok' });
+  });
+
+  // The figures behind it, for an operator's monitor.
+  r.get('/details', 'public', async (_req, res) => {
+    const list = await disks();
+    res.status(ctx.lifecycle.draining ? 503 : 200).json({
+      status: ctx.lifecycle.draining ? 'draining' : 'ok',
+      requestsInFlight: ctx.lifecycle.inFlight,
+      uptimeS: Math.round(process.uptime()),
+      disk: list,
+      diskWarnBelowBytes: ctx.config.diskWarnBytes,
+      warnings: warnings(list),
+    });
   });
   return r.router;
 }
