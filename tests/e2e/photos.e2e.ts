@@ -1,6 +1,5 @@
 // A surveyor adds a geotagged photo from the span form: a progress bar while it uploads, then the thumbnail,
 // linked to the span; the span page's gallery opens it full size.
-import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -15,22 +14,12 @@ let photoPath: string;
 let noGpsPath: string;
 
 beforeAll(async () => {
-  try {
-    execFileSync('exiftool', ['-ver']);
-  } catch {
-    throw new Error('exiftool is required for the photo journey: apt-get install -y libimage-exiftool-perl');
-  }
   tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-photo-e2e-'));
+  // ~0.6 MB, tagged 20 m north of the span's middle by exiftool (scripts/make-photo-fixtures.ts): a throttled upload takes seconds.
   photoPath = path.join(tmp, 'span-photo.jpg');
-  // Noise compresses badly, so the file is large enough (~0.6 MB) for the throttled upload to take a few seconds.
-  const jpeg = await sharp({ create: { width: 1200, height: 900, channels: 3, background: '#6a8', noise: { type: 'gaussian', mean: 120, sigma: 40 } } })
-    .jpeg({ quality: 80 })
-    .toBuffer();
-  fs.writeFileSync(photoPath, jpeg);
+  fs.copyFileSync(path.resolve('tests/fixtures/photos/journey-span-photo.jpg'), photoPath);
   noGpsPath = path.join(tmp, 'no-gps.jpg');
   fs.writeFileSync(noGpsPath, await sharp({ create: { width: 400, height: 300, channels: 3, background: '#8a6' } }).jpeg().toBuffer());
-  // 20 m north of the span's middle (the span built below runs east from -30.2, -130.3 for about 200 m).
-  execFileSync('exiftool', ['-q', '-overwrite_original', '-GPSLatitude=30.19982', '-GPSLatitudeRef=S', '-GPSLongitude=130.29896', '-GPSLongitudeRef=W', '-DateTimeOriginal=2026:05:04 10:11:12', '-OffsetTimeOriginal=-09:00', photoPath]);
   h = await startHarness();
 });
 

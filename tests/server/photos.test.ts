@@ -1,9 +1,9 @@
 // Photos: upload, EXIF, derivatives, serving, nearest-span suggestion, links, deletion.
-// The GPS-tagged files are written by an independent tool (Debian's exiftool), not by the code under test.
+// The GPS-tagged files were written by an independent tool (Debian's exiftool, scripts/make-photo-fixtures.ts) and are
+// committed in tests/fixtures/photos, so the tests need no EXIF tool; the code under test never wrote them.
 // A time zone far from UTC with a half-hour offset makes any leak of the server's zone into capture times visible.
 process.env.TZ = 'Pacific/Chatham';
 
-import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -24,6 +24,7 @@ import { processPhoto } from '../../server/modules/photos/photo.pipeline.ts';
 import { localDiskStorage, type PhotoStorage } from '../../server/modules/photos/photo.storage.ts';
 
 const MiB = 1024 * 1024;
+const FIXTURES = path.resolve('tests/fixtures/photos');
 let t: TestApp;
 let tmp: string;
 let uploadsDir: string;
@@ -40,17 +41,6 @@ const offset = (from: { lat: number; lon: number }, metres: number, bearingDeg: 
   const [lon, lat] = destination(point([from.lon, from.lat]), metres / 1000, bearingDeg).geometry.coordinates;
   return { lat, lon };
 };
-
-/** Pending exiftool jobs, run in one exiftool process (perl starts once) by writeTagged(). */
-const pendingTags: { name: string; file: string; args: string[] }[] = [];
-
-function writeTagged() {
-  const argfile = path.join(tmp, 'exiftool-args.txt');
-  const lines = pendingTags.flatMap((j, i) => [...(i ? ['-execute'] : []), '-q', '-overwrite_original', ...j.args, j.file]);
-  fs.writeFileSync(argfile, lines.join('\n') + '\n');
-  execFileSync('exiftool', ['-@', argfile]);
-  for (const j of pendingTags) files[j.name] = fs.readFileSync(j.file);
-}
 
 /** Files now in the uploads folder (recursively), as paths relative to it. */
 function storedFiles(): string[] {
@@ -69,12 +59,6 @@ async function baseJpeg(width: number, height: number) {
       raw[i + 2] = 128;
     }
   return sharp(raw, { raw: { width, height, channels: 3 } }).jpeg({ quality: 85 }).toBuffer();
-}
-
-async function tagged(name: string, args: string[], base: Buffer) {
-  const file = path.join(tmp, `${name}.jpg`);
-  fs.writeFileSync(file, base);
-  pendingTags.push({ name, file, args });
 }
 
 /** A real 1×1 PNG whose header is rewritten to claim width × height (CRC fixed), like a decompression bomb. */
@@ -100,35 +84,13 @@ async function seedScenario(orm: MikroORM) {
   await em.flush();
 }
 
-function gpsArgs(lat: number, lon: number, extra: string[] = []) {
-  return [`-GPSLatitude=${Math.abs(lat)}`, `-GPSLatitudeRef=${lat < 0 ? 'S' : 'N'}`, `-GPSLongitude=${Math.abs(lon)}`, `-GPSLongitudeRef=${lon < 0 ? 'W' : 'E'}`, ...extra];
-}
-
 beforeAll(async () => {
-  try {
-    execFileSync('exiftool', ['-ver']);
-  } catch {
-    throw new Error('exiftool is required for the photo tests: apt-get install -y libimage-exiftool-perl');
-  }
   tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-photos-'));
   uploadsDir = path.join(tmp, 'uploads');
   const base = await baseJpeg(400, 300);
   files.plain = base;
-  // Four hemispheres, each with altitude, bearing and a capture time with its offset.
-  await tagged('ne', gpsArgs(12.5, 45.25, ['-GPSAltitude=123.4', '-GPSAltitudeRef#=0', '-GPSImgDirection=271.5', '-GPSImgDirectionRef=T', '-DateTimeOriginal=2026:05:04 10:11:12', '-OffsetTimeOriginal=+09:30']), base);
-  await tagged('nw', gpsArgs(48.125, -3.75, ['-GPSAltitude=8', '-GPSAltitudeRef#=0', '-GPSImgDirection=90', '-GPSImgDirectionRef=M', '-DateTimeOriginal=2026:01:31 23:59:58', '-OffsetTimeOriginal=-03:00']), base);
-  await tagged('se', gpsArgs(-33.5, 151.25, ['-GPSAltitude=15.5', '-GPSAltitudeRef#=1', '-GPSImgDirection=5.25', '-GPSImgDirectionRef=T', '-DateTimeOriginal=2026:07:01 06:00:00', '-OffsetTimeOriginal=+00:00']), base);
-  await tagged('sw', gpsArgs(-22.75, -43.5, ['-GPSAltitude=2.25', '-GPSAltitudeRef#=1', '-GPSImgDirection=180', '-GPSImgDirectionRef=T', '-DateTimeOriginal=2026:12:24 18:30:00', '-OffsetTimeOriginal=-02:30']), base);
-  // No offset tag: the time is the camera's local time and must stay exactly as written.
-  await tagged('localTime', ['-DateTimeOriginal=2026:03:08 02:30:00'], base);
-  await tagged('rotated', ['-Orientation#=6'], base);
-  const nearAb = offset(offset(B, 100, 270), 20, 0); // 20 m north of the middle of A–B
-  const nearB = offset(offset(B, 10, 0), 5, 270); // 10 m north, 5 m west of B: A–B ≈ 10 m, B–C ≈ 11 m
-  const farAway = offset(B, 500, 0);
-  await tagged('nearAb', gpsArgs(nearAb.lat, nearAb.lon), base);
-  await tagged('nearB', gpsArgs(nearB.lat, nearB.lon), base);
-  await tagged('farAway', gpsArgs(farAway.lat, farAway.lon), base);
-  writeTagged();
+  // Four hemispheres with altitude, bearing and offset time; a local time; a rotated file; three positions near the spans.
+  for (const name of ['ne', 'nw', 'se', 'sw', 'localTime', 'rotated', 'nearAb', 'nearB', 'farAway']) files[name] = fs.readFileSync(path.join(FIXTURES, `${name}.jpg`));
   files.truncated = files.ne.subarray(0, Math.floor(files.ne.length * 0.6));
   files.webpGps = await sharp(files.se).keepExif().webp().toBuffer();
   files.png = await sharp(base).png().toBuffer();
@@ -153,7 +115,7 @@ const upload = (c: Client, name: string, opts: { filename?: string; contentType?
   return opts.spanId ? req.field('spanId', opts.spanId) : req;
 };
 
-describe('EXIF from files tagged by exiftool', () => {
+describe('EXIF from files tagged by an independent tool', () => {
   // Hemisphere signs: EXIF 2.32 §4.6.6 (GPSLatitudeRef 'N'/'S', GPSLongitudeRef 'E'/'W'; S and W are negative in WGS84 decimal degrees).
   // GPSAltitudeRef 1 = below sea level (EXIF 2.32 §4.6.6, tag 0x0005). OffsetTimeOriginal (EXIF 2.31+, tag 0x9011) gives "±HH:MM".
   it.each([
