@@ -5,6 +5,7 @@ import { seedDemoIfEmpty } from './seeders/index.ts';
 import { localDiskStorage } from './modules/photos/photo.storage.ts';
 import { sweepOrphans } from './modules/photos/photo.service.ts';
 import { claimServerLock, releaseServerLock } from './server-lock.ts';
+import { scheduleDailyBackups } from './backup/schedule.ts';
 
 const startedAt = new Date();
 const config = loadConfig();
@@ -21,6 +22,7 @@ const removed = await sweepOrphans(orm.em.fork(), localDiskStorage(config.upload
 if (removed.length) console.log(`photos: removed ${removed.length} file(s) an interrupted upload left behind`);
 
 const { app, ctx, close, lifecycle } = createApp({ orm, config });
+const stopBackups = scheduleDailyBackups(ctx);
 const server = app.listen(config.port, () => {
   console.log(`Roostline is listening on http://localhost:${config.port} (database ${config.databasePath})`);
 });
@@ -47,6 +49,7 @@ async function shutdown(signal: string) {
     server.close(() => resolve());
     server.closeAllConnections();
   });
+  stopBackups();
   await close();
   await orm.close();
   releaseServerLock(config.databasePath);

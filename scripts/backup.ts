@@ -1,0 +1,28 @@
+// npm run backup -- --out DIR      a consistent copy of the database and the photo files, while the server runs
+// npm run backup -- --verify DIR   checks a backup against its manifest (checksums, integrity check)
+import { loadConfig } from '../server/env.ts';
+import { createBackup, verifyBackup } from '../server/backup/backup.ts';
+
+const args = process.argv.slice(2);
+const arg = (name: string) => (args.indexOf(name) >= 0 ? args[args.indexOf(name) + 1] : undefined);
+const config = loadConfig();
+try {
+  if (arg('--verify')) {
+    const { manifest, problems } = await verifyBackup(arg('--verify')!);
+    if (problems.length) {
+      console.error(`The backup does not verify:\n- ${problems.join('\n- ')}`);
+      process.exit(1);
+    }
+    console.log(`The backup of ${manifest!.createdAt} verifies: ${manifest!.database.rows.spans ?? 0} spans, ${manifest!.files.length} photo files, integrity ok.`);
+  } else if (arg('--out')) {
+    const m = await createBackup({ databasePath: config.databasePath, uploadsDir: config.uploadsDir, outDir: arg('--out')! });
+    console.log(`Backed up ${config.databasePath} to ${arg('--out')}: ${m.database.rows.spans ?? 0} spans, ${m.database.rows.photos ?? 0} photos (${m.files.length} files).`);
+    if (m.photosDeletedDuringBackup.length) console.log(`${m.photosDeletedDuringBackup.length} photo(s) deleted while the copy ran are left out.`);
+  } else {
+    console.error('Usage: npm run backup -- --out DIR   |   npm run backup -- --verify DIR');
+    process.exit(2);
+  }
+} catch (err) {
+  console.error(err instanceof Error ? err.message : err);
+  process.exit(1);
+}
