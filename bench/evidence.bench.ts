@@ -66,7 +66,7 @@ export async function run(): Promise<BenchRow[]> {
     t = performance.now();
     const rnd = prng(500);
     for (let l = 1; l < LINES; l++) {
-      const days = [];
+      const days: { lineId: string; day: string; readingCount: number; readings: Buffer }[] = [];
       for (let d = 0; d < 365; d++) {
         const list: Reading[] = [];
         for (let q = 0; q < 96; q++) list.push({ epochS: START_S + d * 86_400 + q * 900, offsetMin: OFFSET_MIN, currentA: 400 + 300 * rnd() });

@@ -116,3 +116,17 @@ ${csv.map(([time, lat, lon, alt, bat, w]) => `    <trkpt lat="${lat}" lon="${lon
     expect(tpl.text.split('\n')[0]).toBe('time,lat,lon,altitude_m,battery_pct,harvest_w');
   });
 });
+
+describe('load estimate from flight evidence', () => {
+  it('when an admin applies the flight estimate, then the line estimate scales by the implied ÷ predicted current', async () => {
+    const { line } = await approvedSpan(-30.5);
+    const up = await upload(planner, flightCsv(-30.5, 20));
+    const perch = up.body.events.find((e: { kind: string }) => e.kind === 'perch');
+    const k = perch.impliedCurrentA / perch.lineCurrentA;
+    const admin = await t.as('admin');
+    const res = await admin.post(`/api/lines/${line.id}/load-estimate/from-evidence`, { source: 'flights', version: line.version });
+    expect(res.status).toBe(200);
+    expect(res.body.loadTypicalA).toBeCloseTo(line.loadTypicalA * k, 0); // one perch: the median ratio is its own
+    expect(res.body.loadProfileA[10]).toBeCloseTo(line.loadProfileA![10] * k, 0);
+  });
+});

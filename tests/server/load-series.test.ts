@@ -219,3 +219,29 @@ describe('demo load series', () => {
     }
   });
 });
+
+describe('load estimate from evidence', () => {
+  it('when an admin applies the series estimate, then the line takes its percentiles, the change is audited and its spans are rescored', async () => {
+    const { Assessment } = await import('../../server/modules/assessment/assessment.entity.ts');
+    const line = await makeLine(t.orm);
+    const span = await makeSpan(t.orm, line);
+    await post(admin, line.id, series(3), 'commit');
+    const before = await t.orm.em.fork().findOneOrFail(Assessment, { spanId: span.id }, { orderBy: { id: 'asc' } });
+    expect((await safety.post(`/api/lines/${line.id}/load-estimate/from-evidence`, { source: 'series', version: line.version })).status).toBe(403);
+    const res = await admin.post(`/api/lines/${line.id}/load-estimate/from-evidence`, { source: 'series', version: line.version });
+    expect(res.status).toBe(200);
+    // readings are 400 + 10·hour + (0…3): the median over the day is 400 + 10·11.5 + 1.5 (direct computation)
+    expect(res.body.loadTypicalA).toBeCloseTo(516.5, 1);
+    expect(res.body.loadPeakA).toBeCloseTo(633, 1);
+    expect(res.body.loadProfileA[7]).toBeCloseTo(471.5, 1);
+    expect(await t.orm.em.fork().count(AuditEntry, { recordId: line.id, action: 'line.update' })).toBe(1);
+    await expect
+      .poll(async () => (await t.orm.em.fork().findOne(Assessment, { spanId: span.id }, { orderBy: { id: 'desc' } }))?.computedAt.getTime() ?? 0, { timeout: 15_000 })
+      .toBeGreaterThan(before.computedAt.getTime());
+    const stale = await admin.post(`/api/lines/${line.id}/load-estimate/from-evidence`, { source: 'series', version: line.version });
+    expect(stale.status).toBe(409);
+    const none = await admin.post(`/api/lines/${(await makeLine(t.orm)).id}/load-estimate/from-evidence`, { source: 'flights', version: 1 });
+    expect(none.status).toBe(400);
+    expect(none.body.error.issues[0].path).toBe('source');
+  });
+});

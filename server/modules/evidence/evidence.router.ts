@@ -10,7 +10,8 @@ import { currentUser, featureRouter } from '../../http/access.ts';
 import { AppError, errorBody, parse } from '../../http/errors.ts';
 import { getFlightRecord, listFlightRecords, perchEvidence, uploadFlightRecord } from './flight-record.service.ts';
 import { flightTemplateCsv } from './flight-template.ts';
-import { currentMonth, importLoadSeries, seriesSummaries, loadEvidence, loadProfile, LoadSeriesRefusedError } from './load-series.service.ts';
+import { updateLine } from '../inventory/lines.service.ts';
+import { currentMonth, estimateFromEvidence, importLoadSeries, seriesSummaries, loadEvidence, loadProfile, LoadSeriesRefusedError } from './load-series.service.ts';
 
 /** Largest load-series file accepted, bytes (several years of 5-minute readings). */
 export const MAX_LOAD_SERIES_BYTES = 200 * 1024 * 1024;
@@ -62,6 +63,13 @@ export function evidenceRouter(_ctx: AppContext) {
     const input = req.pipe(new ByteLimit(MAX_LOAD_SERIES_BYTES));
     req.on('error', (e) => input.destroy(e));
     res.json(await importLoadSeries(req.em, currentUser(req), String(req.params.id), input, q.mode, q.timeZone));
+  });
+
+  // Replaces the line's load estimate with one derived from evidence: audited and rescored as any line edit.
+  lines.post('/:id/load-estimate/from-evidence', ['admin'], async (req, res) => {
+    const body = parse(z.object({ source: z.enum(['series', 'flights'], { error: 'source must be "series" or "flights"' }), version: z.number({ error: 'Give the line version you saw' }).int() }), req.body);
+    const derived = await estimateFromEvidence(req.em, String(req.params.id), body.source);
+    res.json(await updateLine(req.em, currentUser(req), String(req.params.id), { version: body.version, ...derived }));
   });
 
   lines.get('/:id/load-profile', 'signed-in', async (req, res) => {

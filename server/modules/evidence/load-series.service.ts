@@ -13,6 +13,7 @@ import { Span } from '../inventory/span.entity.ts';
 import { Assessment } from '../assessment/assessment.entity.ts';
 import { activeHarvesters, harvesterModel } from '../assessment/profiles.service.ts';
 import { LoadSeries, LoadSeriesDay } from './load-series.entity.ts';
+import { PerchEvent } from './flight-record.entity.ts';
 import { LoadSeriesReader, localHour, unpackReadings, type Reading } from './load-series.parse.ts';
 
 export class LoadSeriesRefusedError extends AppError {
@@ -218,4 +219,34 @@ export async function seriesSummaries(em: EntityManager) {
     dayCount: s.dayCount,
     importedAt: s.importedAt.toISOString(),
   }));
+}
+
+/**
+ * A load estimate from evidence: from the whole metered series (P10 as the minimum, the median as typical, the highest
+ * reading as the peak, hourly medians as the profile), or from flight records (the estimate scaled by the median ratio
+ * of implied to predicted line current over the line's perches).
+ */
+export async function estimateFromEvidence(em: EntityManager, lineId: string, source: 'series' | 'flights') {
+  const line = await lineOr404(em, lineId);
+  if (source === 'series') {
+    const days = await em.find(LoadSeriesDay, { lineId }, { orderBy: { day: 'asc' } });
+    const readings = days.flatMap((d) => unpackReadings(d.readings));
+    if (readings.length === 0) throw AppError.field('source', 'this line has no metered series');
+    const all = p10p50p90(readings.map((r) => r.currentA));
+    const peak = readings.reduce((m, r) => Math.max(m, r.currentA), 0);
+    const hours = profileFromReadings(readings);
+    const r1 = (v: number) => Math.round(v * 10) / 10;
+    return { loadMinA: r1(all.p10), loadTypicalA: r1(all.p50), loadPeakA: r1(peak), loadProfileA: hours.map((h) => r1(h.n ? h.p50A : all.p50)) };
+  }
+  const events = await em.find(PerchEvent, { lineId, kind: 'perch', impliedCurrentA: { $ne: null }, lineCurrentA: { $gt: 0 } });
+  if (events.length === 0) throw AppError.field('source', 'no perch on this line has a measured harvest yet');
+  const ratios = events.map((e) => e.impliedCurrentA! / e.lineCurrentA!);
+  const k = p10p50p90(ratios).p50;
+  const r1 = (v: number) => Math.round(v * k * 10) / 10;
+  return {
+    loadMinA: r1(line.loadMinA),
+    loadTypicalA: r1(line.loadTypicalA),
+    loadPeakA: r1(line.loadPeakA),
+    loadProfileA: Array.isArray(line.loadProfileA) ? line.loadProfileA.map(r1) : null,
+  };
 }

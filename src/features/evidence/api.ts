@@ -8,6 +8,7 @@ export interface LineSummary {
   voltageKv: number;
   frequencyHz: number;
   loadTypicalA: number;
+  version: number;
 }
 
 export interface SeriesSummary {
@@ -22,6 +23,7 @@ export interface SeriesSummary {
 export const evidenceApi = {
   lines: () => api.get<{ items: LineSummary[] }>('/api/lines'),
   summaries: () => api.get<{ items: SeriesSummary[] }>('/api/load-series'),
+  applyEstimate: (lineId: string, source: 'series' | 'flights', version: number) => api.post<LineSummary>(`/api/lines/${lineId}/load-estimate/from-evidence`, { source, version }),
   evidence: (lineId: string, month?: string) => api.get<LoadEvidenceView>(`/api/lines/${lineId}/load-evidence${qs({ month })}`),
   /** Sends the CSV as the request body: the server checks rows as they arrive, so upload progress is processing progress. */
   importSeries: (lineId: string, file: Blob, mode: 'dry-run' | 'commit', timeZone: string | undefined, onProgress?: (p: UploadProgress) => void) =>

@@ -1,6 +1,7 @@
 import { useState } from 'react';
 import { Link, useParams } from 'react-router';
-import { useQuery } from '@tanstack/react-query';
+import { useQuery, useQueryClient } from '@tanstack/react-query';
+import { evidenceApi } from '../api.ts';
 import { formatQuantity } from '#shared/units.ts';
 import { useMe } from '../../auth/queries.ts';
 import { evidenceQueries } from '../queries.ts';
@@ -23,6 +24,20 @@ export function LineEvidencePage() {
   const line = lines.data?.find((l) => l.id === id);
   const canImport = me.roles.some((r) => r === 'admin' || r === 'safety');
   const ev = q.data;
+  const qc = useQueryClient();
+  const [applied, setApplied] = useState<string | null>(null);
+  const apply = async (source: 'series' | 'flights') => {
+    if (!line) return;
+    if (!window.confirm(source === 'series' ? "Replace this line's load estimate with the metered series (P10, median, highest reading, hourly medians)? Its spans will be rescored." : "Scale this line's load estimate by what the flight records measured? Its spans will be rescored.")) return;
+    setApplied(null);
+    try {
+      const updated = await evidenceApi.applyEstimate(line.id, source, line.version);
+      setApplied(`Load estimate replaced: ${formatQuantity(updated.loadTypicalA, 'current', me.unitSystem)} typical. The line's spans are being rescored.`);
+      await qc.invalidateQueries({ queryKey: ['evidence'] });
+    } catch (e) {
+      setApplied((e as Error).message);
+    }
+  };
   const h = ev?.harvest.find((x) => x.harvesterId === harvesterId) ?? ev?.harvest[0];
   return (
     <div className="space-y-4">
@@ -44,6 +59,14 @@ export function LineEvidencePage() {
         </section>
       )}
       {canImport && <SeriesImportCard lineId={id} />}
+      {me.roles.includes('admin') && ev && (
+        <section className="card flex flex-wrap items-center gap-3" aria-label="Load estimate from evidence">
+          <span className="font-semibold">Load estimate from evidence</span>
+          <button type="button" className="btn-ghost" disabled={!ev.series} onClick={() => apply('series')}>Use the metered series</button>
+          <button type="button" className="btn-ghost" onClick={() => apply('flights')}>Scale by flight records</button>
+          {applied && <p role="status" className="w-full text-sm">{applied}</p>}
+        </section>
+      )}
       {ev && ev.months.length > 0 && (
         <>
           <section className="card" aria-labelledby="heat">
