@@ -21,7 +21,7 @@ const script = (name: string, args: string[], dir: string) => run(process.execPa
 
 async function upload(s: ChildServer, headers: Record<string, string>, jpeg: Buffer) {
   const form = new FormData();
-  form.append('photo', new Blob([jpeg], { type: 'image/jpeg' }), 'p.jpg');
+  form.append('photo', new Blob([new Uint8Array(jpeg)], { type: 'image/jpeg' }), 'p.jpg');
   const res = await fetch(`${s.baseUrl}/api/photos`, { method: 'POST', headers, body: form });
   if (res.status !== 201) throw new Error(`upload: ${res.status}`);
   return (await res.json()).id as string;
