@@ -162,8 +162,12 @@ describe('a graceful shutdown (SIGTERM)', () => {
     req.write(body.subarray(0, body.length >> 1));
     await new Promise((r) => setTimeout(r, 300));
     s.proc.kill('SIGTERM');
-    await new Promise((r) => setTimeout(r, 500));
-    const health = await fetch(`${s.baseUrl}/api/health`);
+    // A loaded machine may take a moment to deliver the signal: wait for the drain to begin (at most 10 s).
+    let health = await fetch(`${s.baseUrl}/api/health`);
+    for (let i = 0; i < 100 && health.status !== 503; i++) {
+      await new Promise((r) => setTimeout(r, 100));
+      health = await fetch(`${s.baseUrl}/api/health`);
+    }
     expect(health.status).toBe(503);
     expect(await health.json()).toEqual({ status: 'draining' });
     const refused = await fetch(`${s.baseUrl}/api/spans`, { headers });
