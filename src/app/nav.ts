@@ -15,6 +15,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/import', label: 'Import', roles: ['surveyor', 'admin'] },
   { to: '/review', label: 'Review desk', roles: ['safety'] },
   { to: '/planning', label: 'Planning', roles: ['planner'] },
+  { to: '/missions', label: 'Missions', roles: ['planner', 'safety', 'admin'] },
   { to: '/admin', label: 'Admin', roles: ['admin'] },
   { to: '/admin/audit', label: 'Audit log', roles: ['admin', 'safety'] },
   { to: '/admin/outbox', label: 'Outbox', roles: ['admin'] },

@@ -43,6 +43,10 @@ const DRONE_FIELDS: FieldSpec[] = [
   { key: 'windLimitMps', label: 'Wind limit', kind: 'speed' },
   { key: 'payloadKg', label: 'Payload', kind: 'mass' },
   { key: 'approachClearanceM', label: 'Approach clearance needed', kind: 'length' },
+  { key: 'cruisePowerW', label: 'Power at cruise airspeed', kind: 'power', hint: 'Electrical power the drone draws in level flight' },
+  { key: 'perchManoeuvreWh', label: 'Energy per perch (approach, dock, leave)', kind: 'energy' },
+  { key: 'chargeEfficiency', label: 'Battery charge efficiency', unit: '0–1', hint: 'Share of harvested energy stored; 0.95 is typical' },
+  { key: 'chargeToPercent', label: 'Charge to, on a perch', unit: '%', hint: 'The drone leaves a perch at this charge' },
   { key: 'sortOrder', label: 'Order (0 = default first)', unit: '' },
 ];
 const BENCH_FIELDS: FieldSpec[] = [
@@ -289,7 +293,7 @@ export function ProfilesPage() {
       {jobId && <JobProgress jobId={jobId} />}
       {errorText(remove.error) && <p className="field-error">{errorText(remove.error)}</p>}
       {list('harvester', harvesters.data, (h: HarvesterProfileView) => `${h.turns} turns, ${h.coreAreaMm2} mm², gap ${h.airGapMm.toPrecision(3)} mm, B_sat ${h.saturationT} T, gripper ${formatQuantity(h.gripperMinDiameterMm, 'diameter', system)}–${formatQuantity(h.gripperMaxDiameterMm, 'diameter', system)}`)}
-      {list('drone', drones.data, (d: DroneProfileView) => `${d.batteryWh} Wh, reserve ${d.reservePercent} %, wind limit ${formatQuantity(d.windLimitMps, 'speed', system)}`)}
+      {list('drone', drones.data, (d: DroneProfileView) => `${d.batteryWh} Wh, reserve ${d.reservePercent} %, wind limit ${formatQuantity(d.windLimitMps, 'speed', system)}${typeof (d as { cruisePowerW?: number }).cruisePowerW === 'number' ? `, cruise ${formatQuantity((d as { cruisePowerW?: number }).cruisePowerW, 'power', system, { digits: 0 })}` : ''}`)}
       {bench && <BenchTests key={bench.id} harvester={bench} system={system} onJob={setJobId} />}
     </div>
   );
