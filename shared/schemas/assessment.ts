@@ -215,4 +215,6 @@ export interface HarvestCurveView {
   harvestW: { min: number; typical: number; peak: number };
   /** Power over the day from the line's 24-hour load profile; null when the line has none. */
   daily: { hour: number; currentA: number; powerW: number }[] | null;
+  /** Where the currents of the day come from: the line's metered series for this month, or its estimate. */
+  loadSource?: 'series' | 'estimate';
 }

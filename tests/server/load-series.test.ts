@@ -245,3 +245,25 @@ describe('load estimate from evidence', () => {
     expect(none.body.error.issues[0].path).toBe('source');
   });
 });
+
+describe('the assessment on measured load', () => {
+  it('when a line has a series for this month, then its spans are assessed on it and say so; other months keep the estimate', async () => {
+    const { Assessment } = await import('../../server/modules/assessment/assessment.entity.ts');
+    const { assessSpans } = await import('../../server/modules/assessment/assessment.service.ts');
+    const line = await makeLine(t.orm);
+    const span = await makeSpan(t.orm, line);
+    const month = new Date().toISOString().slice(0, 7);
+    // Two days of this month at a flat 250 A (well below the 700 A estimate), at UTC.
+    const rows = ['timestamp,current_a'];
+    for (let i = 0; i < 2 * 96; i++) rows.push(`${new Date(Date.parse(`${month}-01T00:00:00Z`) + i * 900_000).toISOString().slice(0, 19)}Z,250`);
+    expect((await post(admin, line.id, rows.join('\n'), 'commit')).status).toBe(200);
+    await assessSpans(t.orm.em.fork(), [span.id]);
+    const row = await t.orm.em.fork().findOneOrFail(Assessment, { spanId: span.id }, { orderBy: { id: 'desc' } });
+    expect((row.inputs as { loadSource: string }).loadSource).toBe(`series ${month}`);
+    expect((row.inputs as { span: { loadCurrentA: { typical: number } } }).span.loadCurrentA.typical).toBeCloseTo(250, 3);
+    const curve = await admin.get(`/api/spans/${span.id}/harvest-curve`);
+    expect(curve.status).toBe(200);
+    expect(curve.body.loadSource).toBe('series');
+    expect(curve.body.daily[5].currentA).toBeCloseTo(250, 3);
+  });
+});

@@ -24,6 +24,7 @@ import { Assessment } from './assessment.entity.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneModel, harvesterModel } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
+import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
 
 const BATCH = 500;
 const DAY_MS = 86_400_000;
@@ -93,7 +94,7 @@ export function spanInputOf(rec: SpanRecords, now: Date = new Date()): { input: 
   const surveyAgeDays = span.surveyDate ? Math.max(0, Math.floor((now.getTime() - Date.parse(`${span.surveyDate}T00:00:00Z`)) / DAY_MS)) : null;
   return {
     conductorSource: conductor.source,
-    loadSource: load.source,
+    loadSource: load.source === 'line' && (line as MeasuredLine).measuredMonth ? `series ${(line as MeasuredLine).measuredMonth}` : load.source,
     input: {
       conductor: conductor.thermal,
       clearanceM: span.clearanceM,
@@ -159,7 +160,8 @@ function lineStringOf(from: Structure | null, to: Structure | null): LineString 
 /** Loads everything a batch of spans needs in a handful of queries. */
 async function recordsFor(em: EntityManager, spans: Span[], lineCache: Map<string, Line>, zonesOf: ReturnType<typeof zoneIndex>): Promise<SpanRecords[]> {
   const missingLines = [...new Set(spans.map((s) => s.lineId))].filter((id) => !lineCache.has(id));
-  if (missingLines.length) for (const l of await em.find(Line, { id: { $in: missingLines } })) lineCache.set(l.id, l);
+  // A line with a metered series for this month is assessed on it instead of its estimate (load evidence).
+  if (missingLines.length) for (const l of await withMeasuredLoad(em, await em.find(Line, { id: { $in: missingLines } }))) lineCache.set(l.id, l);
   const structureIds = [...new Set(spans.flatMap((s) => [s.fromStructureId, s.toStructureId]))];
   const structures = new Map((await em.find(Structure, { id: { $in: structureIds } })).map((s) => [s.id, s]));
   const hazards = await em.find(Hazard, { spanId: { $in: spans.map((s) => s.id) } });
@@ -356,8 +358,9 @@ export async function assessmentsOfSpan(em: EntityManager, spanId: string) {
 export async function harvestCurveOfSpan(em: EntityManager, spanId: string, harvesterId?: string): Promise<HarvestCurveView> {
   const span = await em.findOne(Span, { id: spanId });
   if (!span) throw AppError.notFound('Span');
-  const line = await em.findOne(Line, { id: span.lineId });
-  if (!line) throw AppError.notFound('Line');
+  const found = await em.findOne(Line, { id: span.lineId });
+  if (!found) throw AppError.notFound('Line');
+  const [line] = await withMeasuredLoad(em, [found]);
   const harvester = harvesterId
     ? await em.findOne(HarvesterProfile, { id: harvesterId })
     : (await defaultPair(em))?.harvester ?? (await em.find(HarvesterProfile, {}, { orderBy: { sortOrder: 'asc' }, limit: 1 }))[0];
@@ -382,5 +385,6 @@ export async function harvestCurveOfSpan(em: EntityManager, spanId: string, harv
     loadCurrentA: { min: load.min, typical: load.typical, peak: load.peak },
     harvestW: { min: at(load.min), typical: at(load.typical), peak: at(load.peak) },
     daily,
+    loadSource: (line as MeasuredLine).measuredMonth ? 'series' : 'estimate',
   };
 }

@@ -250,3 +250,30 @@ export async function estimateFromEvidence(em: EntityManager, lineId: string, so
     loadProfileA: Array.isArray(line.loadProfileA) ? line.loadProfileA.map(r1) : null,
   };
 }
+
+/** A line whose load figures come from its metered series for one month (a detached copy: never flushed). */
+export type MeasuredLine = Line & { measuredMonth?: string };
+
+/**
+ * The lines with their load estimate replaced, for the assessment, by the metered month when the series has it:
+ * P10 as the minimum, the median as typical, the highest hourly P90 as the peak, and the hourly medians as the profile.
+ */
+export async function withMeasuredLoad(em: EntityManager, lines: Line[], now = new Date()): Promise<MeasuredLine[]> {
+  if (lines.length === 0) return lines;
+  const month = currentMonth(now);
+  const profiles = await seriesProfiles(em, lines.map((l) => l.id), month);
+  return lines.map((l) => {
+    const hours = profiles.get(l.id);
+    if (!hours || hours.every((h) => h.n === 0)) return l;
+    const have = hours.filter((h) => h.n > 0);
+    const p50 = have.map((h) => h.p50A).sort((a, b) => a - b);
+    const copy: MeasuredLine = Object.assign(Object.create(Object.getPrototypeOf(l)), l, {
+      loadMinA: Math.min(...have.map((h) => h.p10A)),
+      loadTypicalA: p50[Math.floor(p50.length / 2)],
+      loadPeakA: Math.max(...have.map((h) => h.p90A)),
+      loadProfileA: hours.map((h) => (h.n > 0 ? h.p50A : p50[Math.floor(p50.length / 2)])),
+      measuredMonth: month,
+    });
+    return copy;
+  });
+}

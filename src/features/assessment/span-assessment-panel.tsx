@@ -134,6 +134,9 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
 
       <section aria-labelledby="daily-title" className="space-y-2">
         <h3 id="daily-title" className="font-bold">Power over the day</h3>
+        {curve.data?.daily && (
+          <p className="text-sm text-ink-700">{curve.data.loadSource === 'series' ? "From the line's metered currents for this month (hourly medians)." : "From the line's load estimate."}</p>
+        )}
         {curve.data && (curve.data.daily ? <DailyPowerChart daily={curve.data.daily} /> : <p className="text-ink-700">The line has no 24-hour load profile; add one on the line to see the daily harvest.</p>)}
       </section>
     </div>
