@@ -103,7 +103,7 @@ export function evidenceRouter(_ctx: AppContext) {
 
   const ev = featureRouter('/api/evidence');
   ev.get('/perches', 'signed-in', async (req, res) => {
-    const q = parse(z.object({ spanId: z.string().max(64).optional() }), req.query);
+    const q = parse(z.object({ spanId: z.string().max(64).optional(), harvesterProfileId: z.string().max(64).optional() }), req.query);
     res.json(await perchEvidence(req.em, q));
   });
 

@@ -158,8 +158,13 @@ export async function listFlightRecords(em: EntityManager) {
 }
 
 /** Every perch with both figures, for the measured-vs-predicted chart and the residuals per line. */
-export async function perchEvidence(em: EntityManager, filter: { spanId?: string } = {}) {
-  const events = await em.find(PerchEvent, { kind: 'perch', ...(filter.spanId ? { spanId: filter.spanId } : {}) }, { orderBy: { startAt: 'asc' } });
+export async function perchEvidence(em: EntityManager, filter: { spanId?: string; harvesterProfileId?: string } = {}) {
+  const recordIds = filter.harvesterProfileId ? (await em.find(FlightRecord, { harvesterProfileId: filter.harvesterProfileId }, { fields: ['id'] })).map((r) => r.id) : null;
+  const events = await em.find(
+    PerchEvent,
+    { kind: 'perch', ...(filter.spanId ? { spanId: filter.spanId } : {}), ...(recordIds ? { flightRecordId: { $in: recordIds } } : {}) },
+    { orderBy: { startAt: 'asc' } },
+  );
   const lineIds = [...new Set(events.map((e) => e.lineId).filter((x): x is string => !!x))];
   const names = new Map((lineIds.length ? await em.find(Line, { id: { $in: lineIds } }) : []).map((l) => [l.id, l.name]));
   const items = events.map((e) => ({ ...eventView(e), lineName: e.lineId ? (names.get(e.lineId) ?? null) : null }));

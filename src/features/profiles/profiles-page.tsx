@@ -14,7 +14,7 @@ import {
 import { harvest } from '#shared/engineering/ct-harvester.ts';
 import { formatQuantity, type UnitSystem } from '#shared/units.ts';
 import { Caution } from '../../components/caution.tsx';
-import { ApiError } from '../../lib/api.ts';
+import { api, ApiError } from '../../lib/api.ts';
 import { useMe } from '../auth/queries.ts';
 import { issuesByField, NumberFields, toSi, useFieldValues, type FieldSpec } from '../calculators/number-fields.tsx';
 import { JobProgress } from './job-progress.tsx';
@@ -295,6 +295,54 @@ export function ProfilesPage() {
       {list('harvester', harvesters.data, (h: HarvesterProfileView) => `${h.turns} turns, ${h.coreAreaMm2} mm², gap ${h.airGapMm.toPrecision(3)} mm, B_sat ${h.saturationT} T, gripper ${formatQuantity(h.gripperMinDiameterMm, 'diameter', system)}–${formatQuantity(h.gripperMaxDiameterMm, 'diameter', system)}`)}
       {list('drone', drones.data, (d: DroneProfileView) => `${d.batteryWh} Wh, reserve ${d.reservePercent} %, wind limit ${formatQuantity(d.windLimitMps, 'speed', system)}${typeof (d as { cruisePowerW?: number }).cruisePowerW === 'number' ? `, cruise ${formatQuantity((d as { cruisePowerW?: number }).cruisePowerW, 'power', system, { digits: 0 })}` : ''}`)}
       {bench && <BenchTests key={bench.id} harvester={bench} system={system} onJob={setJobId} />}
+      {bench && <FlightEvidence key={`f-${bench.id}`} harvester={bench} />}
     </div>
+  );
+}
+
+interface FlightPerch {
+  id: string;
+  measuredW: number | null;
+  meteredCurrentA: number | null;
+  lineCurrentA: number | null;
+  lineName: string | null;
+}
+
+/** Perches flown with this harvester: measured harvest at the line current of that moment, against the model. */
+function FlightEvidence({ harvester }: { harvester: HarvesterProfileView }) {
+  const q = useQuery({ queryKey: ['evidence', 'perches', 'harvester', harvester.id], queryFn: () => api.get<{ items: FlightPerch[] }>(`/api/evidence/perches?harvesterProfileId=${encodeURIComponent(harvester.id)}`) });
+  const points = (q.data?.items ?? [])
+    .filter((p) => p.measuredW !== null && (p.meteredCurrentA ?? p.lineCurrentA) !== null)
+    .map((p) => ({ currentA: Math.round((p.meteredCurrentA ?? p.lineCurrentA)!), measuredW: +p.measuredW!.toFixed(1), metered: p.meteredCurrentA !== null }));
+  const maxA = Math.max(100, ...points.map((p) => p.currentA)) * 1.15;
+  // The converter's output at the maximum-power load, which is what a perched drone measures.
+  const model = Array.from({ length: 41 }, (_, i) => {
+    const a = (maxA * i) / 40;
+    return { currentA: Math.round(a), modelW: +(harvest({ currentA: a, frequencyHz: 60, harvester }).powerW * harvester.converterEfficiency).toFixed(2) };
+  });
+  return (
+    <section className="card space-y-2" aria-labelledby="flight-evidence-title">
+      <h2 id="flight-evidence-title" className="text-lg font-bold">Flight evidence — {harvester.name}</h2>
+      {points.length === 0 ? (
+        <p className="text-ink-700">No perch flown with this harvester has a measured harvest yet. Upload flight records on the load evidence page.</p>
+      ) : (
+        <>
+          <div className="h-72 w-full" role="img" aria-label="Measured perch harvest against the profile's model">
+            <ResponsiveContainer width="100%" height="100%">
+              <ComposedChart margin={{ left: 8, right: 16, top: 8, bottom: 8 }}>
+                <CartesianGrid stroke="#dce9ea" />
+                <XAxis dataKey="currentA" type="number" unit=" A" domain={[0, 'dataMax']} allowDuplicatedCategory={false} />
+                <YAxis unit=" W" width={64} />
+                <Tooltip />
+                <Legend />
+                <Line data={model} dataKey="modelW" name="model after the converter (60 Hz)" stroke="#1d4f57" dot={false} strokeWidth={2} isAnimationActive={false} />
+                <Scatter data={points} dataKey="measuredW" name="measured on a perch" fill="#c98f28" isAnimationActive={false} />
+              </ComposedChart>
+            </ResponsiveContainer>
+          </div>
+          <p className="text-sm text-ink-700">Each point is one perch at the metered line current of that moment, or the estimate where the line has no series.</p>
+        </>
+      )}
+    </section>
   );
 }
