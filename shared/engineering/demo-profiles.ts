@@ -14,6 +14,14 @@ export interface DroneProfile {
   payloadKg: number;
   /** Clear height below the conductor the airframe needs to approach and perch, m. */
   approachClearanceM: number;
+  /** Electrical power at cruise airspeed, W. */
+  cruisePowerW: number;
+  /** Energy to approach, dock on and leave a perch, Wh. */
+  perchManoeuvreWh: number;
+  /** Battery charge efficiency, 0..1. */
+  chargeEfficiency: number;
+  /** Charge-to policy on a perch, percent. */
+  chargeToPercent: number;
 }
 
 /** Grain-oriented Si-steel split core: B_sat 1.8 T design limit (datasheet value), lapped faces ≈ 25 µm each. */
@@ -76,6 +84,11 @@ export const SWIFT_QUAD: DroneProfile = {
   windLimitMps: 12,
   payloadKg: 2.4,
   approachClearanceM: 3,
+  // 300 W at 12 m/s: about 40 Wh per 10 km in still air (invented, sized like the worked example of engineering.md §10).
+  cruisePowerW: 300,
+  perchManoeuvreWh: 3,
+  chargeEfficiency: 0.95,
+  chargeToPercent: 100,
 };
 
 export const HERON_HEX: DroneProfile = {
@@ -87,6 +100,10 @@ export const HERON_HEX: DroneProfile = {
   windLimitMps: 15,
   payloadKg: 3.2,
   approachClearanceM: 4,
+  cruisePowerW: 420,
+  perchManoeuvreWh: 4.5,
+  chargeEfficiency: 0.95,
+  chargeToPercent: 95,
 };
 
 export const DEMO_HARVESTERS: readonly HarvesterProfile[] = [KESTREL_CORE, MERLIN_CORE, KESTREL_OPEN_CORE];

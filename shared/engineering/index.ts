@@ -10,3 +10,6 @@ export * from './charge-time.ts';
 export * from './bench-test.ts';
 export * from './assessment.ts';
 export * from './demo-profiles.ts';
+export * from './wind-triangle.ts';
+export * from './mission-energy.ts';
+export * from './mission-leg.ts';

@@ -34,7 +34,11 @@ export const harvesterProfileUpdateSchema = harvesterProfileFields
   .refine(gripperOrdered, gripperIssue);
 export type HarvesterProfileUpdateInput = z.infer<typeof harvesterProfileUpdateSchema>;
 
-const droneProfileFields = z.object({
+const droneCruisePower = num('Cruise power').gt(0, 'Cruise power must be above 0').max(100_000);
+const dronePerchManoeuvre = num('Perch manoeuvre energy').min(0, 'Perch manoeuvre energy must be 0 or more').max(100_000);
+const droneChargeEfficiency = num('Charge efficiency').gt(0, 'Charge efficiency is above 0 and at most 1').max(1, 'Charge efficiency is above 0 and at most 1');
+const droneChargeTo = num('Charge-to level').gt(0, 'Charge-to level is above 0 and at most 100 %').max(100, 'Charge-to level is above 0 and at most 100 %');
+const droneProfileBase = z.object({
   name,
   batteryWh: num('Battery energy').gt(0, 'Battery energy must be above 0').max(100_000),
   reservePercent: num('Reserve').min(0, 'Reserve is 0–99 %').max(99, 'Reserve is 0–99 %'),
@@ -42,12 +46,25 @@ const droneProfileFields = z.object({
   windLimitMps: num('Wind limit').gt(0, 'Wind limit must be above 0').max(100),
   payloadKg: num('Payload').gt(0, 'Payload must be above 0').max(1000),
   approachClearanceM: num('Approach clearance').min(0).max(100),
+  cruisePowerW: droneCruisePower,
+  perchManoeuvreWh: dronePerchManoeuvre,
+  chargeEfficiency: droneChargeEfficiency,
+  chargeToPercent: droneChargeTo,
+  active: z.boolean(),
+  sortOrder: z.number().int().min(0).max(10_000),
+});
+const droneProfileFields = droneProfileBase.extend({
+  cruisePowerW: droneCruisePower.default(300),
+  perchManoeuvreWh: dronePerchManoeuvre.default(3),
+  chargeEfficiency: droneChargeEfficiency.default(0.95),
+  chargeToPercent: droneChargeTo.default(100),
   active: z.boolean().default(true),
   sortOrder: z.number().int().min(0).max(10_000).default(0),
 });
 export const droneProfileCreateSchema = droneProfileFields;
 export type DroneProfileCreateInput = z.infer<typeof droneProfileCreateSchema>;
-export const droneProfileUpdateSchema = droneProfileFields.partial().extend({ version: z.number().int().min(1) });
+/** An edit changes only the fields it carries (no defaults fill the others in). */
+export const droneProfileUpdateSchema = droneProfileBase.partial().extend({ version: z.number().int().min(1) });
 export type DroneProfileUpdateInput = z.infer<typeof droneProfileUpdateSchema>;
 
 export const benchTestCreateSchema = z.object({

@@ -69,6 +69,14 @@ export class DroneProfile {
   payloadKg!: number;
   /** Clear height below the conductor the airframe needs to approach and perch, m. */
   approachClearanceM!: number;
+  /** Electrical power at cruise airspeed, W. */
+  cruisePowerW = 300;
+  /** Energy to approach, dock on and leave a perch, Wh. */
+  perchManoeuvreWh = 3;
+  /** Battery charge efficiency, 0..1. */
+  chargeEfficiency = 0.95;
+  /** Charge-to policy on a perch, percent. */
+  chargeToPercent = 100;
   active = true;
   sortOrder = 0;
   version = 1;
@@ -88,6 +96,10 @@ export const DroneProfileSchema = new EntitySchema<DroneProfile>({
     windLimitMps: { type: 'double' },
     payloadKg: { type: 'double' },
     approachClearanceM: { type: 'double' },
+    cruisePowerW: { type: 'double', default: 300 },
+    perchManoeuvreWh: { type: 'double', default: 3 },
+    chargeEfficiency: { type: 'double', default: 0.95 },
+    chargeToPercent: { type: 'double', default: 100 },
     active: { type: 'boolean', default: true },
     sortOrder: { type: 'integer', default: 0 },
     version: { type: 'integer', default: 1 },

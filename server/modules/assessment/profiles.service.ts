@@ -129,6 +129,10 @@ export function droneModel(p: DroneProfile): DroneModel {
     windLimitMps: p.windLimitMps,
     payloadKg: p.payloadKg,
     approachClearanceM: p.approachClearanceM,
+    cruisePowerW: p.cruisePowerW,
+    perchManoeuvreWh: p.perchManoeuvreWh,
+    chargeEfficiency: p.chargeEfficiency,
+    chargeToPercent: p.chargeToPercent,
   };
 }
 
