@@ -12,6 +12,7 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/field', label: 'My spans', roles: ['surveyor'] },
   { to: '/spans', label: 'Spans' },
   { to: '/map', label: 'Map' },
+  { to: '/lines', label: 'Lines' },
   { to: '/import', label: 'Import', roles: ['surveyor', 'admin'] },
   { to: '/review', label: 'Review desk', roles: ['safety'] },
   { to: '/planning', label: 'Planning', roles: ['planner'] },

@@ -25,6 +25,7 @@ import { ReviewDesk } from '../features/review/review-desk.tsx';
 import { EvidenceLinesPage } from '../features/evidence/components/evidence-lines-page.tsx';
 import { LineEvidencePage } from '../features/evidence/components/line-evidence-page.tsx';
 import { MissionsListPage } from '../features/missions/missions-list-page.tsx';
+import { LinePage, LinesPage } from '../features/lines/line-page.tsx';
 
 function Loading() {
   return <p className="p-8 text-center text-ink-700">Loading…</p>;
@@ -55,10 +56,13 @@ export const router = createBrowserRouter([
           { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
           { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety"><ReviewDesk /></RoleHome></RoleGate> },
           { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner"><PlanningHome /></RoleHome></RoleGate> },
+          { path: 'lines', Component: LinesPage },
+          { path: 'lines/:id', Component: LinePage },
           { path: 'missions', Component: MissionsListPage },
           // The plan screen carries the map library: its own lazy chunk.
           { path: 'missions/new', lazy: async () => { const m = await import('../features/missions/plan-page.tsx'); return { element: <RoleGate roles={['planner']}><m.PlanPage /></RoleGate> }; } },
           { path: 'missions/:id', lazy: () => import('../features/missions/plan-page.tsx') },
+          { path: 'missions/:id/brief', lazy: () => import('../features/missions/mission-brief-page.tsx') },
           { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin"><AdminHome /></RoleHome></RoleGate> },
           { path: 'admin/outbox', element: <RoleGate roles={['admin']}><OutboxPage /></RoleGate> },
           { path: 'admin/profiles', element: <RoleGate roles={['admin']}><ProfilesPage /></RoleGate> },

@@ -13,7 +13,8 @@ import { PlanMap, type PlaceKind } from './plan-map.tsx';
 import { ChargeChart, LegsTable, PerchTable, PlanSummary } from './plan-views.tsx';
 import { missionQueries } from './queries.ts';
 import { formatOffset, browserOffsetMinutes, infeasibleText, isoToLocalInput, localInputToIso, offsetOf, routeStops } from './transforms.ts';
-import type { LatLon, Mission, MissionObjective, PlanRequest, PlanResult } from './types.ts';
+import type { LatLon, MissionObjective, PlanRequest, PlanResult } from './types.ts';
+import { missionRequest } from './plan-page-request.ts';
 
 interface FormState {
   base: LatLon | null;
@@ -31,21 +32,6 @@ function defaultDeparture() {
   const d = new Date(Date.now() + 24 * 3600_000);
   d.setHours(9, 0, 0, 0);
   return isoToLocalInput(d.toISOString());
-}
-
-/** The plan request a saved mission was made from, wherever the server keeps it. */
-export function missionRequest(m: Mission): Partial<PlanRequest> {
-  const r = m.input ?? m.request;
-  return {
-    droneProfileId: r?.droneProfileId ?? m.droneProfileId,
-    harvesterProfileId: r?.harvesterProfileId ?? m.harvesterProfileId,
-    base: r?.base ?? m.base,
-    target: r?.target ?? m.target,
-    departAt: r?.departAt ?? m.departAt,
-    wind: r?.wind ?? m.wind ?? undefined,
-    returnToBase: r?.returnToBase ?? m.returnToBase,
-    objective: r?.objective ?? m.objective,
-  };
 }
 
 function CoordFields({ label, value, onChange, id }: { label: string; value: LatLon | null; onChange: (v: LatLon | null) => void; id: string }) {
