@@ -9,6 +9,7 @@ import { createLucia } from './modules/auth/lucia.ts';
 import { errorHandler, notFoundHandler } from './http/errors.ts';
 import { Lifecycle } from './lifecycle.ts';
 import { originCheck, sessionMiddleware } from './http/session.ts';
+import { idempotency } from './http/idempotency.ts';
 import { healthRouter } from './modules/health/health.router.ts';
 import { authRouter, meRouter } from './modules/auth/auth.router.ts';
 import { inventoryRouter } from './modules/inventory/inventory.router.ts';
@@ -58,6 +59,8 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   );
   app.use(express.json({ limit: '1mb' }));
   app.use('/api', sessionMiddleware(ctx), originCheck(ctx));
+  // Creating POSTs may carry an Idempotency-Key (retries from the offline queue).
+  app.use(['/api/structures', '/api/spans', '/api/lines', '/api/photos', '/api/zones', '/api/hazard-kinds', '/api/profiles', '/api/admin'], idempotency(ctx));
 
   app.use('/api/health', healthRouter(ctx));
   app.use('/api/auth', authRouter(ctx));
