@@ -44,15 +44,20 @@ describe('mission screens', () => {
     await context.close();
   });
 
-  it('when an admin opens a drone profile, then the mission energy fields are on the form', async () => {
+  it('when an admin saves a drone profile’s mission energy fields, then every stored value shows when the form reopens', async () => {
     const { context, page } = await h.newPage();
     await signedIn(page, 'admin');
     await page.goto('/admin/profiles');
     await page.getByRole('heading', { name: 'Drone profiles' }).waitFor();
-    await page.getByRole('button', { name: 'New drone' }).click();
-    for (const label of ['Power at cruise airspeed', 'Energy per perch', 'Battery charge efficiency', 'Charge to, on a perch']) {
-      expect(await page.getByLabel(label, { exact: false }).count()).toBeGreaterThan(0);
-    }
+    const drones = page.locator('section[aria-labelledby="drones-title"]');
+    await drones.getByRole('button', { name: 'Edit' }).first().click();
+    const values: Record<string, string> = { cruisePowerW: '321', perchManoeuvreWh: '4.5', chargeEfficiency: '0.93', chargeToPercent: '95' };
+    for (const [key, v] of Object.entries(values)) await page.locator(`#drone-${key}`).fill(v);
+    await page.getByRole('button', { name: /Save as version/ }).click();
+    // The list shows the saved version's cruise power once the profiles are read again.
+    await drones.getByText('cruise 321.0 W').or(drones.getByText('cruise 321 W')).first().waitFor();
+    await drones.getByRole('button', { name: 'Edit' }).first().click();
+    for (const [key, v] of Object.entries(values)) expect(await page.locator(`#drone-${key}`).inputValue()).toBe(v);
     await context.close();
   });
 

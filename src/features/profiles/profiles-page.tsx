@@ -76,7 +76,7 @@ function ProfileForm({
 }) {
   const specs = kind === 'harvester' ? HARVESTER_FIELDS : DRONE_FIELDS;
   const qc = useQueryClient();
-  const f = useFieldValues(specs, (initial ?? { sortOrder: 10 }) as unknown as Record<string, number>, system);
+  const f = useFieldValues(specs, (initial ?? (kind === 'drone' ? { sortOrder: 10, chargeEfficiency: 0.95, chargeToPercent: 100 } : { sortOrder: 10 })) as unknown as Record<string, number>, system);
   const [name, setName] = useState(initial?.name ?? '');
   const [active, setActive] = useState(initial?.active ?? true);
   const [coreMaterial, setCoreMaterial] = useState<string>((initial as HarvesterProfileView | null)?.coreMaterial ?? 'si-steel');
@@ -293,7 +293,7 @@ export function ProfilesPage() {
       {jobId && <JobProgress jobId={jobId} />}
       {errorText(remove.error) && <p className="field-error">{errorText(remove.error)}</p>}
       {list('harvester', harvesters.data, (h: HarvesterProfileView) => `${h.turns} turns, ${h.coreAreaMm2} mm², gap ${h.airGapMm.toPrecision(3)} mm, B_sat ${h.saturationT} T, gripper ${formatQuantity(h.gripperMinDiameterMm, 'diameter', system)}–${formatQuantity(h.gripperMaxDiameterMm, 'diameter', system)}`)}
-      {list('drone', drones.data, (d: DroneProfileView) => `${d.batteryWh} Wh, reserve ${d.reservePercent} %, wind limit ${formatQuantity(d.windLimitMps, 'speed', system)}${typeof (d as { cruisePowerW?: number }).cruisePowerW === 'number' ? `, cruise ${formatQuantity((d as { cruisePowerW?: number }).cruisePowerW, 'power', system, { digits: 0 })}` : ''}`)}
+      {list('drone', drones.data, (d: DroneProfileView) => `${d.batteryWh} Wh, reserve ${d.reservePercent} %, wind limit ${formatQuantity(d.windLimitMps, 'speed', system)}, cruise ${formatQuantity(d.cruisePowerW, 'power', system, { digits: 0 })}`)}
       {bench && <BenchTests key={bench.id} harvester={bench} system={system} onJob={setJobId} />}
       {bench && <FlightEvidence key={`f-${bench.id}`} harvester={bench} />}
     </div>
