@@ -219,6 +219,10 @@ export const spanListQuerySchema = z.object({
   /** Only spans surveyed by this user; `mine=true` means the signed-in user. */
   surveyorId: z.string().trim().max(64).optional(),
   mine: z.preprocess((v) => v === 'true' || v === '1' || v === true, z.boolean()).optional(),
+  /** true: only spans that pass every blocking gate for at least one active harvester × drone pair; false: only the others. */
+  perchable: z
+    .preprocess((v) => (v === '' || v === undefined ? undefined : v === 'true' || v === '1' || v === true ? true : v === 'false' || v === '0' || v === false ? false : v), z.boolean({ error: 'perchable is true or false' }))
+    .optional(),
   q: z.string().trim().max(200, 'Use at most 200 characters').optional(),
   minHarvestW: optionalNumber('the minimum harvest power'),
   minScore: optionalNumber('the minimum score'),
@@ -349,6 +353,12 @@ export interface Span {
   approvedAt: string | null;
   approvedById: string | null;
   assessment: SpanAssessmentSummary | null;
+  /** Passes every blocking gate for at least one active harvester × drone pair; null when not assessed yet. */
+  perchable?: boolean | null;
+  /** Approved but no longer perchable: flagged on the review desk until a safety officer decides. */
+  needsDecision?: boolean;
+  /** The blocking gates that fail (in words) when the span is not perchable. */
+  failingGates?: { id: string; label: string; detail: string; pairs: string[] }[];
   createdAt: string;
   updatedAt: string;
 }

@@ -19,6 +19,7 @@ import { assessmentReady, rescoreSpansNow, startRescore } from './rescore.ts';
 
 export { assessmentForSpans, assessSpans, defaultPairIds } from './assessment.service.ts';
 export { startRescore } from './rescore.ts';
+export { perchableSpanIds, perchableSql, perchStandings, freshPerchStanding, refusalOf, gateWord, type PerchStanding, type PerchableQuery } from './perchable.ts';
 
 /** Up to this many spans are recomputed within the request that changed them; more go to a background job. */
 const INLINE_LIMIT = 50;

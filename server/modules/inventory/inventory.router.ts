@@ -29,6 +29,7 @@ import { createLine, createStructure, lineCounts, updateLine, updateStructure } 
 import { createSpan, getSpanOr404, transitionSpan, updateSpan, type TransitionName } from './spans.service.ts';
 import { listSpans } from './spans.query.ts';
 import { importExportRouter } from '../import-export/import-export.router.ts';
+import { assessmentReady } from '../assessment/rescore.ts';
 
 /** Stale versions answer 409 with the saved record in `error.current`, so the client can show both versions. */
 export const staleVersionHandler: ErrorRequestHandler = async (err, req, res, next) => {
@@ -115,6 +116,7 @@ export function inventoryRouter(ctx: AppContext) {
         q: q.q || undefined,
         minHarvestW: q.minHarvestW,
         minScore: q.minScore,
+        perchable: q.perchable,
         sort: q.sort,
         page: q.page,
         pageSize: q.pageSize,
@@ -132,6 +134,8 @@ export function inventoryRouter(ctx: AppContext) {
   });
   const transition = (name: TransitionName, needsReason: boolean) => async (req: express.Request, res: express.Response) => {
     const input = needsReason ? parse(spanReasonTransitionSchema, req.body) : parse(spanTransitionSchema, req.body);
+    // Approval judges a fresh assessment, which needs the default profiles in place.
+    if (name === 'approve' || name === 'reinstate') await assessmentReady(ctx);
     res.json(await transitionSpan(req.em, currentUser(req), String(req.params.id), name, input));
   };
   spans.post('/:id/submit', ['surveyor'], transition('submit', false));

@@ -14,6 +14,7 @@ import type {
 } from '#shared/schemas/inventory.ts';
 import { AppError } from '../../http/errors.ts';
 import { assessmentForSpans, defaultPairIds } from '../assessment/assessment.service.ts';
+import { perchStandings } from '../assessment/perchable.ts';
 import { ConductorType } from './conductor-type.entity.ts';
 import { Hazard } from './hazard.entity.ts';
 import { HazardKind } from './hazard-kind.entity.ts';
@@ -211,12 +212,13 @@ export async function spanViews(em: EntityManager, spans: Span[]): Promise<SpanV
   const ids = spans.map((s) => s.id);
   const lineIds = [...new Set(spans.map((s) => s.lineId))];
   const structureIds = [...new Set(spans.flatMap((s) => [s.fromStructureId, s.toStructureId]))];
-  const [lines, structures, hazards, photos, assessments] = await Promise.all([
+  const [lines, structures, hazards, photos, assessments, standings] = await Promise.all([
     em.find(Line, { id: { $in: lineIds } }),
     findStructures(em, structureIds),
     findHazards(em, ids),
     photoIdsFor(em, ids),
     assessmentsFor(em, ids),
+    perchStandings(em, ids),
   ]);
   const lineById = new Map(lines.map((l) => [l.id, l]));
   const structureById = new Map(structures.map((s) => [s.id, s]));
@@ -252,6 +254,10 @@ export async function spanViews(em: EntityManager, spans: Span[]): Promise<SpanV
       approvedAt: iso(s.approvedAt),
       approvedById: s.approvedById,
       assessment: assessments.get(s.id) ?? null,
+      perchable: standings.get(s.id)?.perchable ?? null,
+      // Approved, but its assessment no longer passes for any active pair: a safety officer must decide.
+      needsDecision: s.status === 'approved' && standings.get(s.id)?.perchable === false,
+      failingGates: standings.get(s.id)?.perchable === false ? standings.get(s.id)!.failing : [],
       createdAt: s.createdAt.toISOString(),
       updatedAt: s.updatedAt.toISOString(),
     };

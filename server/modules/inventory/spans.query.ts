@@ -4,6 +4,7 @@
 import type { EntityManager } from '@mikro-orm/core';
 import type { Page, Span as SpanView, SpanListQuery, SpanSortKey } from '#shared/schemas/inventory.ts';
 import { Span } from './span.entity.ts';
+import { perchableSql } from '../assessment/perchable.ts';
 import { defaultAssessmentPair, spanViews } from './inventory.service.ts';
 
 export interface SpanFilter {
@@ -13,6 +14,7 @@ export interface SpanFilter {
   q?: string;
   minHarvestW?: number;
   minScore?: number;
+  perchable?: boolean;
   sort?: string;
   page: number;
   pageSize: number;
@@ -68,6 +70,7 @@ async function buildQuery(em: EntityManager, f: SpanFilter) {
     where.push("(fs.label like ? escape '\\' or ts.label like ? escape '\\' or l.name like ? escape '\\' or s.conductor_code_word like ? escape '\\' or s.id = ?)");
     params.push(like, like, like, like, f.q);
   }
+  if (f.perchable !== undefined) where.push(f.perchable ? perchableSql('s') : `not ${perchableSql('s')}`);
   // Without a stored assessment a span has no harvest figure, so it cannot meet a minimum.
   if (f.minHarvestW !== undefined) {
     if (hasAssessment) {

@@ -14,6 +14,7 @@ import { AppError } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
 import type { User } from '../auth/user.entity.ts';
 import { activeZonesForGeometry } from '../zones/zone.service.ts';
+import { freshPerchStanding, refusalOf } from '../assessment/perchable.ts';
 import { Hazard } from './hazard.entity.ts';
 import { HazardKind } from './hazard-kind.entity.ts';
 import { Line } from './line.entity.ts';
@@ -310,10 +311,7 @@ export function missingForSubmit(span: Span): ApiIssue[] {
   return issues;
 }
 
-/**
- * Why a span cannot be approved right now, one message each: the active exclude zones it touches.
- * Extend here when further hard blockers are added.
- */
+/** The active exclude zones the span touches, by name (added to a refused approval's words; the gates decide). */
 export async function approvalBlockers(em: EntityManager, span: Span): Promise<ApiIssue[]> {
   const [from, to] = await Promise.all([em.findOne(Structure, { id: span.fromStructureId }), em.findOne(Structure, { id: span.toStructureId })]);
   if (!from || !to) return [{ path: 'structures', message: 'The span has lost one of its structures' }];
@@ -332,8 +330,13 @@ export async function transitionSpan(em: EntityManager, user: User, spanId: stri
     if (missing.length) throw AppError.badRequest(`Fill in before submitting: ${missing.map((i) => i.path).join(', ')}`, missing);
   }
   if (name === 'approve' || name === 'reinstate') {
-    const blockers = await approvalBlockers(em, span);
-    if (blockers.length) throw AppError.conflict(`This span cannot be ${t.label}: ${blockers.map((b) => b.message).join('; ')}`, blockers);
+    // Judged on an assessment recomputed now: a stored row may predate a new zone, profile or setting.
+    const standing = await freshPerchStanding(em, span.id);
+    if (!standing.perchable) {
+      const zones = await approvalBlockers(em, span);
+      const refusal = refusalOf(standing, t.label);
+      throw AppError.conflict(zones.length ? `${refusal.message} ${zones.map((z) => z.message).join('; ')}.` : refusal.message, [...zones, ...refusal.issues]);
+    }
   }
   const hazards = await em.find(Hazard, { spanId: span.id });
   const before = spanSnapshot(span, hazards);
