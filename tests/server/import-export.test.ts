@@ -7,6 +7,7 @@ import { Structure } from '../../server/modules/inventory/structure.entity.ts';
 import { AuditEntry } from '../../server/modules/audit/audit.entity.ts';
 import { xmlEscape } from '../../server/modules/import-export/formats.ts';
 import { INVENTORY_CSV_COLUMNS } from '../../shared/schemas/inventory.ts';
+import { SPAN_STATUS_COLOURS, kmlColour } from '../../shared/span-status-colours.ts';
 import { geodesicInverse } from '../../shared/engineering/geodesic.ts';
 
 let t: TestApp;
@@ -214,6 +215,17 @@ describe('export and round trip', () => {
     expect(doc.getElementsByTagName('parsererror')).toHaveLength(0);
     expect(doc.getElementsByTagName('LineString')).toHaveLength(4);
     expect(xmlEscape(`a<b>&'"`)).toBe('a&lt;b&gt;&amp;&apos;&quot;');
+  });
+
+  it('when exporting KML, then each status style uses the app palette in KML byte order (aabbggrr)', async () => {
+    const text = (await planner.get(`/api/spans/export.kml?lineId=${lineId}`)).text;
+    const styles = Object.fromEntries([...text.matchAll(/<Style id="span-(\w+)"><LineStyle><color>([0-9a-f]{8})<\/color>/g)].map((m) => [m[1], m[2]]));
+    // OGC KML 2.2 (07-147r2) §16.9: kml:color is aabbggrr. The map draws approved spans #2e7d4f (rr=2e gg=7d bb=4f).
+    expect(styles.approved).toBe('ff4f7d2e');
+    expect(styles.returned).toBe('ff1e26b3');
+    expect(Object.keys(styles).sort()).toEqual(Object.keys(SPAN_STATUS_COLOURS).sort());
+    for (const [status, hex] of Object.entries(SPAN_STATUS_COLOURS)) expect(styles[status]).toBe(`ff${hex.slice(5, 7)}${hex.slice(3, 5)}${hex.slice(1, 3)}`);
+    expect(kmlColour('#123456', 0x80)).toBe('80563412');
   });
 
   it('when an unknown export format is asked for, then 404', async () => {

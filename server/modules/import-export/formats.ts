@@ -1,5 +1,6 @@
 // Reading and writing the line-inventory file formats: CSV (one span a row), GeoJSON (structure Points and span LineStrings), KML (export).
 import Papa from 'papaparse';
+import { SPAN_STATUS_COLOURS, kmlColour } from '#shared/span-status-colours.ts';
 import { INVENTORY_CSV_COLUMNS, INVENTORY_CSV_EXPORT_ONLY_COLUMNS, type Span as SpanView, type Structure as StructureView, type Line as LineView } from '#shared/schemas/inventory.ts';
 
 /** One row of an import file, before validation: values as given (undefined = not in the file, null = empty). */
@@ -384,23 +385,15 @@ export function xmlEscape(s: string): string {
   return s.replace(/[<>&'"]/g, (c) => ({ '<': '&lt;', '>': '&gt;', '&': '&amp;', "'": '&apos;', '"': '&quot;' })[c]!).replace(/[\u0000-\u0008\u000B\u000C\u000E-\u001F]/g, '');
 }
 
-const STATUS_COLOURS: Record<string, string> = {
-  // KML colours are aabbggrr.
-  draft: 'ff9e9e9e',
-  submitted: 'ff2fa5e0',
-  approved: 'ff4caf50',
-  returned: 'ff3b6ee8',
-  suspended: 'ff5a2bc6',
-};
-
 export function spansToKml(spans: SpanView[], lines: Map<string, LineView>, structures: Map<string, StructureView>, title: string): string {
   const out: string[] = [];
   out.push('<?xml version="1.0" encoding="UTF-8"?>');
   out.push('<kml xmlns="http://www.opengis.net/kml/2.2">');
   out.push('<Document>');
   out.push(`<name>${xmlEscape(title)}</name>`);
-  for (const [status, colour] of Object.entries(STATUS_COLOURS)) {
-    out.push(`<Style id="span-${status}"><LineStyle><color>${colour}</color><width>4</width></LineStyle></Style>`);
+  // The app's own status palette, in KML's aabbggrr byte order.
+  for (const [status, hex] of Object.entries(SPAN_STATUS_COLOURS)) {
+    out.push(`<Style id="span-${status}"><LineStyle><color>${kmlColour(hex)}</color><width>4</width></LineStyle></Style>`);
   }
   const byLine = new Map<string, SpanView[]>();
   for (const s of spans) byLine.set(s.lineId, [...(byLine.get(s.lineId) ?? []), s]);

@@ -5,15 +5,10 @@ import type { LayerProps } from 'react-map-gl/maplibre';
 
 /** A layer for react-map-gl's <Layer>, over a source of /map/style.json. */
 export type OverlayLayer = LayerProps & { id: string };
-import type { SpanStatus } from '../spans/status.ts';
+import { SPAN_STATUS_COLOURS } from '#shared/span-status-colours.ts';
 
-export const STATUS_COLOURS: Record<SpanStatus, string> = {
-  draft: '#6f8a8f',
-  submitted: '#d99a1e',
-  approved: '#2e7d4f',
-  returned: '#b3261e',
-  suspended: '#12343b',
-};
+/** The status palette, shared with the KML export. */
+export const STATUS_COLOURS = SPAN_STATUS_COLOURS;
 
 /** Score stops (0..100) and their colours; spans with no assessment are drawn in NO_SCORE_COLOUR. */
 export const SCORE_STOPS: [number, string][] = [
