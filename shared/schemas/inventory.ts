@@ -223,7 +223,8 @@ export const spanListQuerySchema = z.object({
   perchable: z
     .preprocess((v) => (v === '' || v === undefined ? undefined : v === 'true' || v === '1' || v === true ? true : v === 'false' || v === '0' || v === false ? false : v), z.boolean({ error: 'perchable is true or false' }))
     .optional(),
-  q: z.string().trim().max(200, 'Use at most 200 characters').optional(),
+  // eslint-disable-next-line no-control-regex
+  q: z.string().trim().max(200, 'Use at most 200 characters').regex(/^[^\u0000-\u001f\u007f]*$/, 'Search text cannot contain control characters').optional(),
   minHarvestW: optionalNumber('the minimum harvest power'),
   minScore: optionalNumber('the minimum score'),
   sort: z.enum(sortValues, { error: `Sort by one of ${SPAN_SORT_KEYS.join(', ')} (prefix - for descending)` }).optional(),

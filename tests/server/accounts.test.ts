@@ -267,7 +267,14 @@ describe('users and crews', () => {
     expect(res.body.active).toBe(false);
     expect((await safety.get('/api/me')).status).toBe(401);
     expect((await other.get('/api/me')).status).toBe(401);
-    expect((await t.client().post('/api/auth/sign-in', { email: 'safety@roostline.test', password: DEMO_PASSWORD })).status).toBe(401);
+    const right = await t.client().post('/api/auth/sign-in', { email: 'safety@roostline.test', password: DEMO_PASSWORD });
+    expect(right.status).toBe(401);
+    // The right password learns the account is deactivated; a wrong one keeps the generic answer (api.md, Accounts).
+    expect(right.body.error.message).toMatch(/deactivated/);
+    const wrong = await t.client().post('/api/auth/sign-in', { email: 'safety@roostline.test', password: 'not-the-password-1' });
+    expect(wrong.status).toBe(401);
+    expect(wrong.body.error.message).toBe('E-mail or password is incorrect');
+    expect(wrong.body.error.message).not.toMatch(/deactivated/);
     expect((await admin.get('/api/admin/users?active=false')).body.items.map((u: { email: string }) => u.email)).toContain('safety@roostline.test');
     expect((await admin.post(`/api/admin/users/${id}/reactivate`)).body.active).toBe(true);
     expect((await t.client().post('/api/auth/sign-in', { email: 'safety@roostline.test', password: DEMO_PASSWORD })).status).toBe(200);

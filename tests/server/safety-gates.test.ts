@@ -129,3 +129,14 @@ describe('perchable filter and the "needs a decision" flag', () => {
     expect(res.body.error.issues[0].path).toBe('perchable');
   });
 });
+
+describe('control characters in search text', () => {
+  it('when the search text holds a control character, then 400 names q instead of a server error', async () => {
+    for (const q of ['%00', 'a%01b', '%7F', 'x%0Ay']) {
+      const res = await planner.get(`/api/spans?q=${q}`);
+      expect(res.status).toBe(400);
+      expect(res.body.error.issues[0].path).toBe('q');
+    }
+    expect((await planner.get("/api/spans?q=it's%20a%20%25_\\")).status).toBe(200);
+  });
+});

@@ -10,14 +10,20 @@ export function toMe(user: User): MeUser {
   return { id: user.id, email: user.email, name: user.name, roles: user.roles, unitSystem: user.unitSystem, crewId: user.crewId };
 }
 
-/** Checks credentials; unknown e-mail, wrong password and a deactivated account all fail alike. */
+export const ACCOUNT_DEACTIVATED = 'This account has been deactivated; ask an operations admin to reactivate it';
+
+/**
+ * Checks credentials; an unknown e-mail and a wrong password fail alike. Only someone who knows the right password
+ * learns that the account is deactivated (still 401, with its own words), so the answer tells a stranger nothing new.
+ */
 export async function checkCredentials(em: EntityManager, email: string, password: string): Promise<User> {
   const user = await em.findOne(User, { email: email.trim().toLowerCase() });
-  if (!user || !user.passwordHash || !user.active) {
+  if (!user || !user.passwordHash) {
     await verifyPassword(await dummyPasswordHash(), password);
     throw new AppError(401, 'unauthenticated', SIGN_IN_FAILED);
   }
   if (!(await verifyPassword(user.passwordHash, password))) throw new AppError(401, 'unauthenticated', SIGN_IN_FAILED);
+  if (!user.active) throw new AppError(401, 'unauthenticated', ACCOUNT_DEACTIVATED);
   return user;
 }
 
