@@ -7,7 +7,16 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 export type BenchRow = Record<string, string | number>;
 
 const dir = path.dirname(fileURLToPath(import.meta.url));
-const filters = process.argv.slice(2);
+const filters = process.argv.slice(2).filter((a) => a !== '--load');
+
+// `npm run bench -- --load`: the 50-client load run alone (bench/load.ts; it is not part of the default run).
+if (process.argv.includes('--load')) {
+  const mod = (await import(pathToFileURL(path.join(dir, 'load.ts')).href)) as { run: () => Promise<BenchRow[]> };
+  console.log('\n▶ load');
+  const rows = await mod.run();
+  if (rows.length) console.table(rows);
+  process.exit(0);
+}
 const files = fs
   .readdirSync(dir)
   .filter((f) => f.endsWith('.bench.ts'))
