@@ -48,7 +48,14 @@ export function localDiskStorage(rootDir: string): PhotoStorage {
       await fs.promises.mkdir(path.dirname(target), { recursive: true });
       const tmp = `${target}.${crypto.randomBytes(6).toString('hex')}.tmp`;
       try {
-        await fs.promises.writeFile(tmp, data, { flag: 'wx' });
+        // Synced before the rename, so a row committed after put() never names a file a power cut could lose.
+        const fh = await fs.promises.open(tmp, 'wx');
+        try {
+          await fh.writeFile(data);
+          await fh.sync();
+        } finally {
+          await fh.close();
+        }
         await fs.promises.rename(tmp, target);
       } catch (err) {
         await fs.promises.rm(tmp, { force: true });

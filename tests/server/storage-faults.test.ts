@@ -1,0 +1,44 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import sharp from 'sharp';
+import { makeTestApp, type TestApp } from './helpers.ts';
+import { Photo } from '../../server/modules/photos/photo.entity.ts';
+
+// An uploads folder the server cannot write to. Permission bits do not bind root (who runs CI containers), so
+// there the folder is one the kernel refuses to anyone: a new entry under /sys (EPERM).
+const asRoot = process.getuid?.() === 0;
+const base = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-ro-'));
+const uploadsDir = asRoot ? '/sys/roostline-no-uploads' : path.join(base, 'uploads');
+let t: TestApp;
+beforeAll(async () => {
+  if (!asRoot) {
+    fs.mkdirSync(uploadsDir);
+    fs.chmodSync(uploadsDir, 0o555);
+  }
+  t = await makeTestApp({ uploadsDir });
+});
+afterAll(async () => {
+  await t?.close();
+  if (!asRoot) fs.chmodSync(uploadsDir, 0o755);
+  fs.rmSync(base, { recursive: true, force: true });
+});
+
+describe('storage faults', () => {
+  it('when the uploads folder cannot be written, then the uploader gets 503 in words, no photo row is saved and reads go on', async () => {
+    const surveyor = await t.as('surveyor');
+    const jpeg = await sharp({ create: { width: 320, height: 240, channels: 3, background: { r: 1, g: 2, b: 3 } } }).jpeg().toBuffer();
+    const res = await surveyor.upload('/api/photos').attach('photo', jpeg, { filename: 'a.jpg', contentType: 'image/jpeg' });
+    expect(res.status).toBe(503);
+    expect(res.body.error.code).toBe('unavailable');
+    expect(res.body.error.message).toMatch(/cannot write to its storage.*not saved/);
+    expect(res.body.error.message).not.toMatch(/EPERM|EACCES|EROFS/);
+    expect(await t.orm.em.fork().count(Photo)).toBe(0);
+    expect((await surveyor.get('/api/spans')).status).toBe(200);
+    expect((await surveyor.get('/api/photos')).status).toBe(200);
+    const health = await t.client().get('/api/health');
+    expect(health.status).toBe(200);
+    expect(health.body.status).toBe('ok');
+  });
+});
