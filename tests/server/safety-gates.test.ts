@@ -140,3 +140,18 @@ describe('control characters in search text', () => {
     expect((await planner.get("/api/spans?q=it's%20a%20%25_\\")).status).toBe(200);
   });
 });
+
+describe('structure numbering under parallel requests', () => {
+  it('when six structures are created on one line at the same moment, then all six land with distinct labels', async () => {
+    const line = await surveyor.post('/api/lines', { name: 'Parallel Test 33 kV', owner: 'Harrow Vale Power Cooperative', voltageKv: 33, frequencyHz: 60, phases: 3, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
+    expect(line.status).toBe(201);
+    const results = await Promise.all(
+      Array.from({ length: 6 }, (_, i) => surveyor.post('/api/structures', { lineId: line.body.id, lat: -30.5, lon: -130.5 + i * 0.002, kind: 'pole', attachmentHeightM: 12 })),
+    );
+    expect(results.map((r) => r.status)).toEqual([201, 201, 201, 201, 201, 201]);
+    const labels = results.map((r) => r.body.label as string);
+    expect(new Set(labels).size).toBe(6);
+    const listed = await surveyor.get(`/api/structures?lineId=${line.body.id}`);
+    expect(listed.body.items).toHaveLength(6);
+  });
+});

@@ -87,7 +87,17 @@ export async function nextStructureLabel(em: EntityManager, line: Line): Promise
   }
 }
 
-export async function createStructure(em: EntityManager, user: User, input: StructureCreateInput) {
+// Numbering reads the highest label and writes the next one: creations run one at a time in this process
+// (SQLite has one writer anyway), so parallel requests on one line get distinct labels instead of a unique-key 500.
+let structureChain: Promise<unknown> = Promise.resolve();
+
+export function createStructure(em: EntityManager, user: User, input: StructureCreateInput) {
+  const run = structureChain.then(() => createStructureNow(em, user, input));
+  structureChain = run.catch(() => undefined);
+  return run;
+}
+
+async function createStructureNow(em: EntityManager, user: User, input: StructureCreateInput) {
   const line = await em.findOne(Line, { id: input.lineId });
   if (!line) throw AppError.field('lineId', 'No such line');
   if (input.label && (await em.findOne(Structure, { lineId: line.id, label: input.label }))) throw AppError.field('label', 'This line already has a structure with this label');
