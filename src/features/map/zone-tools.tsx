@@ -27,6 +27,25 @@ interface FormValues {
 const EMPTY: FormValues = { name: '', reason: '', severity: 'exclude', validFrom: '', validTo: '' };
 
 /** Re-reads the zones source of the map (after a change). */
+// Drawing handles in Roostline's palette (src/index.css): a brass shape with an ink outline, chalk vertices ringed
+// in ink (large enough for a finger on the tablet), brass midpoints, instead of the drawing library's stock look.
+const INK = '#12343b';
+const BRASS = '#e8b04a';
+const BRASS_DARK = '#c98f28';
+const CHALK = '#f7f4ee';
+const ZONE_DRAW_POLYGON_STYLES = {
+  fillColor: BRASS, fillOpacity: 0.25, outlineColor: INK, outlineWidth: 2,
+  closingPointColor: CHALK, closingPointWidth: 7, closingPointOutlineColor: INK, closingPointOutlineWidth: 2,
+  coordinatePointColor: CHALK, coordinatePointWidth: 6, coordinatePointOutlineColor: INK, coordinatePointOutlineWidth: 2,
+  editedPointColor: BRASS, editedPointWidth: 7, editedPointOutlineColor: INK, editedPointOutlineWidth: 2,
+  snappingPointColor: BRASS_DARK, snappingPointWidth: 6, snappingPointOutlineColor: INK, snappingPointOutlineWidth: 2,
+} as const;
+const ZONE_DRAW_SELECT_STYLES = {
+  selectedPolygonColor: BRASS, selectedPolygonFillOpacity: 0.3, selectedPolygonOutlineColor: INK, selectedPolygonOutlineWidth: 3,
+  selectionPointColor: CHALK, selectionPointWidth: 7, selectionPointOutlineColor: INK, selectionPointOutlineWidth: 2,
+  midPointColor: BRASS, midPointWidth: 5, midPointOutlineColor: INK, midPointOutlineWidth: 1,
+} as const;
+
 export function reloadZones(map: MapLibreMap) {
   const source = map.getSource('zones') as GeoJSONSource | undefined;
   source?.setData(`${location.origin}/api/zones`);
@@ -75,8 +94,9 @@ export function ZonePanel({
     const draw = new TerraDraw({
       adapter: new TerraDrawMapLibreGLAdapter({ map }),
       modes: [
-        new TerraDrawPolygonMode(),
+        new TerraDrawPolygonMode({ styles: ZONE_DRAW_POLYGON_STYLES }),
         new TerraDrawSelectMode({
+          styles: ZONE_DRAW_SELECT_STYLES,
           flags: { polygon: { feature: { draggable: true, coordinates: { midpoints: true, draggable: true, deletable: true } } } },
         }),
       ],
