@@ -7,7 +7,14 @@ import { fileURLToPath, pathToFileURL } from 'node:url';
 export type BenchRow = Record<string, string | number>;
 
 const dir = path.dirname(fileURLToPath(import.meta.url));
-const filters = process.argv.slice(2).filter((a) => a !== '--load');
+const args = process.argv.slice(2).filter((a) => a !== '--load');
+// `--spans N` runs the scale bench at N spans (and the sizes below it).
+const spansAt = args.indexOf('--spans');
+if (spansAt >= 0) {
+  process.env.BENCH_SCALE_SPANS = args[spansAt + 1];
+  args.splice(spansAt, 2, 'scale');
+}
+const filters = args;
 
 // `npm run bench -- --load`: the 50-client load run alone (bench/load.ts; it is not part of the default run).
 if (process.argv.includes('--load')) {
@@ -20,7 +27,7 @@ if (process.argv.includes('--load')) {
 const files = fs
   .readdirSync(dir)
   .filter((f) => f.endsWith('.bench.ts'))
-  .filter((f) => filters.length === 0 || filters.some((q) => f.includes(q)))
+  .filter((f) => (filters.length === 0 ? f !== 'scale.bench.ts' : filters.some((q) => f.includes(q))))
   .sort();
 
 if (files.length === 0) {

@@ -1,0 +1,174 @@
+// Scale bench: `npm run bench -- --spans N` builds a realistic invented network of N spans (and the smaller sizes
+// 10 k / 100 k below it) with bulk prepared inserts, then measures each figure beside a baseline taken in the same
+// run on the same data, and writes the table to bench/RESULTS.md. Runs only when asked for (`--spans` or "scale").
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import zlib from 'node:zlib';
+import type { AddressInfo } from 'node:net';
+import { initORM } from '../server/db.ts';
+import { createApp } from '../server/app.ts';
+import { testConfig } from '../server/env.ts';
+import { seedDemoUsers, DEMO_PASSWORD } from '../server/seeders/demo-users.ts';
+import { seedScaleInventory } from '../server/seeders/scale-inventory.ts';
+import { ensureAssessmentDefaults } from '../server/modules/assessment/profiles.service.ts';
+import { assessSpans } from '../server/modules/assessment/assessment.service.ts';
+import { SpanTileService } from '../server/modules/map/span-tiles.ts';
+import { User } from '../server/modules/auth/user.entity.ts';
+import { assessSpan, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS } from '../shared/engineering/assessment.ts';
+import { findConductor, thermalConductorOf } from '../shared/engineering/conductors.ts';
+import { KESTREL_CORE, SWIFT_QUAD } from '../shared/engineering/demo-profiles.ts';
+import type { BenchRow } from './run.ts';
+
+const asked = Number(process.env.BENCH_SCALE_SPANS ?? 10_000);
+const SIZES = [...new Set([...[10_000, 100_000, 1_000_000].filter((n) => n < asked), asked])];
+const pct = (list: number[], p: number) => [...list].sort((a, b) => a - b)[Math.min(list.length - 1, Math.floor((p / 100) * list.length))];
+const f1 = (v: number) => (v >= 100 ? Math.round(v).toLocaleString('en-GB') : v.toFixed(1));
+const mb = (b: number) => Math.round(b / 1048576);
+
+function tileOf(lon: number, lat: number, z: number) {
+  const r = (lat * Math.PI) / 180;
+  return { x: Math.floor(((lon + 180) / 360) * 2 ** z), y: Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z) };
+}
+
+/** Latencies of `total` calls made by `clients` concurrent callers. */
+async function concurrent(clients: number, total: number, call: (i: number) => Promise<unknown>) {
+  const times: number[] = [];
+  let next = 0;
+  await Promise.all(
+    Array.from({ length: clients }, async () => {
+      while (next < total) {
+        const i = next++;
+        const t = performance.now();
+        await call(i);
+        times.push(performance.now() - t);
+      }
+    }),
+  );
+  return times;
+}
+
+function pureRate(n: number) {
+  const codes = ['Penguin', 'Partridge', 'Linnet', 'Hawk', 'Dove', 'Drake'];
+  const t = performance.now();
+  for (let i = 0; i < n; i++) {
+    const typical = 200 + (i % 900);
+    assessSpan(
+      {
+        conductor: thermalConductorOf(findConductor(codes[i % 6])!),
+        clearanceM: 6 + (i % 14),
+        loadCurrentA: { min: typical * 0.5, typical, peak: typical * 1.3 },
+        voltageKv: 69,
+        frequencyHz: 60,
+        lengthM: 80 + (i % 600),
+        hazards: [],
+        completeness: { a: true },
+        surveyAgeDays: i % 2000,
+        zones: { inExclude: false, inCautionCount: 0 },
+      },
+      KESTREL_CORE,
+      SWIFT_QUAD,
+      DEFAULT_DESIGN_WEATHER,
+      DEFAULT_SCORING_SETTINGS,
+    );
+  }
+  return n / ((performance.now() - t) / 1000);
+}
+
+function initialJsGzipKB(): string {
+  const html = path.resolve('dist/index.html');
+  if (!fs.existsSync(html)) return 'no build (run npm run build)';
+  const src = fs.readFileSync(html, 'utf8');
+  const files = [...src.matchAll(/(?:src|href)="\/?(assets\/[^"]+\.js)"/g)].map((m) => m[1]);
+  const total = files.reduce((sum, f) => sum + zlib.gzipSync(fs.readFileSync(path.resolve('dist', f))).length, 0);
+  return `${Math.round(total / 1024)} KB`;
+}
+
+async function measure(spans: number): Promise<Record<string, string>> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-scale-'));
+  const orm = await initORM(path.join(dir, 'scale.sqlite'));
+  const out: Record<string, string> = {};
+  try {
+    const em = orm.em.fork();
+    await seedDemoUsers(em);
+    await em.flush();
+    await ensureAssessmentDefaults(em);
+    const surveyor = await em.findOneOrFail(User, { email: 'surveyor@roostline.test' });
+    let t = performance.now();
+    const seeded = await seedScaleInventory(orm.em.fork(), { spans, surveyorIds: [surveyor.id] });
+    out.seed = `${f1((performance.now() - t) / 1000)} s (${seeded.lines} lines, ${seeded.hazards} hazards)`;
+
+    // Rescoring all spans × active pairs (current path) beside the pure function in one process.
+    t = performance.now();
+    const assessed = await assessSpans(orm.em.fork(), undefined, { clearBetweenBatches: true });
+    const [{ pairs }] = await orm.em.fork().getConnection().execute<{ pairs: number }[]>('select count(*) as pairs from assessments');
+    const rescoreS = (performance.now() - t) / 1000;
+    out.rescore = `${f1(Number(pairs) / rescoreS)} span·pairs/s (${assessed} spans, ${f1(rescoreS)} s)`;
+    out['rescore baseline'] = `${f1(pureRate(20_000))} span·pairs/s pure`;
+
+    // List API: filtered, sorted, page of 50, 10 concurrent clients, beside the bare prepared query.
+    const { app, close } = createApp({ orm, config: testConfig({ databasePath: path.join(dir, 'scale.sqlite') }) });
+    const server = app.listen(0);
+    const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+    const signIn = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email: 'planner@roostline.test', password: DEMO_PASSWORD }) });
+    const cookie = (signIn.headers.get('set-cookie') ?? '').split(';')[0];
+    const pages = [1, 2, 3, 5, 8, 13, 21, 34];
+    const times = await concurrent(10, 200, (i) => fetch(`${base}/api/spans?status=approved&sort=-updatedAt&pageSize=50&page=${pages[i % pages.length]}`, { headers: { cookie } }).then((r) => r.json()));
+    const conn = orm.em.fork().getConnection();
+    const bare = await concurrent(10, 200, (i) => conn.execute("select s.id from spans s where s.status = ? order by s.updated_at desc limit 50 offset ?", ['approved', (pages[i % pages.length] - 1) * 50]));
+    out.list = `p50 ${f1(pct(times, 50))} / p95 ${f1(pct(times, 95))} ms`;
+    out['list baseline'] = `p50 ${f1(pct(bare, 50))} / p95 ${f1(pct(bare, 95))} ms bare SQL`;
+    out['RSS idle'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process)`;
+    server.close();
+    await close();
+
+    // Tiles over the densest area: a fresh service is a restart (its first tile reads the snapshot).
+    const service = new SpanTileService(orm);
+    t = performance.now();
+    const [lon, lat] = seeded.densest;
+    const f = tileOf(lon, lat, 11);
+    await service.tile(11, f.x, f.y);
+    out['first tile after restart'] = `${f1(performance.now() - t)} ms`;
+    for (const z of [6, 8, 11, 14]) {
+      const c = tileOf(lon, lat, z);
+      const list: { x: number; y: number }[] = [];
+      for (let dx = -2; dx <= 2; dx++) for (let dy = -2; dy <= 2; dy++) list.push({ x: c.x + dx, y: c.y + dy });
+      const cold: number[] = [];
+      const warm: number[] = [];
+      for (const tl of list) {
+        const s = performance.now();
+        await service.tile(z, tl.x, tl.y);
+        cold.push(performance.now() - s);
+      }
+      for (const tl of list) {
+        const s = performance.now();
+        await service.tile(z, tl.x, tl.y);
+        warm.push(performance.now() - s);
+      }
+      out[`tile z${z}`] = `cold p95 ${f1(pct(cold, 95))} / cached p95 ${f1(pct(warm, 95))} ms`;
+    }
+    out['RSS under tile load'] = `${mb(process.memoryUsage().rss)} MB`;
+    service.close();
+    out.import = 'not measured yet';
+  } finally {
+    await orm.close();
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+  return out;
+}
+
+export async function run(): Promise<BenchRow[]> {
+  const results = new Map<number, Record<string, string>>();
+  for (const n of SIZES) {
+    console.log(`  building ${n.toLocaleString('en-GB')} spans…`);
+    results.set(n, await measure(n));
+  }
+  const keys = [...new Set([...results.values()].flatMap((r) => Object.keys(r)))];
+  const rows: BenchRow[] = keys.map((k) => ({ figure: k, ...Object.fromEntries(SIZES.map((n) => [`${n / 1000} k`, results.get(n)![k] ?? ''])) }));
+  rows.push({ figure: 'initial JS gzip', ...Object.fromEntries(SIZES.map((n) => [`${n / 1000} k`, initialJsGzipKB()])) });
+  const header = `| figure | ${SIZES.map((n) => `${n / 1000} k spans`).join(' | ')} |\n|---|${SIZES.map(() => '---').join('|')}|\n`;
+  const body = rows.map((r) => `| ${Object.values(r).join(' | ')} |`).join('\n');
+  const note = `# Scale bench\n\n${new Date().toISOString().slice(0, 10)} · ${os.cpus().length} cores · load average ${os.loadavg()[0].toFixed(1)} at the end (the machine is shared with other work, so figures are loaded).\n\n`;
+  fs.writeFileSync(path.resolve('bench/RESULTS.md'), note + header + body + '\n');
+  return rows;
+}
