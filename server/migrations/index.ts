@@ -12,6 +12,7 @@ import { Migration20261203094922 } from './Migration20261203094922.ts';
 import { Migration20261203102803 } from './Migration20261203102803.ts';
 import { Migration20261203113007 } from './Migration20261203113007.ts';
 import { Migration20261203113032 } from './Migration20261203113032.ts';
+import { Migration20261203113759 } from './Migration20261203113759.ts';
 import { Migration20261203113808 } from './Migration20261203113808.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
@@ -27,5 +28,6 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203102803', class: Migration20261203102803 },
   { name: 'Migration20261203113007', class: Migration20261203113007 },
   { name: 'Migration20261203113032', class: Migration20261203113032 },
+  { name: 'Migration20261203113759', class: Migration20261203113759 },
   { name: 'Migration20261203113808', class: Migration20261203113808 },
 ];

@@ -296,6 +296,8 @@ export async function seedDemoInventory(em: EntityManager, seed = 20261202): Pro
         phasePosition: pick(rnd, spec.voltageKv < 20 ? ['A (left)', 'B (centre)', 'C (right)'] : ['A (top)', 'B (middle)', 'C (bottom)']),
         clearanceM: incompleteDraft ? null : clearanceM,
         lowestClearanceM: incompleteDraft ? null : lowestClearanceM,
+        // Lowest point near mid-span, where the sag is deepest (common practice); derived so the seeded sequence stays as it was.
+        lowestClearanceAlongM: incompleteDraft ? null : Math.round(spanLengthM(from, to) * (0.42 + ((lowestClearanceM * 100) % 17) / 100)),
         terrain,
         // One span in eight has its own load estimate (a tap or a tie point changes the current).
         loadCurrentA: rnd() < 1 / 8 ? Math.round(spec.load.typicalA * (0.7 + 0.5 * rnd())) : null,

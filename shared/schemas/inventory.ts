@@ -154,6 +154,8 @@ const spanSurveyFields = {
   phasePosition: z.string().trim().max(40, 'Use at most 40 characters').nullable(),
   clearanceM: clearance('the clearance at the perch point').nullable(),
   lowestClearanceM: clearance('the lowest clearance').nullable(),
+  /** Where the lowest clearance was measured, m from the from-structure (the server checks it lies within the span). */
+  lowestClearanceAlongM: nonNegative('the lowest-clearance location', 5000, 'm').nullable(),
   terrain: z.enum(TERRAINS, { error: 'Choose the terrain under the span' }).nullable(),
   /** null: inherit the line's load estimate. */
   loadCurrentA: nonNegative('the load current', 10_000, 'A').nullable(),
@@ -186,7 +188,7 @@ export const spanUpdateSchema = spanSurveyShape
 export type SpanUpdateInput = z.input<typeof spanUpdateSchema>;
 
 /** Fields whose change on an approved span sends it back to review (status submitted). */
-export const SAFETY_RELEVANT_SPAN_FIELDS = ['fromStructureId', 'toStructureId', 'conductor', 'clearanceM', 'lowestClearanceM', 'loadCurrentA', 'hazards', 'terrain'] as const;
+export const SAFETY_RELEVANT_SPAN_FIELDS = ['fromStructureId', 'toStructureId', 'conductor', 'clearanceM', 'lowestClearanceM', 'lowestClearanceAlongM', 'loadCurrentA', 'hazards', 'terrain'] as const;
 
 /** Fields a span needs before it can be submitted for review. */
 export const SPAN_REQUIRED_FOR_SUBMIT = ['conductor', 'clearanceM', 'terrain', 'surveyDate'] as const;
@@ -340,6 +342,8 @@ export interface Span {
   phasePosition: string | null;
   clearanceM: number | null;
   lowestClearanceM: number | null;
+  /** Where the lowest clearance was measured, m along the span from the from-structure. */
+  lowestClearanceAlongM: number | null;
   terrain: Terrain | null;
   /** Effective load current: the span's own estimate, else the line's typical load. */
   loadCurrentA: number;
@@ -455,6 +459,7 @@ export const INVENTORY_CSV_COLUMNS = [
   'phase_position',
   'clearance_m',
   'lowest_clearance_m',
+  'lowest_clearance_along_m',
   'terrain',
   'load_current_a',
   'survey_date',

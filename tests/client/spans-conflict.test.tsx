@@ -24,6 +24,7 @@ const saved: Span = {
   phasePosition: null,
   clearanceM: 10,
   lowestClearanceM: 8,
+  lowestClearanceAlongM: 55,
   terrain: 'open-field',
   loadCurrentA: 300,
   loadCurrentSource: 'line',

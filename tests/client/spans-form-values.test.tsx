@@ -34,6 +34,7 @@ function savedSpan(patch: Partial<Span> = {}): Span {
     phasePosition: null,
     clearanceM: 9.144,
     lowestClearanceM: 7.62,
+    lowestClearanceAlongM: 70.1,
     terrain: 'road',
     loadCurrentA: 310,
     loadCurrentSource: 'line',

@@ -41,6 +41,7 @@ const SPAN_COLS: Record<string, string> = {
   phasePosition: 'phase_position',
   clearanceM: 'clearance_m',
   lowestClearanceM: 'lowest_clearance_m',
+  lowestClearanceAlongM: 'lowest_clearance_along_m',
   terrain: 'terrain',
   loadCurrentA: 'load_current_a',
   surveyDate: 'survey_date',
@@ -133,6 +134,7 @@ export function parseCsv(source: string): RawRow[] {
       phasePosition: text(get('phase_position')),
       clearanceM: num(get('clearance_m')),
       lowestClearanceM: num(get('lowest_clearance_m')),
+      lowestClearanceAlongM: num(get('lowest_clearance_along_m')),
       terrain: text(get('terrain')),
       loadCurrentA: num(get('load_current_a')),
       surveyDate: text(get('survey_date')),
@@ -220,6 +222,7 @@ export function spansToCsv(spans: SpanView[], lines: Map<string, LineView>, stru
       phase_position: guardCell(s.phasePosition ?? ''),
       clearance_m: csvNumber(s.clearanceM),
       lowest_clearance_m: csvNumber(s.lowestClearanceM),
+      lowest_clearance_along_m: csvNumber(s.lowestClearanceAlongM),
       terrain: s.terrain ?? '',
       load_current_a: s.loadCurrentSource === 'span' ? csvNumber(s.loadCurrentA) : '',
       survey_date: s.surveyDate ?? '',
@@ -250,7 +253,7 @@ export const geojsonFieldName: FieldNamer = (record, path) => {
 };
 
 const LINE_PROPS = ['voltageKv', 'frequencyHz', 'phases', 'loadTypicalA', 'loadMinA', 'loadPeakA', 'loadProfileA'] as const;
-const SPAN_PROPS = ['conductor', 'phasePosition', 'clearanceM', 'lowestClearanceM', 'terrain', 'loadCurrentA', 'surveyDate', 'hazards'] as const;
+const SPAN_PROPS = ['conductor', 'phasePosition', 'clearanceM', 'lowestClearanceM', 'lowestClearanceAlongM', 'terrain', 'loadCurrentA', 'surveyDate', 'hazards'] as const;
 
 function isPosition(p: unknown): p is [number, number] {
   return Array.isArray(p) && p.length >= 2 && typeof p[0] === 'number' && typeof p[1] === 'number';
@@ -365,6 +368,7 @@ export function spansToGeoJson(spans: SpanView[], lines: Map<string, LineView>, 
         phasePosition: s.phasePosition,
         clearanceM: s.clearanceM,
         lowestClearanceM: s.lowestClearanceM,
+        lowestClearanceAlongM: s.lowestClearanceAlongM,
         terrain: s.terrain,
         loadCurrentA: s.loadCurrentSource === 'span' ? s.loadCurrentA : null,
         surveyDate: s.surveyDate,
@@ -414,6 +418,8 @@ export function spansToKml(spans: SpanView[], lines: Map<string, LineView>, stru
         ['conductor', s.conductor?.codeWord ?? s.conductor?.size ?? ''],
         ['diameterMm', s.conductor?.diameterMm == null ? '' : String(s.conductor.diameterMm)],
         ['clearanceM', s.clearanceM == null ? '' : String(s.clearanceM)],
+        ['lowestClearanceM', s.lowestClearanceM == null ? '' : String(s.lowestClearanceM)],
+        ['lowestClearanceAlongM', s.lowestClearanceAlongM == null ? '' : String(s.lowestClearanceAlongM)],
         ['loadCurrentA', String(s.loadCurrentA)],
         ['harvestW', s.assessment ? s.assessment.harvestW.toFixed(2) : ''],
         ['score', s.assessment ? s.assessment.score.toFixed(1) : ''],

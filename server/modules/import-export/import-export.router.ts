@@ -110,6 +110,7 @@ export function importExportRouter(_ctx: AppContext) {
       phase_position: 'B (centre)',
       clearance_m: '7.2',
       lowest_clearance_m: '6.9',
+      lowest_clearance_along_m: '48',
       terrain: 'open-field',
       load_current_a: '',
       survey_date: '2026-11-02',

@@ -23,7 +23,7 @@ import { Line } from '../inventory/line.entity.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
 import { chunks, lineSnapshot, newId, notifySpanChanged, spanLengthM, spanSnapshot, structureSnapshot } from '../inventory/inventory.service.ts';
-import { sameHazards, type ConductorFields, type HazardRecord } from '../inventory/spans.service.ts';
+import { sameHazards, unlinkPhotosFromHazards, type ConductorFields, type HazardRecord } from '../inventory/spans.service.ts';
 import { csvFieldName, geojsonFieldName, parseCsv, parseGeoJson, type FieldNamer, type RawRow } from './formats.ts';
 
 const LAT_LON_TOLERANCE_DEG = 1e-9;
@@ -37,6 +37,7 @@ type SpanFields = ConductorFields &
   | 'phasePosition'
   | 'clearanceM'
   | 'lowestClearanceM'
+  | 'lowestClearanceAlongM'
   | 'terrain'
   | 'loadCurrentA'
   | 'surveyDate'
@@ -374,6 +375,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
           phasePosition: existing.phasePosition,
           clearanceM: existing.clearanceM,
           lowestClearanceM: existing.lowestClearanceM,
+          lowestClearanceAlongM: existing.lowestClearanceAlongM,
           terrain: existing.terrain,
           loadCurrentA: existing.loadCurrentA,
           surveyDate: existing.surveyDate,
@@ -390,6 +392,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
           phasePosition: null,
           clearanceM: null,
           lowestClearanceM: null,
+          lowestClearanceAlongM: null,
           terrain: null,
           loadCurrentA: null,
           surveyDate: null,
@@ -426,12 +429,19 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
         });
       }
     }
-    for (const k of ['phasePosition', 'clearanceM', 'lowestClearanceM', 'terrain', 'loadCurrentA', 'surveyDate'] as const) {
+    for (const k of ['phasePosition', 'clearanceM', 'lowestClearanceM', 'lowestClearanceAlongM', 'terrain', 'loadCurrentA', 'surveyDate'] as const) {
       if (v[k] !== undefined) (next as any)[k] = v[k];
     }
     if (next.clearanceM !== null && next.lowestClearanceM !== null && next.lowestClearanceM > next.clearanceM) {
       reasons.push(`${name('span', 'lowestClearanceM')}: the lowest clearance cannot be above the clearance at the perch point`);
       return refuse();
+    }
+    if (next.lowestClearanceAlongM !== null) {
+      const lengthM = spanLengthM(from.fields, to.fields);
+      if (next.lowestClearanceAlongM > lengthM + 0.5) {
+        reasons.push(`${name('span', 'lowestClearanceAlongM')}: beyond the end of the span (${lengthM.toFixed(1)} m); give the distance from the from-structure`);
+        return refuse();
+      }
     }
     let hazards: HazardRecord[] = existingHazards.map((h) => ({ kindId: h.kindId, severity: h.severity, positionAlongM: h.positionAlongM, note: h.note }));
     if (v.hazards !== undefined) {
@@ -541,6 +551,7 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
       let hazards = p.existingHazards;
       if (p.hazardsChanged) {
         for (const h of p.existingHazards) em.remove(h);
+        await unlinkPhotosFromHazards(em, p.existingHazards.map((h) => h.id));
         hazards = p.hazards.map((h) => em.create(Hazard, { id: newId(), spanId: span.id, ...h, createdAt: now }));
       }
       const safety = geometryChanged || p.hazardsChanged || [...p.changed].some((k) => k !== 'phasePosition' && k !== 'surveyDate');

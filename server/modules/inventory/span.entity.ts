@@ -24,6 +24,8 @@ export class Span {
   /** Ground clearance at the intended perch point, m. */
   clearanceM: number | null = null;
   lowestClearanceM: number | null = null;
+  /** Where the lowest clearance was measured: distance along the span from the from-structure, m. */
+  lowestClearanceAlongM: number | null = null;
   terrain: Terrain | null = null;
   /** Estimated load current, A; null = inherited from the line. */
   loadCurrentA: number | null = null;
@@ -63,6 +65,7 @@ export const SpanSchema = new EntitySchema<Span>({
     phasePosition: { type: 'string', nullable: true },
     clearanceM: { type: 'double', nullable: true },
     lowestClearanceM: { type: 'double', nullable: true },
+    lowestClearanceAlongM: { type: 'double', nullable: true },
     terrain: { type: 'string', nullable: true },
     loadCurrentA: { type: 'double', nullable: true },
     surveyDate: { type: 'string', nullable: true },

@@ -13,6 +13,7 @@ import {
 import { AppError } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
 import type { User } from '../auth/user.entity.ts';
+import { Photo } from '../photos/photo.entity.ts';
 import { activeZonesForGeometry } from '../zones/zone.service.ts';
 import { freshPerchStanding, refusalOf } from '../assessment/perchable.ts';
 import { Hazard } from './hazard.entity.ts';
@@ -149,8 +150,23 @@ async function checkHazardKinds(em: EntityManager, inputs: HazardInput[], existi
   if (issues.length) throw AppError.badRequest(`Invalid input: ${issues.map((i) => i.path).join(', ')}`, issues);
 }
 
+/**
+ * Hazards are going: photos that showed them stay on the span but lose the link, in the same flush
+ * (one transaction) as the removal, so no photo ever points at a hazard that is gone.
+ */
+export async function unlinkPhotosFromHazards(em: EntityManager, hazardIds: string[]) {
+  if (!hazardIds.length) return;
+  for (const photo of await em.find(Photo, { hazardId: { $in: hazardIds } })) photo.hazardId = null;
+}
+
+/** The lowest-clearance location must lie on the span: 0 ≤ x ≤ its length. */
+export function checkLowestClearanceAlong(alongM: number | null, lengthM: number) {
+  if (alongM !== null && alongM > lengthM + 0.5)
+    throw AppError.field('lowestClearanceAlongM', `The lowest-clearance location is beyond the end of the span (${lengthM.toFixed(1)} m long); give the distance from the from-structure`);
+}
+
 /** Replaces the span's hazards with the list; entries carrying an existing id keep that hazard (and its photos). */
-function replaceHazards(em: EntityManager, spanId: string, inputs: HazardInput[], existing: Hazard[]): Hazard[] {
+async function replaceHazards(em: EntityManager, spanId: string, inputs: HazardInput[], existing: Hazard[]): Promise<Hazard[]> {
   const keptIds = new Set<string>();
   const result: Hazard[] = [];
   const now = new Date();
@@ -167,7 +183,9 @@ function replaceHazards(em: EntityManager, spanId: string, inputs: HazardInput[]
       result.push(em.create(Hazard, { id: newId(), spanId, kindId: h.kindId, severity: h.severity, positionAlongM: h.positionAlongM ?? null, note: h.note ?? '', createdAt: now }));
     }
   }
-  for (const e of existing) if (!keptIds.has(e.id)) em.remove(e);
+  const removed = existing.filter((e) => !keptIds.has(e.id));
+  for (const e of removed) em.remove(e);
+  await unlinkPhotosFromHazards(em, removed.map((e) => e.id));
   return result;
 }
 
@@ -182,6 +200,7 @@ export async function createSpan(em: EntityManager, user: User, input: SpanCreat
   await assertNoDuplicate(em, line.id, from.id, to.id);
   const lengthM = spanLengthM(from, to);
   await checkHazardKinds(em, input.hazards ?? [], [], lengthM);
+  checkLowestClearanceAlong(input.lowestClearanceAlongM ?? null, lengthM);
   const conductor = await resolveConductor(em, input.conductor ?? null);
   const now = new Date();
   const span = em.create(Span, {
@@ -196,6 +215,7 @@ export async function createSpan(em: EntityManager, user: User, input: SpanCreat
     phasePosition: input.phasePosition ?? null,
     clearanceM: input.clearanceM ?? null,
     lowestClearanceM: input.lowestClearanceM ?? null,
+    lowestClearanceAlongM: input.lowestClearanceAlongM ?? null,
     terrain: input.terrain ?? null,
     loadCurrentA: input.loadCurrentA ?? null,
     surveyDate: input.surveyDate ?? null,
@@ -208,7 +228,7 @@ export async function createSpan(em: EntityManager, user: User, input: SpanCreat
     createdAt: now,
     updatedAt: now,
   });
-  const hazards = replaceHazards(em, span.id, input.hazards ?? [], []);
+  const hazards = await replaceHazards(em, span.id, input.hazards ?? [], []);
   audit(em, { actorId: user.id, action: opts.action ?? 'span.create', recordType: 'span', recordId: span.id, before: null, after: spanSnapshot(span, hazards) });
   await em.flush();
   await notifySpanChanged(em, { action: 'create', spanIds: [span.id] });
@@ -256,6 +276,9 @@ export async function updateSpan(em: EntityManager, user: User, spanId: string, 
   if (input.lowestClearanceM !== undefined) span.lowestClearanceM = input.lowestClearanceM;
   if (span.clearanceM !== null && span.lowestClearanceM !== null && span.lowestClearanceM > span.clearanceM)
     throw AppError.field('lowestClearanceM', 'The lowest clearance cannot be above the clearance at the perch point');
+  if (input.lowestClearanceAlongM !== undefined) span.lowestClearanceAlongM = input.lowestClearanceAlongM;
+  // Checked against the span as it will be (its structures may have changed above).
+  checkLowestClearanceAlong(span.lowestClearanceAlongM, span.lengthM);
   if (input.terrain !== undefined) span.terrain = input.terrain;
   if (input.loadCurrentA !== undefined) span.loadCurrentA = input.loadCurrentA;
   if (input.surveyDate !== undefined) span.surveyDate = input.surveyDate;
@@ -264,7 +287,7 @@ export async function updateSpan(em: EntityManager, user: User, spanId: string, 
   if (input.hazards !== undefined) {
     await checkHazardKinds(em, input.hazards, existing, span.lengthM);
     if (!sameHazards(input.hazards.map(toRecord), existing.map(toRecord)) || input.hazards.some((h) => h.id && !existing.some((e) => e.id === h.id))) {
-      hazards = replaceHazards(em, span.id, input.hazards, existing);
+      hazards = await replaceHazards(em, span.id, input.hazards, existing);
     }
   }
 

@@ -11,6 +11,7 @@ export type ConflictKey =
   | 'phasePosition'
   | 'clearance'
   | 'lowestClearance'
+  | 'lowestClearanceAlong'
   | 'terrain'
   | 'loadCurrent'
   | 'surveyDate'
@@ -24,6 +25,7 @@ const KEY_FIELDS: Record<ConflictKey, (keyof SpanFormValues)[]> = {
   phasePosition: ['phasePosition'],
   clearance: ['clearance'],
   lowestClearance: ['lowestClearance'],
+  lowestClearanceAlong: ['lowestClearanceAlong'],
   terrain: ['terrain'],
   loadCurrent: ['loadCurrent'],
   surveyDate: ['surveyDate'],
@@ -58,6 +60,8 @@ function describe(key: ConflictKey, v: SpanFormValues, system: UnitSystem, look:
     case 'clearance':
     case 'lowestClearance':
       return num(v[key], len);
+    case 'lowestClearanceAlong':
+      return v.lowestClearanceAlong.trim() === '' ? '—' : `${v.lowestClearanceAlong} ${len} from the from-structure`;
     case 'terrain':
       return v.terrain ? TERRAIN_LABELS[v.terrain] : '—';
     case 'loadCurrent':
@@ -83,6 +87,7 @@ const LABELS: Record<ConflictKey, string> = {
   phasePosition: 'Phase / position',
   clearance: 'Clearance at the perch point',
   lowestClearance: 'Lowest clearance',
+  lowestClearanceAlong: 'Lowest clearance measured at',
   terrain: 'Terrain',
   loadCurrent: 'Load current',
   surveyDate: 'Survey date',

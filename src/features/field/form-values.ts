@@ -40,6 +40,8 @@ export interface SpanFormValues {
   phasePosition: string;
   clearance: string;
   lowestClearance: string;
+  /** Where the lowest clearance was measured, from the from-structure, in the user's length unit. */
+  lowestClearanceAlong: string;
   terrain: Terrain | '';
   /** Empty = inherit the line's load estimate. */
   loadCurrent: string;
@@ -69,6 +71,7 @@ export function emptySpanForm(now = new Date()): SpanFormValues {
     phasePosition: '',
     clearance: '',
     lowestClearance: '',
+    lowestClearanceAlong: '',
     terrain: '',
     loadCurrent: '',
     surveyDate: todayIso(now),
@@ -92,6 +95,7 @@ export function spanToFormValues(span: Span, system: UnitSystem): SpanFormValues
     phasePosition: span.phasePosition ?? '',
     clearance: siToInput(span.clearanceM, 'length', system),
     lowestClearance: siToInput(span.lowestClearanceM, 'length', system),
+    lowestClearanceAlong: siToInput(span.lowestClearanceAlongM, 'length', system),
     terrain: span.terrain ?? '',
     // The API reports the effective current; only the span's own estimate belongs in the form.
     loadCurrent: span.loadCurrentSource === 'span' ? siToInput(span.loadCurrentA, 'current', system) : '',
@@ -124,6 +128,7 @@ export function formValuesToSurvey(v: SpanFormValues, system: UnitSystem) {
     phasePosition: blank(v.phasePosition),
     clearanceM: inputToSi(v.clearance, 'length', system),
     lowestClearanceM: inputToSi(v.lowestClearance, 'length', system),
+    lowestClearanceAlongM: inputToSi(v.lowestClearanceAlong, 'length', system),
     terrain: v.terrain || null,
     loadCurrentA: inputToSi(v.loadCurrent, 'current', system),
     surveyDate: blank(v.surveyDate),
@@ -157,6 +162,7 @@ const PATH_TO_FIELD: Record<string, SpanFormField> = {
   phasePosition: 'phasePosition',
   clearanceM: 'clearance',
   lowestClearanceM: 'lowestClearance',
+  lowestClearanceAlongM: 'lowestClearanceAlong',
   terrain: 'terrain',
   loadCurrentA: 'loadCurrent',
   surveyDate: 'surveyDate',

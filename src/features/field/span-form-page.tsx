@@ -13,7 +13,7 @@ import { inventoryQueries, spanQueries } from '../spans/queries.ts';
 import { StatusBadge } from '../spans/components/status-badge.tsx';
 import { ConductorPicker } from './components/conductor-picker.tsx';
 import { ConflictPanel } from './components/conflict-panel.tsx';
-import { Field, QuantityField } from './components/form-bits.tsx';
+import { Field, QuantityField, SelectField } from './components/form-bits.tsx';
 import { HazardList } from './components/hazard-list.tsx';
 import { StructurePicker } from './components/structure-picker.tsx';
 import { mergeChoices, savedFromConflict, type ConflictKey } from './conflict.ts';
@@ -278,21 +278,21 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
             </div>
           ) : (
             <Field id="lineId" label="Line" error={errors.lineId?.message} hint={line ? `${line.voltageKv} kV · ${line.frequencyHz} Hz · ${line.owner}` : undefined}>
-              <select
+              <SelectField
+                control={form.control}
+                name="lineId"
                 id="lineId"
-                className="field-input touch-input"
-                {...register('lineId', {
-                  onChange: () => {
-                    setValue('fromStructureId', '');
-                    setValue('toStructureId', '');
-                  },
-                })}
+                invalid={!!errors.lineId}
+                onValueChange={() => {
+                  setValue('fromStructureId', '');
+                  setValue('toStructureId', '');
+                }}
               >
                 <option value="">{lines.isPending ? 'Loading lines…' : 'Choose a line'}</option>
                 {lines.data?.map((l) => (
                   <option key={l.id} value={l.id}>{l.name} ({l.voltageKv} kV)</option>
                 ))}
-              </select>
+              </SelectField>
             </Field>
           )}
           <div className="grid gap-4 sm:grid-cols-2">
@@ -336,18 +336,26 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
           <div className="grid gap-4 sm:grid-cols-2">
             <QuantityField id="clearance" label="Ground clearance at the perch point" unit={lengthUnit} registration={register('clearance')} error={errors.clearance?.message} />
             <QuantityField id="lowestClearance" label="Lowest clearance measured" unit={lengthUnit} registration={register('lowestClearance')} error={errors.lowestClearance?.message} />
+            <QuantityField
+              id="lowestClearanceAlong"
+              label="Lowest clearance measured at, from the from-structure"
+              unit={lengthUnit}
+              registration={register('lowestClearanceAlong')}
+              error={errors.lowestClearanceAlong?.message}
+              hint={saved?.lengthM != null ? `Between 0 and ${formatQuantity(saved.lengthM, 'length', system)}.` : undefined}
+            />
           </div>
         </section>
 
         <section className="card space-y-4" aria-labelledby="sec-site">
           <h2 id="sec-site" className="text-lg font-bold">Site and load</h2>
           <Field id="terrain" label="Terrain under the span" error={errors.terrain?.message}>
-            <select id="terrain" className="field-input touch-input" {...register('terrain')}>
+            <SelectField control={form.control} name="terrain" id="terrain" invalid={!!errors.terrain}>
               <option value="">Not recorded yet</option>
               {TERRAINS.map((t) => (
                 <option key={t} value={t}>{TERRAIN_LABELS[t]}</option>
               ))}
-            </select>
+            </SelectField>
           </Field>
           <QuantityField
             id="loadCurrent"

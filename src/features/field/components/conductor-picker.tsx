@@ -3,7 +3,7 @@ import type { UseFormReturn } from 'react-hook-form';
 import { CONDUCTOR_MATERIALS, type ConductorCatalogueEntry } from '#shared/schemas/inventory.ts';
 import { formatQuantity, unitLabel, type UnitSystem } from '#shared/units.ts';
 import type { SpanFormValues } from '../form-values.ts';
-import { Field, QuantityField, Segmented } from './form-bits.tsx';
+import { Field, QuantityField, Segmented, SelectField } from './form-bits.tsx';
 
 export function ConductorPicker({ form, catalogue, unitSystem }: { form: UseFormReturn<SpanFormValues>; catalogue: ConductorCatalogueEntry[]; unitSystem: UnitSystem }) {
   const { register, watch, formState } = form;
@@ -35,14 +35,14 @@ export function ConductorPicker({ form, catalogue, unitSystem }: { form: UseForm
             ) : undefined
           }
         >
-          <select id="conductorCodeWord" className="field-input touch-input" {...register('conductorCodeWord')}>
-            <option value="">Not recorded yet</option>
+          <SelectField control={form.control} name="conductorCodeWord" id="conductorCodeWord" invalid={!!errors.conductorCodeWord}>
+            <option value="">{codeWord && !picked ? 'Loading the catalogue…' : 'Not recorded yet'}</option>
             {catalogue.map((c) => (
               <option key={c.codeWord} value={c.codeWord}>
                 {c.codeWord} — {c.size} {c.stranding}
               </option>
             ))}
-          </select>
+          </SelectField>
         </Field>
       ) : (
         <div className="grid gap-4 sm:grid-cols-3">
@@ -50,12 +50,12 @@ export function ConductorPicker({ form, catalogue, unitSystem }: { form: UseForm
             <input id="conductorSize" className="field-input touch-input" placeholder="e.g. 477 kcmil 26/7" {...register('conductorSize')} />
           </Field>
           <Field id="conductorMaterial" label="Material" error={errors.conductorMaterial?.message}>
-            <select id="conductorMaterial" className="field-input touch-input" {...register('conductorMaterial')}>
+            <SelectField control={form.control} name="conductorMaterial" id="conductorMaterial" invalid={!!errors.conductorMaterial}>
               <option value="">Choose</option>
               {CONDUCTOR_MATERIALS.map((m) => (
                 <option key={m} value={m}>{m === 'copper' ? 'Copper' : m === 'other' ? 'Other' : m}</option>
               ))}
-            </select>
+            </SelectField>
           </Field>
           <QuantityField
             id="conductorDiameter"

@@ -1,6 +1,6 @@
 // Small pieces of the tablet form: labelled inputs with a unit and an inline error, and big segmented choices.
 import type { ReactNode } from 'react';
-import type { UseFormRegisterReturn } from 'react-hook-form';
+import { useController, type Control, type FieldPath, type FieldValues, type UseFormRegisterReturn } from 'react-hook-form';
 
 export function FieldError({ id, message }: { id: string; message?: string }) {
   if (!message) return null;
@@ -94,5 +94,48 @@ export function Segmented<T extends string>({
       </div>
       <FieldError id={name} message={error} />
     </fieldset>
+  );
+}
+
+/**
+ * A select bound to the form as a controlled value. The options of most selects come from a catalogue that
+ * loads after the form: an uncontrolled select shows its first option until then and a blur would read that
+ * back into the form, so a stored choice would be lost. Controlled, the stored value is shown as soon as its
+ * option exists and is never replaced by what the DOM happened to show.
+ */
+export function SelectField<T extends FieldValues>({
+  control,
+  name,
+  id,
+  className = 'field-input touch-input',
+  onValueChange,
+  invalid,
+  children,
+}: {
+  control: Control<T>;
+  name: FieldPath<T>;
+  id: string;
+  className?: string;
+  onValueChange?: (value: string) => void;
+  invalid?: boolean;
+  children: ReactNode;
+}) {
+  const { field } = useController({ control, name });
+  return (
+    <select
+      id={id}
+      name={field.name}
+      ref={field.ref}
+      className={className}
+      value={(field.value as string | null | undefined) ?? ''}
+      aria-invalid={invalid ? true : undefined}
+      onBlur={field.onBlur}
+      onChange={(e) => {
+        field.onChange(e.target.value);
+        onValueChange?.(e.target.value);
+      }}
+    >
+      {children}
+    </select>
   );
 }

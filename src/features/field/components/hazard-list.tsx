@@ -3,12 +3,12 @@ import { useFieldArray, type UseFormReturn } from 'react-hook-form';
 import { HAZARD_SEVERITIES, type HazardKind } from '#shared/schemas/inventory.ts';
 import { unitLabel, type UnitSystem } from '#shared/units.ts';
 import type { SpanFormValues } from '../form-values.ts';
-import { Field, QuantityField, Segmented } from './form-bits.tsx';
+import { Field, QuantityField, Segmented, SelectField } from './form-bits.tsx';
 
 const SEVERITY_LABELS = { low: 'Low', medium: 'Medium', high: 'High' } as const;
 
 export function HazardList({ form, kinds, unitSystem }: { form: UseFormReturn<SpanFormValues>; kinds: HazardKind[]; unitSystem: UnitSystem }) {
-  const { control, register, setValue, formState } = form;
+  const { control, register, setValue, formState, watch } = form;
   const { fields, append, remove } = useFieldArray({ control, name: 'hazards' });
   const active = kinds.filter((k) => k.active);
   const lengthUnit = unitLabel('length', unitSystem);
@@ -18,13 +18,12 @@ export function HazardList({ form, kinds, unitSystem }: { form: UseFormReturn<Sp
       <ol className="space-y-4">
         {fields.map((f, i) => {
           const e = formState.errors.hazards?.[i];
-          const kindReg = register(`hazards.${i}.kindId`, {
-            // Picking a kind proposes its catalogue severity; the surveyor can still change it.
-            onChange: (ev: { target: { value: string } }) => {
-              const k = kinds.find((x) => x.id === ev.target.value);
-              if (k) setValue(`hazards.${i}.severity`, k.defaultSeverity);
-            },
-          });
+          const kindId = watch(`hazards.${i}.kindId`);
+          // Picking a kind proposes its catalogue severity; the surveyor can still change it.
+          const proposeSeverity = (value: string) => {
+            const k = kinds.find((x) => x.id === value);
+            if (k) setValue(`hazards.${i}.severity`, k.defaultSeverity);
+          };
           return (
             <li key={f.id} className="space-y-3 rounded-xl border border-ink-200 p-3" aria-label={`Hazard ${i + 1}`}>
               <div className="flex items-center justify-between">
@@ -34,13 +33,13 @@ export function HazardList({ form, kinds, unitSystem }: { form: UseFormReturn<Sp
                 </button>
               </div>
               <Field id={`hazard-${i}-kind`} label="Kind" error={e?.kindId?.message}>
-                <select id={`hazard-${i}-kind`} className="field-input touch-input" {...kindReg}>
-                  <option value="">Choose a kind</option>
+                <SelectField control={control} name={`hazards.${i}.kindId`} id={`hazard-${i}-kind`} onValueChange={proposeSeverity} invalid={!!e?.kindId}>
+                  <option value="">{kindId && !kinds.some((k) => k.id === kindId) ? 'Loading the catalogue…' : 'Choose a kind'}</option>
                   {/* A kind retired from the catalogue stays visible on spans that already have it. */}
-                  {kinds.filter((k) => k.active || k.id === f.kindId).map((k) => (
+                  {kinds.filter((k) => k.active || k.id === kindId).map((k) => (
                     <option key={k.id} value={k.id}>{k.label}{k.active ? '' : ' (retired)'}</option>
                   ))}
-                </select>
+                </SelectField>
               </Field>
               <Segmented
                 name={`hazard-${i}-severity`}

@@ -81,6 +81,9 @@ export function SpanDetailPage({ photosSlot }: { photosSlot?: SpanPhotosSlot }) 
           </Item>
           <Item label="Clearance at the perch point">{formatQuantity(span.clearanceM, 'length', system)}</Item>
           <Item label="Lowest clearance">{formatQuantity(span.lowestClearanceM, 'length', system)}</Item>
+          <Item label="Lowest clearance measured at">
+            {span.lowestClearanceAlongM === null ? 'Not recorded' : `${formatQuantity(span.lowestClearanceAlongM, 'length', system)} from ${span.fromStructureLabel}`}
+          </Item>
           <Item label="Survey date">{span.surveyDate ?? '—'}</Item>
           <Item label="Submitted / approved">
             {span.submittedAt ? new Date(span.submittedAt).toLocaleDateString() : '—'} / {span.approvedAt ? new Date(span.approvedAt).toLocaleDateString() : '—'}
