@@ -21,6 +21,9 @@ export interface AppConfig {
   /** Failed sign-ins allowed per IP in the window before 429. */
   signInBurst: number;
   signInWindowMs: number;
+  /** Photo uploads per user per window (429 beyond). */
+  uploadBurst: number;
+  uploadWindowMs: number;
   logRequests: boolean;
   /** On SIGTERM/SIGINT, how long requests in flight may take to finish before they are cut (SHUTDOWN_GRACE_MS; 20 s). */
   shutdownGraceMs: number;
@@ -50,6 +53,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     secureCookies: env.COOKIE_SECURE ? env.COOKIE_SECURE === 'true' : (env.PUBLIC_ORIGIN ?? '').startsWith('https:'),
     signInBurst: Number(env.SIGN_IN_BURST ?? 10),
     signInWindowMs: Number(env.SIGN_IN_WINDOW_MS ?? 15 * 60_000),
+    uploadBurst: Number(env.UPLOAD_BURST ?? 300),
+    uploadWindowMs: Number(env.UPLOAD_WINDOW_MS ?? 10 * 60_000),
     logRequests: env.LOG_REQUESTS === 'true',
     shutdownGraceMs: Number(env.SHUTDOWN_GRACE_MS ?? 20_000),
     diskWarnBytes: Number(env.DISK_WARN_MB ?? 1024) * 1024 * 1024,

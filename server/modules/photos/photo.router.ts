@@ -1,10 +1,11 @@
 import { pipeline } from 'node:stream/promises';
 import type { RequestHandler } from 'express';
 import multer from 'multer';
+import { rateLimit } from 'express-rate-limit';
 import { z } from 'zod';
 import type { AppContext } from '../../context.ts';
 import { currentUser, hasRole, featureRouter } from '../../http/access.ts';
-import { AppError, parse } from '../../http/errors.ts';
+import { AppError, errorBody, parse } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Hazard } from '../inventory/hazard.entity.ts';
@@ -121,7 +122,18 @@ export function photosRouter(ctx: AppContext, storage: PhotoStorage = localDiskS
   };
 
   // Surveyors photograph spans; safety officers may add evidence of a hazard. One file as `photo`, or several as `photos`.
-  r.post('/', ['surveyor', 'safety'], receiveFiles(ctx.config.maxUploadBytes), async (req, res) => {
+  // Per signed-in user, not per address: a crew shares one uplink. Checked before the file is read.
+  const uploadLimiter = rateLimit({
+    windowMs: ctx.config.uploadWindowMs,
+    limit: ctx.config.uploadBurst,
+    keyGenerator: (req) => currentUser(req).id,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, res) => {
+      res.status(429).json(errorBody('too_many_requests', 'Too many photo uploads in a short time; wait a few minutes and send the rest again'));
+    },
+  });
+  r.post('/', ['surveyor', 'safety'], uploadLimiter, receiveFiles(ctx.config.maxUploadBytes), async (req, res) => {
     const user = currentUser(req);
     const files = (req.files ?? {}) as Record<string, Express.Multer.File[] | undefined>;
     const several = files.photos ?? [];
