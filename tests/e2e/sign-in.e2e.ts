@@ -67,6 +67,13 @@ describe('planning home', () => {
     expect(watts.length).toBeGreaterThan(1);
     expect(watts.every((w) => w >= 20)).toBe(true);
     expect([...watts].sort((a, b) => b - a)).toEqual(watts);
+    // Only spans that pass every blocking gate are offered: none of the listed ones may fail one.
+    const ids = (await rows.locator('td:first-child a').evaluateAll((as) => as.map((a) => (a as HTMLAnchorElement).pathname.split('/').pop()!)));
+    for (const id of ids) {
+      const span = await (await page.request.get(`/api/spans/${id}`)).json();
+      expect(span.status).toBe('approved');
+      expect(span.perchable).toBe(true);
+    }
     expect(await page.locator('[aria-label="Harvest power of the best spans"] svg').count()).toBeGreaterThan(0);
     // A minimum above anything the demo harvests empties the list.
     await page.getByLabel('Minimum harvest (W)').fill('100000');

@@ -13,7 +13,8 @@ const TOP = 12;
 export function PlanningHome() {
   const me = useMe();
   const [minHarvestW, setMinHarvestW] = useState(20);
-  const query = { status: 'approved' as const, minHarvestW, sort: '-harvestW', page: 1, pageSize: TOP };
+  // Planners are offered only spans that pass every blocking gate: approved is not enough once a gate fails.
+  const query = { status: 'approved' as const, perchable: true, minHarvestW, sort: '-harvestW', page: 1, pageSize: TOP };
   const { data, isPending, error } = useQuery(spanQueries.list(query));
   const link = `?status=approved&minHarvestW=${minHarvestW}&sort=-harvestW`;
   const rows = (data?.items ?? []).map((s) => ({
@@ -45,6 +46,7 @@ export function PlanningHome() {
       </div>
       <section className="card" aria-labelledby="top-spans">
         <h2 id="top-spans" className="mb-2 text-lg font-bold">Best approved perch sites by harvestable power</h2>
+        <p className="mb-2 text-sm text-ink-700">Only approved spans that pass every blocking gate (clearance, contact temperature, gripper fit, no-perch zones, useful harvest) are listed.</p>
         {isPending && <p>Loading…</p>}
         {error && <p role="alert" className="field-error">{error.message}</p>}
         {data && rows.length === 0 && <p>No approved span harvests at least {minHarvestW} W. Lower the minimum.</p>}

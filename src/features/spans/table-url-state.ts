@@ -132,6 +132,8 @@ export interface SpanListQuery extends SpanFilters {
   page?: number;
   pageSize?: number;
   surveyorId?: string;
+  /** Only spans that pass every blocking gate for at least one active pair (what planners may be offered). */
+  perchable?: boolean;
 }
 
 /** A filter change sends the user back to page 1 (the old page may not exist in the new result). */
