@@ -1,6 +1,6 @@
 // What the map's colours and widths mean, in the product's words.
 import { SPAN_STATUSES, SPAN_STATUS_LOOK } from '../spans/status.ts';
-import { HARVEST_WIDTH_STOPS, NO_SCORE_COLOUR, SCORE_STOPS, STATUS_COLOURS, ZONE_COLOURS } from './map-styles.ts';
+import { FAILS_GATE_COLOUR, HARVEST_WIDTH_STOPS, NO_SCORE_COLOUR, SCORE_STOPS, STATUS_COLOURS, ZONE_COLOURS } from './map-styles.ts';
 
 export function MapLegend({ colourBy }: { colourBy: 'status' | 'score' }) {
   const gradient = `linear-gradient(to right, ${SCORE_STOPS.map(([v, c]) => `${c} ${v}%`).join(', ')})`;
@@ -16,6 +16,11 @@ export function MapLegend({ colourBy }: { colourBy: 'status' | 'score' }) {
               {SPAN_STATUS_LOOK[s].label}
             </li>
           ))}
+          <li className="flex items-center gap-2">
+            <span aria-hidden="true" className="inline-block h-0.5 w-8 rounded-full" style={{ background: FAILS_GATE_COLOUR }} />
+            <span aria-hidden="true">!</span>
+            Approved, but now fails a gate (needs a decision; not offered for perching)
+          </li>
         </ul>
       ) : (
         <div>

@@ -29,9 +29,12 @@ export const HARVEST_WIDTH_STOPS: [number, number][] = [
 
 export const ZONE_COLOURS = { exclude: '#b3261e', caution: '#e8b04a' } as const;
 
-const statusColour = ['match', ['get', 'status'], ...Object.entries(STATUS_COLOURS).flat(), NO_SCORE_COLOUR];
-const scoreColour = ['case', ['has', 'score'], ['interpolate', ['linear'], ['get', 'score'], ...SCORE_STOPS.flat()], NO_SCORE_COLOUR];
-const harvestWidth = ['interpolate', ['linear'], ['coalesce', ['get', 'harvestW'], 0], ...HARVEST_WIDTH_STOPS.flat()];
+/** An approved span whose assessment now fails a blocking gate: drawn thin and in this colour, never as a good candidate. */
+export const FAILS_GATE_COLOUR = '#7a2a24';
+const failsGate = ['all', ['==', ['get', 'status'], 'approved'], ['==', ['get', 'perchable'], false]];
+const statusColour = ['case', failsGate, FAILS_GATE_COLOUR, ['match', ['get', 'status'], ...Object.entries(STATUS_COLOURS).flat(), NO_SCORE_COLOUR]];
+const scoreColour = ['case', failsGate, FAILS_GATE_COLOUR, ['has', 'score'], ['interpolate', ['linear'], ['get', 'score'], ...SCORE_STOPS.flat()], NO_SCORE_COLOUR];
+const harvestWidth = ['case', failsGate, HARVEST_WIDTH_STOPS[0][1], ['interpolate', ['linear'], ['coalesce', ['get', 'harvestW'], 0], ...HARVEST_WIDTH_STOPS.flat()]];
 const zoomedWidth = (w: unknown, casing = 0) => ['interpolate', ['linear'], ['zoom'], 9, ['*', 0.5, ['+', w, casing]], 14, ['+', w, casing], 17, ['*', 1.6, ['+', w, casing]]];
 
 export const LAYER_IDS = {
