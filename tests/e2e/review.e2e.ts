@@ -8,6 +8,41 @@ beforeAll(async () => {
 afterAll(() => h?.stop());
 
 describe('review desk journey', () => {
+  it('when a submitted span fails a blocking gate, then the tablet desk names the gates, offers no approval and the a key does nothing', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
+    await h.signIn(page, 'safety');
+    await page.waitForURL((u) => u.pathname === '/review');
+    let failing: { id: string; fromStructureLabel: string; toStructureLabel: string } | undefined;
+    await expect
+      .poll(async () => {
+        failing = (await (await page.request.get('/api/spans?status=submitted&perchable=false&pageSize=1')).json()).items[0];
+        return !!failing;
+      }, { timeout: 60_000 })
+      .toBe(true);
+    const queue = page.getByRole('list', { name: 'Spans in the queue' });
+    await queue.waitFor();
+    const items = queue.getByRole('button');
+    const before = await items.count();
+    await items.filter({ hasText: failing!.fromStructureLabel }).filter({ hasText: failing!.toStructureLabel }).first().click();
+    const panel = page.getByTestId('failing-gates');
+    await panel.waitFor({ timeout: 20_000 });
+    expect(await panel.innerText()).toMatch(/Cannot be approved/);
+    expect(await panel.locator('li').count()).toBeGreaterThan(0);
+    expect(await page.getByRole('button', { name: /^Approve/ }).count()).toBe(0);
+    const ret = page.getByRole('button', { name: /Return to surveyor/ });
+    await ret.waitFor();
+    // On the tablet the failing gates and the way out are on screen without scrolling.
+    const box = await ret.boundingBox();
+    expect(box!.y + box!.height).toBeLessThanOrEqual(1180);
+    await page.keyboard.press('a');
+    await new Promise((r) => setTimeout(r, 800));
+    expect(await items.count()).toBe(before);
+    // And the server refuses it whatever the screen: 409 naming the gates.
+    const res = await page.request.post(`/api/spans/${failing!.id}/approve`, { headers: { Origin: h.baseUrl }, data: {} });
+    expect(res.status()).toBe(409);
+    await context.close();
+  });
+
   it('when a safety officer works the queue by keyboard, then a returned span carries the reason to the surveyor', async () => {
     const { context, page } = await h.newPage();
     await h.signIn(page, 'safety');
@@ -52,7 +87,7 @@ describe('review desk journey', () => {
     // a approves the span now selected: it leaves the queue, unless a zone blocks it and the desk says why.
     await page.keyboard.press('a');
     await expect
-      .poll(async () => (await items.count()) === before - 2 || (await page.getByRole('alert').filter({ hasText: /zone/i }).count()) > 0, { timeout: 10_000 })
+      .poll(async () => (await items.count()) === before - 2 || (await page.getByRole('alert').filter({ hasText: /zone/i }).count()) > 0 || (await page.getByTestId('failing-gates').count()) > 0, { timeout: 10_000 })
       .toBe(true);
     await context.close();
 

@@ -63,7 +63,7 @@ export function ReviewDesk() {
     if (cmd === 'next') return select(index + 1);
     if (cmd === 'previous') return select(index - 1);
     if (!current || decide.isPending) return;
-    if (cmd === 'approve' && current.status === 'submitted') decide.mutate({ action: 'approve', span: fresh(current) });
+    if (cmd === 'approve' && current.status === 'submitted' && !(current.failingGates?.length)) decide.mutate({ action: 'approve', span: fresh(current) });
     if (cmd === 'return' && current.status === 'submitted') setMode('return');
     if (cmd === 'suspend' && current.status === 'approved') setMode('suspend');
     if (cmd === 'reinstate' && current.status === 'suspended') decide.mutate({ action: 'reinstate', span: fresh(current) });
@@ -101,7 +101,7 @@ export function ReviewDesk() {
       <Shortcuts kind={kind} />
       {list.error && <p role="alert" className="field-error">{list.error.message}</p>}
       <div className="grid gap-4 lg:grid-cols-[20rem_1fr]">
-        <section aria-labelledby="queue-title" className="card p-0">
+        <section aria-labelledby="queue-title" className="card max-h-56 overflow-y-auto p-0 lg:max-h-none lg:overflow-visible">
           <h2 id="queue-title" className="border-b border-ink-100 px-4 py-2 font-bold">
             {QUEUES.find((q) => q.kind === kind)!.label}{' '}
             <span className="font-normal text-ink-700">· {list.data ? `${list.data.total} span${list.data.total === 1 ? '' : 's'}` : '…'}, {QUEUES.find((q) => q.kind === kind)!.hint}</span>
@@ -298,6 +298,8 @@ function DecisionPanel({ span, mode, setMode, decide }: { span: Span; mode: Reas
     setLocalError(null);
   }, [mode]);
   const err = decide.error instanceof ApiError ? decide.error : null;
+  // The server refuses approval whatever the screen; the desk says why before anyone tries.
+  const failing = span.perchable === false ? (span.failingGates ?? []) : [];
   const send = () => {
     if (!mode) return;
     if (!reason.trim()) return setLocalError('Give a reason');
@@ -306,14 +308,30 @@ function DecisionPanel({ span, mode, setMode, decide }: { span: Span; mode: Reas
   return (
     <section aria-labelledby="sec-decision" className="card space-y-3">
       <h3 id="sec-decision" className="font-bold">Decision</h3>
+      {failing.length > 0 && (
+        <div role="alert" className="rounded-lg border border-alarm bg-chalk p-3 text-sm" data-testid="failing-gates">
+          <p className="font-semibold text-alarm">
+            {span.status === 'approved' ? 'Needs a decision: this approved span now fails' : 'Cannot be approved: no active drone and harvester pass'}{' '}
+            {failing.length === 1 ? 'this gate' : 'these gates'}
+          </p>
+          <ul className="mt-1 list-disc pl-5">
+            {failing.map((g) => (
+              <li key={g.id}><strong>{g.label}</strong>{g.detail ? ` — ${g.detail}` : ''}</li>
+            ))}
+          </ul>
+          {span.status === 'submitted' && <p className="mt-1">Return it to the surveyor with what to fix.</p>}
+        </div>
+      )}
       <div className="flex flex-wrap gap-2">
         {span.status === 'submitted' && (
           <>
-            <button type="button" className="btn-primary" disabled={decide.isPending} onClick={() => decide.mutate({ action: 'approve', span })}>
-              Approve <kbd className="text-xs opacity-70">a</kbd>
-            </button>
-            <button type="button" className="btn-ghost" aria-expanded={mode === 'return'} onClick={() => setMode(mode === 'return' ? null : 'return')}>
-              Return with a reason <kbd className="text-xs opacity-70">r</kbd>
+            {failing.length === 0 && (
+              <button type="button" className="btn-primary" disabled={decide.isPending} onClick={() => decide.mutate({ action: 'approve', span })}>
+                Approve <kbd className="text-xs opacity-70">a</kbd>
+              </button>
+            )}
+            <button type="button" className={failing.length ? 'btn-primary' : 'btn-ghost'} aria-expanded={mode === 'return'} onClick={() => setMode(mode === 'return' ? null : 'return')}>
+              {failing.length ? 'Return to surveyor' : 'Return with a reason'} <kbd className="text-xs opacity-70">r</kbd>
             </button>
           </>
         )}
