@@ -144,7 +144,7 @@ describe('load series import', () => {
     const profiles = await admin.get('/api/profiles/harvesters');
     const hp = profiles.body.items.find((x: { id: string }) => x.id === h.harvesterId);
     const p50 = ev.body.profile.hours[10].p50A;
-    // harvest at the hour's median current, after the converter (model of engineering §2, self-consistency)
+    // harvest at the hour's median current, after the converter (split-core CT model with saturation, magnetic-circuit theory; self-consistency)
     const expected = harvest({ currentA: p50, frequencyHz: 60, harvester: hp }).powerW * hp.converterEfficiency;
     expect(h.hours[10].p50W).toBeCloseTo(expected, 6);
     expect(h.hours[10].p10W).toBeLessThanOrEqual(h.hours[10].p50W);

@@ -4,6 +4,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import { detectPerchEvents, type SpanSegment } from '#shared/engineering/perch-events.ts';
 import { harvestPowerW } from '#shared/engineering/ct-harvester.ts';
 import { impliedCurrentA, PowerAboveCeilingError } from '#shared/engineering/implied-current.ts';
+import type { LoadProfileHour } from '#shared/schemas/load-evidence.ts';
 import { AppError } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
 import type { User } from '../auth/user.entity.ts';
@@ -81,6 +82,8 @@ export async function uploadFlightRecord(
     track: track.points.map((p) => [p.lon, p.lat] as [number, number]),
   });
   const events: PerchEvent[] = [];
+  // One read of a line's month however many perches the flight made on it.
+  const profileCache = new Map<string, LoadProfileHour[] | undefined>();
   for (const e of detected) {
     const startS = Math.floor(e.startT / 1000);
     const local = new Date((startS + track.offsetMin * 60) * 1000);
@@ -93,7 +96,9 @@ export async function uploadFlightRecord(
     let implied: number | null = null;
     let metered: number | null = null;
     if (line && e.kind === 'perch') {
-      const series = (await seriesProfiles(em, [line.id], month)).get(line.id);
+      const key = `${line.id}|${month}`;
+      if (!profileCache.has(key)) profileCache.set(key, (await seriesProfiles(em, [line.id], month)).get(line.id));
+      const series = profileCache.get(key);
       const fromSeries = series?.[hour];
       lineCurrentA = fromSeries && fromSeries.n > 0 ? fromSeries.p50A : estimateProfile(line)[hour].p50A;
       source = fromSeries && fromSeries.n > 0 ? 'series' : 'estimate';

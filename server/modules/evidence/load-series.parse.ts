@@ -106,7 +106,6 @@ export class LoadSeriesReader {
     const offsetMin = valid[0];
     const p: Parsed = { epochS: Math.floor((localMs - offsetMin * 60_000) / 1000), offsetMin, day };
     if (valid.length > 1) p.ambiguous = [valid[0], valid[1]];
-    void row;
     return p;
   }
 

@@ -14,7 +14,9 @@ import { Assessment } from '../assessment/assessment.entity.ts';
 import { activeHarvesters, harvesterModel } from '../assessment/profiles.service.ts';
 import { LoadSeries, LoadSeriesDay } from './load-series.entity.ts';
 import { PerchEvent } from './flight-record.entity.ts';
-import { LoadSeriesReader, localHour, unpackReadings, type Reading } from './load-series.parse.ts';
+import { isoAt, LoadSeriesReader, localHour, unpackReadings, type Reading } from './load-series.parse.ts';
+
+const isoAtReading = (r: Reading) => isoAt(r.epochS, r.offsetMin);
 
 export class LoadSeriesRefusedError extends AppError {
   constructor(readonly report: LoadSeriesReport) {
@@ -77,8 +79,8 @@ export async function importLoadSeries(em: EntityManager, user: User, lineId: st
     const existing = await tem.findOne(LoadSeries, { lineId });
     const summary = {
       lineId,
-      firstAt: firstR ? isoOf(firstR) : report.firstAt!,
-      lastAt: lastR ? isoOf(lastR) : report.lastAt!,
+      firstAt: firstR ? isoAtReading(firstR) : report.firstAt!,
+      lastAt: lastR ? isoAtReading(lastR) : report.lastAt!,
       readingCount: Number(stats.n),
       dayCount: Number(stats.d),
       importedById: user.id,
@@ -97,12 +99,6 @@ export async function importLoadSeries(em: EntityManager, user: User, lineId: st
     await tem.flush();
   });
   return { ...full, committed: true };
-}
-
-function isoOf(r: Reading) {
-  const ms = (r.epochS + r.offsetMin * 60) * 1000;
-  const a = Math.abs(r.offsetMin);
-  return `${new Date(ms).toISOString().slice(0, 19)}${r.offsetMin < 0 ? '-' : '+'}${String(Math.floor(a / 60)).padStart(2, '0')}:${String(a % 60).padStart(2, '0')}`;
 }
 
 function nextMonth(month: string): string {
@@ -176,7 +172,7 @@ export async function loadEvidence(em: EntityManager, lineId: string, month?: st
     for (const [m, readings] of byMonth) {
       let peak = readings[0];
       for (const r of readings) if (r.currentA > peak.currentA) peak = r;
-      months.push({ month: m, peakA: peak.currentA, peakAt: isoOf(peak), hoursP50A: profileFromReadings(readings).map((h) => (h.n ? h.p50A : null)) });
+      months.push({ month: m, peakA: peak.currentA, peakAt: isoAtReading(peak), hoursP50A: profileFromReadings(readings).map((h) => (h.n ? h.p50A : null)) });
     }
   }
   const chosen = month ?? (months.length ? months[months.length - 1].month : currentMonth());

@@ -1,5 +1,7 @@
 // Pure transforms from the line evidence answer to what the charts draw (unit-tested without a browser).
 import type { HarvestHour, LoadEvidenceView } from '#shared/schemas/load-evidence.ts';
+import { quantileSorted } from '#shared/engineering/percentiles.ts';
+import { MONTHS } from './format.ts';
 
 /** Colour of a heat-map cell: chalk (lowest) through brass to night teal (highest), the product's own ramp. */
 const RAMP: [number, number, number][] = [
@@ -44,7 +46,6 @@ export function harvestBand(hours: HarvestHour[]) {
 
 const round1 = (v: number) => Math.round(v * 10) / 10;
 
-const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 /** "2026-03" → "Mar 2026". */
 export function monthLabel(month: string): string {
   const [y, m] = month.split('-').map(Number);
@@ -57,7 +58,7 @@ export function residualsByLine(items: { lineName?: string | null; ratio: number
   for (const i of items) if (i.ratio !== null && i.lineName) by.set(i.lineName, [...(by.get(i.lineName) ?? []), i.ratio]);
   return [...by.entries()].map(([line, ratios]) => {
     const s = [...ratios].sort((a, b) => a - b);
-    const mid = s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
+    const mid = quantileSorted(s, 0.5);
     return { line, medianPct: Math.round((mid - 1) * 1000) / 10, perches: s.length };
   });
 }

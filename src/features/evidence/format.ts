@@ -1,5 +1,5 @@
 // How load-evidence times read: as written in the file, with its UTC offset, so the hour of day matches the data.
-const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
+export const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
 /** "2026-03-01T14:15:00+12:00" → "1 Mar 2026, 14:15 (UTC+12:00)". */
 export function writtenTime(iso: string): string {
