@@ -22,6 +22,7 @@ import { mapRouter } from './modules/map/map.router.ts';
 import { photosRouter } from './modules/photos/photo.router.ts';
 import { assessmentRouters } from './modules/assessment/index.ts';
 import { evidenceRouter } from './modules/evidence/evidence.router.ts';
+import { missionsRouter } from './modules/missions/missions.router.ts';
 
 export interface CreateAppOptions {
   orm: MikroORM;
@@ -60,7 +61,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use(express.json({ limit: '1mb' }));
   app.use('/api', sessionMiddleware(ctx), originCheck(ctx));
   // Creating POSTs may carry an Idempotency-Key (retries from the offline queue).
-  app.use(['/api/structures', '/api/spans', '/api/lines', '/api/photos', '/api/zones', '/api/hazard-kinds', '/api/profiles', '/api/admin'], idempotency(ctx));
+  app.use(['/api/structures', '/api/spans', '/api/lines', '/api/photos', '/api/zones', '/api/hazard-kinds', '/api/profiles', '/api/admin', '/api/missions'], idempotency(ctx));
 
   app.use('/api/health', healthRouter(ctx));
   app.use('/api/auth', authRouter(ctx));
@@ -74,6 +75,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api/photos', photosRouter(ctx));
   app.use(assessmentRouters(ctx));
   app.use(evidenceRouter(ctx));
+  app.use('/api/missions', missionsRouter(ctx));
   app.use(mapRouter(ctx));
   app.use('/api', notFoundHandler);
 
