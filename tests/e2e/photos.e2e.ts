@@ -89,7 +89,7 @@ describe('photo journey', () => {
     const row = page.getByTestId('photo-upload-row');
     expect(await row.getAttribute('data-status')).toBe('done');
     await row.getByText('Linked to this span').waitFor();
-    await row.getByText('2026-05-04 10:11 (UTC-09:00)').waitFor();
+    await row.getByText('4 May 2026, 10:11 (UTC-09:00)').waitFor();
 
     // The span page shows it in the gallery; the full-size view opens in a dialog.
     await page.goto(`/spans/${span.id}`);

@@ -1,7 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from './helpers.ts';
 import { AuditEntry } from '../../server/modules/audit/audit.entity.ts';
-import { auditChanges } from '../../src/features/admin/components/audit-diff.tsx';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -44,15 +43,5 @@ describe('audit log queries', () => {
     const facets = (await safety.get('/api/audit/facets')).body;
     expect(facets.recordTypes).toEqual(['line']);
     expect(facets.actions).toEqual(['line.update']);
-  });
-});
-
-describe('before → after', () => {
-  it('when an entry changed some fields, then only those are listed, without version bookkeeping', () => {
-    expect(auditChanges({ name: 'A', roles: ['planner'], version: 1 }, { name: 'B', roles: ['planner'], version: 2 })).toEqual([{ field: 'name', before: 'A', after: 'B' }]);
-    expect(auditChanges({ roles: ['planner'] }, { roles: ['planner', 'admin'] })).toEqual([{ field: 'roles', before: 'planner', after: 'planner, admin' }]);
-    expect(auditChanges(null, { name: 'Crew 1' })).toEqual([{ field: 'name', before: '—', after: 'Crew 1' }]);
-    expect(auditChanges({ active: true }, { active: false })).toEqual([{ field: 'active', before: 'yes', after: 'no' }]);
-    expect(auditChanges(null, null)).toEqual([]);
   });
 });

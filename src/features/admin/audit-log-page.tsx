@@ -3,8 +3,9 @@ import { Link, useSearchParams } from 'react-router';
 import { useMe } from '../auth/queries.ts';
 import type { AuditFilters } from './api.ts';
 import { auditQueries } from './queries.ts';
-import { AuditDiff, actionLabel } from './components/audit-diff.tsx';
-import { dateTime } from './format.ts';
+import { ChangeList } from '../../components/change-list.tsx';
+import { dateTime } from '../../lib/format.ts';
+import { actionLabel, describeChanges, recordTypeLabel, type NameOf } from '../../lib/history.ts';
 
 const FIELDS = ['userId', 'recordType', 'recordId', 'action', 'from', 'to'] as const;
 
@@ -28,6 +29,7 @@ export function AuditLogPage() {
   const set = (key: string, value: string) => setMany({ [key]: value });
   const onlySpans = !me.roles.includes('admin');
   const data = list.data;
+  const nameOf: NameOf = (field, id) => (['surveyorId', 'actorId', 'userId'].includes(field) ? facets.data?.users.find((u) => u.id === id)?.name : undefined);
   return (
     <section aria-labelledby="audit-title" className="space-y-4">
       <header>
@@ -46,18 +48,25 @@ export function AuditLogPage() {
           <label htmlFor="audit-type" className="field-label">Record type</label>
           <select id="audit-type" className="field-input" value={filters.recordType ?? ''} onChange={(e) => set('recordType', e.target.value)}>
             <option value="">Any</option>
-            {facets.data?.recordTypes.map((t) => <option key={t} value={t}>{t}</option>)}
+            {facets.data?.recordTypes.map((t) => <option key={t} value={t}>{recordTypeLabel(t)}</option>)}
           </select>
         </div>
         <div>
-          <label htmlFor="audit-record" className="field-label">Record id</label>
-          <input id="audit-record" key={filters.recordId ?? ""} className="field-input" defaultValue={filters.recordId ?? ''} onBlur={(e) => set('recordId', e.target.value.trim())} onKeyDown={(e) => e.key === 'Enter' && set('recordId', e.currentTarget.value.trim())} />
+          <span className="field-label">Record</span>
+          {filters.recordId ? (
+            <p className="flex items-center gap-2 pt-2 text-sm">
+              <span>One {filters.recordType ? recordTypeLabel(filters.recordType).toLowerCase() : 'record'}</span>
+              <button type="button" className="underline" onClick={() => setMany({ recordId: '' })}>Show all</button>
+            </p>
+          ) : (
+            <p className="pt-2 text-sm text-ink-700">Any (pick one from an entry)</p>
+          )}
         </div>
         <div>
           <label htmlFor="audit-action" className="field-label">Action</label>
           <select id="audit-action" className="field-input" value={filters.action ?? ''} onChange={(e) => set('action', e.target.value)}>
             <option value="">Any</option>
-            {facets.data?.actions.map((a) => <option key={a} value={a}>{actionLabel(a) === a ? a : `${actionLabel(a)} (${a})`}</option>)}
+            {facets.data?.actions.map((a) => <option key={a} value={a}>{actionLabel(a)}</option>)}
           </select>
         </div>
         <div>
@@ -80,12 +89,12 @@ export function AuditLogPage() {
                   <span className="font-semibold">{e.actorName ?? (e.actorId ? 'Unknown user' : 'The system')}</span>
                   <span>{actionLabel(e.action)}</span>
                   <button type="button" className="text-sm text-ink-700 underline" onClick={() => setMany({ recordType: e.recordType, recordId: e.recordId })}>
-                    {e.recordType} {e.recordId}
+                    {recordTypeLabel(e.recordType)}: every entry of this record
                   </button>
                   {e.recordType === 'span' && <Link to={`/spans/${e.recordId}`} className="text-sm font-semibold underline">Open span</Link>}
                   <time className="ml-auto text-sm text-ink-500" dateTime={e.at}>{dateTime(e.at)}</time>
                 </div>
-                <AuditDiff entry={e} />
+                <ChangeList changes={describeChanges(e.before, e.after, { system: me.unitSystem, nameOf })} />
               </li>
             ))}
           </ol>

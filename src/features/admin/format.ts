@@ -6,7 +6,4 @@ export function age(fromIso: string, now = Date.now()): string {
   return `${Math.floor(s / 86400)} d`;
 }
 
-export function dateTime(iso: string | null): string {
-  if (!iso) return '—';
-  return new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
-}
+export { dateTime } from '../../lib/format.ts';

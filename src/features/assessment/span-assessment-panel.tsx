@@ -5,6 +5,7 @@ import { useQuery } from '@tanstack/react-query';
 import { formatQuantity } from '#shared/units.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
+import { dateTime, duration, number, percent, score } from '../../lib/format.ts';
 import { DailyPowerChart, FactorContributionChart, PowerVsCurrentChart } from './charts.tsx';
 import { assessmentQueries, FACTOR_LABELS, GATE_LABELS } from './queries.ts';
 
@@ -48,7 +49,7 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
           </select>
         </label>
         <p className="text-sm text-ink-700">
-          Method {a.methodVersion}, settings v{a.settingsVersion}, harvester v{a.harvesterVersion}, drone v{a.droneVersion}; computed {new Date(a.computedAt).toLocaleString()}
+          Method {a.methodVersion}, settings v{a.settingsVersion}, harvester v{a.harvesterVersion}, drone v{a.droneVersion}; computed {dateTime(a.computedAt)}
         </p>
       </div>
 
@@ -59,9 +60,9 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
             {a.perchable ? 'Yes' : 'No'}
           </dd>
         </div>
-        <Figure label="Score" value={`${Math.round(a.score)} / 100`} />
+        <Figure label="Score" value={`${score(a.score)} / 100`} />
         <Figure label="Harvest at typical load" value={formatQuantity(a.harvestW, 'power', system)} />
-        <Figure label="Charge time (typical load)" value={a.chargeTimeMin === null ? 'never (no harvest)' : formatQuantity(a.chargeTimeMin, 'duration', system)} />
+        <Figure label="Charge time (typical load)" value={a.chargeTimeMin === null ? 'never (no harvest)' : duration(a.chargeTimeMin)} />
         <Figure label="Harvest at minimum load" value={formatQuantity(a.harvestMinW, 'power', system)} />
         <Figure label="Harvest at peak load" value={formatQuantity(a.harvestPeakW, 'power', system)} />
         <Figure label="Conductor at peak load" value={formatQuantity(a.conductorTempC, 'temperature', system)} caution />
@@ -109,9 +110,9 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
             {a.factors.map((f) => (
               <tr key={f.id} className="border-t border-ink-100">
                 <td className="py-1">{FACTOR_LABELS[f.id] ?? f.id}</td>
-                <td className="py-1 text-right">{Math.round(f.value * 100)} %</td>
+                <td className="py-1 text-right">{percent(f.value)}</td>
                 <td className="py-1 text-right">{f.weight}</td>
-                <td className="py-1 text-right font-semibold">{f.contribution.toFixed(1)}</td>
+                <td className="py-1 text-right font-semibold">{number(f.contribution)}</td>
               </tr>
             ))}
           </tbody>

@@ -1,18 +1,15 @@
 // How load-evidence times read: as written in the file, with its UTC offset, so the hour of day matches the data.
+import { writtenDateTime } from '../../lib/format.ts';
+
 export const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 
-/** "2026-03-01T14:15:00+12:00" → "1 Mar 2026, 14:15 (UTC+12:00)". */
+/** "2026-03-01T14:15:00+12:00" → "1 Mar 2026, 14:15 (UTC+12:00)" (the app's one date format, src/lib/format.ts). */
 export function writtenTime(iso: string): string {
-  const m = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})(?::\d{2})?(Z|[+-]\d{2}:\d{2})?$/.exec(iso);
-  if (!m) return iso;
-  const [, y, mo, d, h, mi, off] = m;
-  return `${Number(d)} ${MONTHS[Number(mo) - 1]} ${y}, ${h}:${mi}${off ? ` (UTC${off === 'Z' ? '' : off})` : ''}`;
+  return writtenDateTime(iso);
 }
 
 /** A count with thousands separators: 35 040. */
-export function count(n: number): string {
-  return n.toLocaleString('en-GB').replace(/,/g, ' ');
-}
+export { count } from '../../lib/format.ts';
 
 /** A reading interval in words: 900 → "15 min". */
 export function interval(s: number | null): string {

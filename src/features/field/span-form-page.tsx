@@ -17,6 +17,7 @@ import { Field, QuantityField, SelectField } from './components/form-bits.tsx';
 import { HazardList } from './components/hazard-list.tsx';
 import { StructurePicker } from './components/structure-picker.tsx';
 import { mergeChoices, savedFromConflict, type ConflictKey } from './conflict.ts';
+import { dateTime } from '../../lib/format.ts';
 import { backupDiffers, backupKey, clearBackup, readBackup, writeBackup, type FormBackup } from './local-backup.ts';
 import {
   emptySpanForm,
@@ -236,7 +237,7 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
         <section className="card mb-4 space-y-3 border-2 border-brass-500" aria-labelledby="backup-title">
           <h2 id="backup-title" className="text-lg font-bold">Unsaved entries on this device</h2>
           <p>
-            Entries from {new Date(offer.savedAt).toLocaleString()} were not saved to the server
+            Entries from {dateTime(offer.savedAt)} were not saved to the server
             {saved && offer.baseVersion !== null && offer.baseVersion !== saved.version
               ? ` (made on version ${offer.baseVersion}; the record is now version ${saved.version}, so saving will show you both)`
               : ''}

@@ -6,10 +6,10 @@ import { ApiError } from '../../lib/api.ts';
 import { useMe } from '../auth/queries.ts';
 import { missionApi } from './api.ts';
 import { missionQueries } from './queries.ts';
+import { dateTime } from '../../lib/format.ts';
 import { staleReasonText } from './transforms.ts';
 import type { Mission } from './types.ts';
 
-const dateTime = (iso: string | null | undefined) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' }) : '—');
 
 const ACTION_WORDS: Record<string, string> = {
   create: 'Saved', 'mission.create': 'Saved', replan: 'Replanned', 'mission.replan': 'Replanned', authorise: 'Authorised', 'mission.authorise': 'Authorised',

@@ -5,6 +5,7 @@ import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { StaleBadge } from './mission-panel.tsx';
 import { missionQueries } from './queries.ts';
+import { dateTime } from '../../lib/format.ts';
 import { formatDistance, formatDuration } from './transforms.ts';
 
 export function MissionsListPage() {
@@ -30,7 +31,7 @@ export function MissionsListPage() {
                 {formatDistance(m.plan.totalDistanceM, me.unitSystem)} · {formatDuration(m.plan.totalDurationS)} · {m.plan.perches.length} perch{m.plan.perches.length === 1 ? '' : 'es'}
               </span>
             )}
-            {m.updatedAt && <span className="ml-auto text-sm text-ink-700">{new Date(m.updatedAt).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' })}</span>}
+            {m.updatedAt && <span className="ml-auto text-sm text-ink-700">{dateTime(m.updatedAt)}</span>}
           </li>
         ))}
       </ul>

@@ -1,13 +1,11 @@
 import { formatQuantity, type UnitSystem } from '#shared/units.ts';
 import type { Photo } from './types.ts';
+import { writtenDateTime } from '../../lib/format.ts';
 
-/** "2026-05-04 10:11 (UTC+09:30)", or "… (camera's local time)" when the file gave no offset; never converted to the viewer's zone. */
+/** "4 May 2026, 10:11 (UTC+09:30)", or "… (camera's local time)" when the file gave no offset; never converted to the viewer's zone. */
 export function formatTakenAt(p: Pick<Photo, 'takenAt' | 'takenAtHasOffset'>): string {
   if (!p.takenAt) return 'Capture time unknown';
-  const m = /^(\d{4}-\d{2}-\d{2})T(\d{2}:\d{2})(?::\d{2})?(Z|[+-]\d{2}:\d{2})?$/.exec(p.takenAt);
-  if (!m) return p.takenAt;
-  const zone = m[3] === 'Z' ? 'UTC' : m[3] ? `UTC${m[3]}` : null;
-  return `${m[1]} ${m[2]} ${zone ? `(${zone})` : "(camera's local time)"}`;
+  return writtenDateTime(p.takenAt, "camera's local time");
 }
 
 export function formatPosition(p: Pick<Photo, 'lat' | 'lon'>): string {

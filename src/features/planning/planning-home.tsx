@@ -5,6 +5,7 @@ import { Bar, BarChart, CartesianGrid, ResponsiveContainer, Tooltip, XAxis, YAxi
 import { formatQuantity } from '#shared/units.ts';
 import { useMe } from '../auth/queries.ts';
 import { spanQueries } from '../spans/queries.ts';
+import { duration, score } from '../../lib/format.ts';
 import { Caution } from '../../components/caution.tsx';
 
 const TOP = 12;
@@ -79,8 +80,8 @@ export function PlanningHome() {
                     <td className="py-2"><Link className="font-semibold underline" to={`/spans/${r.id}`}>{r.name}</Link></td>
                     <td>{r.line}</td>
                     <td className="text-right">{formatQuantity(r.harvestW, 'power', me.unitSystem)}</td>
-                    <td className="text-right">{r.score ?? '—'}</td>
-                    <td className="text-right">{r.chargeTimeMin == null ? '—' : `${Math.round(r.chargeTimeMin)} min`}</td>
+                    <td className="text-right">{score(r.score)}</td>
+                    <td className="text-right">{duration(r.chargeTimeMin)}</td>
                   </tr>
                 ))}
               </tbody>

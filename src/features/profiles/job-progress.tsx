@@ -1,6 +1,7 @@
 // Progress of a background rescore job, polled until it ends.
 import { useQuery } from '@tanstack/react-query';
 import { profileQueries } from './queries.ts';
+import { count } from '../../lib/format.ts';
 
 export function JobProgress({ jobId }: { jobId: string | null }) {
   const job = useQuery(profileQueries.job(jobId));
@@ -10,8 +11,8 @@ export function JobProgress({ jobId }: { jobId: string | null }) {
   const label =
     !j ? 'Starting the rescore…'
     : j.state === 'queued' ? 'Rescore queued behind another job…'
-    : j.state === 'running' ? `Rescoring spans: ${j.done.toLocaleString()} of ${j.total.toLocaleString()}`
-    : j.state === 'done' ? `Rescored ${j.total.toLocaleString()} span${j.total === 1 ? '' : 's'}.`
+    : j.state === 'running' ? `Rescoring spans: ${count(j.done)} of ${count(j.total)}`
+    : j.state === 'done' ? `Rescored ${count(j.total)} span${j.total === 1 ? '' : 's'}.`
     : `Rescore failed: ${j.error ?? 'unknown error'}`;
   return (
     <div className="space-y-1" data-testid="job-progress">

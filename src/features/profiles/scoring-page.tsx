@@ -8,6 +8,7 @@ import { ApiError } from '../../lib/api.ts';
 import { useMe } from '../auth/queries.ts';
 import { issuesByField, NumberFields, toSi, useFieldValues, type FieldSpec } from '../calculators/number-fields.tsx';
 import { JobProgress } from './job-progress.tsx';
+import { dateTime } from '../../lib/format.ts';
 import { profileApi, profileQueries } from './queries.ts';
 
 const WEIGHT_FIELDS: FieldSpec[] = [
@@ -124,7 +125,7 @@ export function ScoringSettingsPage() {
     <div className="space-y-4">
       <h1 className="page-title">Perch scoring</h1>
       <p className="text-ink-700">
-        Version {q.data.version}, saved {new Date(q.data.createdAt).toLocaleString()}. Gates (gripper fit, contact temperature, clearance, no-perch zones, useful harvest) are not weighted: any one failing makes a span not perchable.
+        Version {q.data.version}, saved {dateTime(q.data.createdAt)}. Gates (gripper fit, contact temperature, clearance, no-perch zones, useful harvest) are not weighted: any one failing makes a span not perchable.
       </p>
       {/* Re-mount the form on a new version so it starts from the saved values. */}
       <JobProgress jobId={jobId} />

@@ -7,7 +7,7 @@ import { useMe } from '../../auth/queries.ts';
 import { ProgressBar } from '../../../components/progress-bar.tsx';
 import { flightApi, type FlightRecordView } from '../api.ts';
 import { projectTrack, residualsByLine } from '../charts-data.ts';
-import { writtenTime } from '../format.ts';
+import { count, writtenTime } from '../format.ts';
 
 /** Flight records: upload one, see its stops on the track, and every perch's measured harvest against the prediction. */
 export function FlightRecordsSection({ canUpload }: { canUpload: boolean }) {
@@ -114,7 +114,7 @@ function FlightRecordResult({ record }: { record: FlightRecordView }) {
   return (
     <div className="space-y-2 rounded-lg border border-ink-100 p-3">
       <p role="status">
-        <strong>{record.fileName}</strong>: {record.pointCount.toLocaleString('en-US')} points, {writtenTime(record.startedAt)} to {writtenTime(record.endedAt)};{' '}
+        <strong>{record.fileName}</strong>: {count(record.pointCount)} points, {writtenTime(record.startedAt)} to {writtenTime(record.endedAt)};{' '}
         {record.events.filter((e) => e.kind === 'perch').length} perch(es), {record.events.filter((e) => e.kind === 'hover').length} hover(s).
       </p>
       <svg viewBox="0 0 640 240" className="w-full rounded bg-chalk" role="img" aria-label="Flight track with its stops">

@@ -6,6 +6,7 @@ import { ApiError } from '../../../lib/api.ts';
 import { formatOfFile, runImport } from '../api.ts';
 import type { UploadProgress } from '../upload.ts';
 import { ProgressBar } from './progress-bar.tsx';
+import { count } from '../../../lib/format.ts';
 
 const ACTION_LOOK: Record<ImportAction, { label: string; className: string }> = {
   create: { label: 'Create', className: 'bg-green-50 text-go border-green-300' },
@@ -129,7 +130,7 @@ export function ImportPage() {
             <ProgressBar
               label="Upload"
               value={upload?.fraction ?? (processing ? 1 : null)}
-              detail={upload ? `${Math.round(upload.loaded / 1024).toLocaleString('en-US')} of ${Math.round((upload.total || file?.size || 0) / 1024).toLocaleString('en-US')} KiB` : undefined}
+              detail={upload ? `${count(upload.loaded / 1024)} of ${count((upload.total || file?.size || 0) / 1024)} KiB` : undefined}
             />
             {processing && (
               <ProgressBar

@@ -6,11 +6,12 @@ import { TERRAIN_LABELS, type Span } from '#shared/schemas/inventory.ts';
 import { formatQuantity } from '#shared/units.ts';
 import { Caution } from '../../../components/caution.tsx';
 import { useMe } from '../../auth/queries.ts';
-import { changedFields } from '../history.ts';
+import { codeWords, date } from '../../../lib/format.ts';
 import { inventoryQueries, spanQueries } from '../queries.ts';
 import { LifecycleActions } from './lifecycle-actions.tsx';
 import { SpanAssessmentSlot } from './span-assessment-slot.tsx';
 import { StatusBadge } from './status-badge.tsx';
+import { SpanHistoryList } from './span-history-list.tsx';
 
 /** Where the photos feature shows the span's photos (composed in src/app/router.tsx). */
 export type SpanPhotosSlot = (span: Span) => ReactNode;
@@ -84,9 +85,9 @@ export function SpanDetailPage({ photosSlot }: { photosSlot?: SpanPhotosSlot }) 
           <Item label="Lowest clearance measured at">
             {span.lowestClearanceAlongM === null ? 'Not recorded' : `${formatQuantity(span.lowestClearanceAlongM, 'length', system)} from ${span.fromStructureLabel}`}
           </Item>
-          <Item label="Survey date">{span.surveyDate ?? '—'}</Item>
+          <Item label="Survey date">{date(span.surveyDate)}</Item>
           <Item label="Submitted / approved">
-            {span.submittedAt ? new Date(span.submittedAt).toLocaleDateString() : '—'} / {span.approvedAt ? new Date(span.approvedAt).toLocaleDateString() : '—'}
+            {date(span.submittedAt)} / {date(span.approvedAt)}
           </Item>
         </dl>
         <Caution compact />
@@ -110,7 +111,7 @@ export function SpanDetailPage({ photosSlot }: { photosSlot?: SpanPhotosSlot }) 
               {span.hazards.map((h) => (
                 <tr key={h.id} className="border-b border-ink-100">
                   <td className="py-2 pr-3 font-semibold">{kindLabel(h.kindId)}</td>
-                  <td className={`py-2 pr-3 ${h.severity === 'high' ? 'font-bold text-alarm' : ''}`}>{h.severity}</td>
+                  <td className={`py-2 pr-3 ${h.severity === 'high' ? 'font-bold text-alarm' : ''}`}>{codeWords(h.severity)}</td>
                   <td className="py-2 pr-3">{h.positionAlongM == null ? 'whole span' : formatQuantity(h.positionAlongM, 'length', system)}</td>
                   <td className="py-2">{h.note || '—'}</td>
                 </tr>
@@ -136,27 +137,7 @@ export function SpanDetailPage({ photosSlot }: { photosSlot?: SpanPhotosSlot }) 
       {history.data && history.data.length > 0 && (
         <section className="card space-y-3" aria-labelledby="sec-history">
           <h2 id="sec-history" className="text-lg font-bold">History</h2>
-          <ol className="space-y-3">
-            {history.data.map((e) => {
-              const changes = changedFields(e.before, e.after);
-              return (
-                <li key={String(e.id)} className="border-l-4 border-ink-200 pl-3">
-                  <p className="text-sm">
-                    <strong>{e.action}</strong> · {new Date(e.at).toLocaleString()} · {e.actorName ?? e.actorId ?? 'system'}
-                  </p>
-                  {changes.length > 0 && (
-                    <ul className="text-sm text-ink-700">
-                      {changes.map((ch) => (
-                        <li key={ch.field}>
-                          {ch.field}: {ch.before} → {ch.after}
-                        </li>
-                      ))}
-                    </ul>
-                  )}
-                </li>
-              );
-            })}
-          </ol>
+          <SpanHistoryList spanId={span.id} system={system} />
         </section>
       )}
     </article>

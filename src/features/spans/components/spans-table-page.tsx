@@ -29,6 +29,7 @@ import {
   type SpansTableState,
 } from '../table-url-state.ts';
 import { StatusBadge } from './status-badge.tsx';
+import { count, dateTime } from '../../../lib/format.ts';
 
 const col = createColumnHelper<Span>();
 
@@ -80,7 +81,7 @@ function buildColumns(system: UnitSystem) {
       meta: { numeric: true },
     }),
     col.accessor('surveyDate', { header: title('surveyDate'), cell: (c) => c.getValue() ?? '—' }),
-    col.accessor('updatedAt', { header: title('updatedAt'), cell: (c) => new Date(c.getValue()).toLocaleString() }),
+    col.accessor('updatedAt', { header: title('updatedAt'), cell: (c) => dateTime(c.getValue()) }),
   ];
 }
 
@@ -147,7 +148,7 @@ export function SpansTablePage() {
 
       <div className="flex flex-wrap items-center justify-between gap-3">
         <p className="text-sm text-ink-700" role="status" aria-live="polite">
-          {spans.isPending ? 'Loading spans…' : `${total.toLocaleString('en-US')} span${total === 1 ? '' : 's'} match`}
+          {spans.isPending ? 'Loading spans…' : `${count(total)} span${total === 1 ? '' : 's'} match`}
           {spans.isFetching && !spans.isPending ? ' · updating…' : ''}
         </p>
         <ColumnChooser table={table} />
