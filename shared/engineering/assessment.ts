@@ -5,6 +5,7 @@ import { approachDistanceM as oshaApproachDistanceM, codeGroundClearanceM } from
 import { chargeTimeMin as energyChargeTimeMin, DEFAULT_BATTERY_EFFICIENCY } from './charge-time.ts';
 import { DEFAULT_EMISSIVITY, DEFAULT_ABSORPTIVITY } from './conductors.ts';
 import type { DroneProfile } from './demo-profiles.ts';
+import { formatQuantity, unitLabel, type QuantityKind, type UnitSystem } from '../units.ts';
 
 /** Bumped whenever a gate, factor, default or weight changes, so stored assessments can be recomputed. */
 export const METHOD_VERSION = 'perch-assessment/1.0.0';
@@ -100,8 +101,29 @@ export interface Gate {
   passed: boolean;
   /** False for data-quality flags that inform but do not stop a perch. */
   blocking: boolean;
+  /** The detail in words, metric (kept for readers of the API; `parts` carries the same with its quantities). */
   detail: string;
+  /** The detail as text and SI quantities, so a screen writes each figure in the user's units. */
+  parts: DetailPart[];
 }
+
+/** A piece of a gate detail: plain text, or an SI value of a quantity with the decimals the metric text shows. */
+export type DetailPart = string | { quantity: QuantityKind; si: number; digits: number; bare?: boolean };
+
+/** Text of the parts in the chosen units: metric as the detail string has always read, US through formatQuantity. */
+export function detailText(parts: readonly DetailPart[], system: UnitSystem = 'metric'): string {
+  return parts
+    .map((p) => {
+      if (typeof p === 'string') return p;
+      // `bare`: the number without its unit, as the first end of a range ("12.0–36.0 mm").
+      const text = system === 'metric' ? `${Number.isFinite(p.si) ? p.si.toFixed(p.digits) : '∞'} ${unitLabel(p.quantity, 'metric')}` : formatQuantity(p.si, p.quantity, system);
+      return p.bare ? text.slice(0, text.lastIndexOf(' ')) : text;
+    })
+    .join('');
+}
+
+const part = (quantity: QuantityKind, si: number, digits = 1): DetailPart => ({ quantity, si, digits });
+const gate = (id: GateId, passed: boolean, blocking: boolean, parts: DetailPart[]): Gate => ({ id, passed, blocking, detail: detailText(parts), parts });
 
 export interface Factor {
   id: FactorId;
@@ -131,8 +153,12 @@ export interface SpanAssessment {
   methodVersion: string;
 }
 
+/** "12.0–36.0 mm" as parts: the gripper's diameter range. */
+export function gripperRange(h: Pick<HarvesterProfile, 'gripperMinDiameterMm' | 'gripperMaxDiameterMm'>): DetailPart[] {
+  return [{ quantity: 'diameter', si: h.gripperMinDiameterMm, digits: 1, bare: true }, '–', part('diameter', h.gripperMaxDiameterMm)];
+}
+
 const clamp01 = (x: number) => (Number.isFinite(x) ? Math.min(1, Math.max(0, x)) : 0);
-const fmt = (x: number, digits = 1) => (Number.isFinite(x) ? x.toFixed(digits) : '∞');
 
 // Perch assessment: IEEE Std 738-2012 thermal checks, CT harvester model, NESC Table 232-1 and OSHA 29 CFR 1910.333(c)(3) distances.
 export function assessSpan(
@@ -175,47 +201,31 @@ export function assessSpan(
 
   const d = span.conductor.diameterMm;
   const gates: Gate[] = [
-    {
-      id: 'gripper-fit',
-      passed: d >= harvester.gripperMinDiameterMm && d <= harvester.gripperMaxDiameterMm,
-      blocking: true,
-      detail: `conductor ${fmt(d)} mm; gripper ${fmt(harvester.gripperMinDiameterMm)}–${fmt(harvester.gripperMaxDiameterMm)} mm`,
-    },
-    {
-      id: 'contact-temperature',
-      passed: conductorTempC < harvester.contactTempLimitC,
-      blocking: true,
-      detail: `conductor ${fmt(conductorTempC)} °C at peak load ${fmt(span.loadCurrentA.peak, 0)} A; contact limit ${fmt(harvester.contactTempLimitC, 0)} °C`,
-    },
-    {
-      id: 'clearance',
-      passed: span.clearanceM !== null && span.clearanceM >= requiredClearanceM,
-      blocking: true,
-      detail:
-        span.clearanceM === null
-          ? `clearance not surveyed; needs ${fmt(requiredClearanceM, 2)} m`
-          : `clearance ${fmt(span.clearanceM, 2)} m; code ${fmt(codeClearanceM, 2)} m, drone ${fmt(drone.approachClearanceM, 2)} m`,
-    },
-    {
-      id: 'no-perch-zone',
-      passed: !span.zones.inExclude,
-      blocking: true,
-      detail: span.zones.inExclude ? 'inside an active no-perch zone' : 'outside every active no-perch zone',
-    },
-    {
-      // A load above the thermal rating says the load estimate (or the conductor record) is doubtful;
-      // it lowers data quality instead of blocking, since the line owner, not the drone, manages loading.
-      id: 'ampacity',
-      passed: span.loadCurrentA.peak <= ampacityA,
-      blocking: false,
-      detail: `peak load ${fmt(span.loadCurrentA.peak, 0)} A; ampacity ${fmt(ampacityA, 0)} A at ${fmt(settings.ampacityMaxConductorC, 0)} °C`,
-    },
-    {
-      id: 'useful-harvest',
-      passed: harvestW >= harvester.usefulMinHarvestW,
-      blocking: true,
-      detail: `${fmt(harvestW)} W at typical load ${fmt(span.loadCurrentA.typical, 0)} A; useful minimum ${fmt(harvester.usefulMinHarvestW)} W`,
-    },
+    gate('gripper-fit', d >= harvester.gripperMinDiameterMm && d <= harvester.gripperMaxDiameterMm, true, [
+      'conductor ', part('diameter', d), '; gripper ', ...gripperRange(harvester),
+    ]),
+    gate('contact-temperature', conductorTempC < harvester.contactTempLimitC, true, [
+      'conductor ', part('temperature', conductorTempC), ' at peak load ', part('current', span.loadCurrentA.peak, 0),
+      '; contact limit ', part('temperature', harvester.contactTempLimitC, 0),
+    ]),
+    gate(
+      'clearance',
+      span.clearanceM !== null && span.clearanceM >= requiredClearanceM,
+      true,
+      span.clearanceM === null
+        ? ['clearance not surveyed; needs ', part('length', requiredClearanceM, 2)]
+        : ['clearance ', part('length', span.clearanceM, 2), '; code ', part('length', codeClearanceM, 2), ', drone ', part('length', drone.approachClearanceM, 2)],
+    ),
+    gate('no-perch-zone', !span.zones.inExclude, true, [span.zones.inExclude ? 'inside an active no-perch zone' : 'outside every active no-perch zone']),
+    // A load above the thermal rating says the load estimate (or the conductor record) is doubtful;
+    // it lowers data quality instead of blocking, since the line owner, not the drone, manages loading.
+    gate('ampacity', span.loadCurrentA.peak <= ampacityA, false, [
+      'peak load ', part('current', span.loadCurrentA.peak, 0), '; ampacity ', part('current', ampacityA, 0),
+      ' at ', part('temperature', settings.ampacityMaxConductorC, 0),
+    ]),
+    gate('useful-harvest', harvestW >= harvester.usefulMinHarvestW, true, [
+      part('power', harvestW), ' at typical load ', part('current', span.loadCurrentA.typical, 0), '; useful minimum ', part('power', harvester.usefulMinHarvestW),
+    ]),
   ];
   const ampacityOk = gates.find((g) => g.id === 'ampacity')!.passed;
 

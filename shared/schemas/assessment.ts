@@ -1,6 +1,7 @@
 // Equipment profiles, bench tests, scoring settings and the assessment as the API carries them. SI units.
 import { z } from 'zod';
 import { harvesterCoreSchema } from './calc.ts';
+import type { DetailPart } from '../engineering/assessment.ts';
 
 const num = (what: string) => z.number({ message: `Enter ${what} as a number` });
 const name = z.string().trim().min(1, 'Enter a name').max(120, 'Use at most 120 characters');
@@ -190,6 +191,8 @@ export interface GateView {
   passed: boolean;
   blocking: boolean;
   detail: string;
+  /** The detail as text and SI quantities (absent on assessments stored before it existed: show `detail`). */
+  parts?: DetailPart[];
 }
 export interface FactorView {
   id: string;

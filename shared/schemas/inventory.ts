@@ -1,6 +1,7 @@
 // Line inventory: the shared zod schemas (server validation and the client forms) and the API response types.
 // SI units throughout: m, mm, A, kV, Hz, Ω/m, °C.
 import { z } from 'zod';
+import type { DetailPart } from '../engineering/assessment.ts';
 
 export const SPAN_STATUSES = ['draft', 'submitted', 'approved', 'returned', 'suspended'] as const;
 export type SpanStatus = (typeof SPAN_STATUSES)[number];
@@ -363,7 +364,7 @@ export interface Span {
   /** Approved but no longer perchable: flagged on the review desk until a safety officer decides. */
   needsDecision?: boolean;
   /** The blocking gates that fail (in words) when the span is not perchable. */
-  failingGates?: { id: string; label: string; detail: string; pairs: string[] }[];
+  failingGates?: { id: string; label: string; detail: string; parts?: DetailPart[]; pairs: string[] }[];
   createdAt: string;
   updatedAt: string;
 }

@@ -1,5 +1,7 @@
 // How the screens write times, durations, counts, scores and internal codes: one place, one format.
 // Quantities with units go through formatQuantity in shared/units.ts (metric or US as the user chose).
+import { detailText, type DetailPart } from '#shared/engineering/assessment.ts';
+import type { UnitSystem } from '#shared/units.ts';
 
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
 const pad = (n: number) => String(n).padStart(2, '0');
@@ -100,4 +102,9 @@ export function codeWords(code: string): string {
   if (!words.length) return code;
   const text = words.join(' ');
   return text.charAt(0).toUpperCase() + text.slice(1);
+}
+
+/** A gate's detail in the user's units: from its parts when the assessment carries them, else the stored words. */
+export function gateDetail(g: { detail: string; parts?: readonly DetailPart[] }, system: UnitSystem): string {
+  return g.parts?.length ? detailText(g.parts, system) : g.detail;
 }

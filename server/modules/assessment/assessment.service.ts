@@ -6,6 +6,8 @@ import { bbox as turfBbox, booleanIntersects } from '@turf/turf';
 import {
   assessSpan as assessSpanPure,
   DEFAULT_DESIGN_WEATHER,
+  detailText,
+  gripperRange,
   METHOD_VERSION,
   type ScoringSettings,
   type SpanAssessment,
@@ -128,7 +130,8 @@ export function assessRecords(rec: SpanRecords, harvester: HarvesterProfile, dro
     const gate = result.gates.find((g) => g.id === 'gripper-fit');
     if (gate) {
       gate.passed = false;
-      gate.detail = `conductor diameter not surveyed; gripper ${harvester.gripperMinDiameterMm}–${harvester.gripperMaxDiameterMm} mm`;
+      gate.parts = ['conductor diameter not surveyed; gripper ', ...gripperRange(harvester)];
+      gate.detail = detailText(gate.parts);
     }
     result.perchable = result.gates.every((g) => g.passed || !g.blocking);
   }
@@ -291,7 +294,7 @@ export function assessmentView(row: Assessment): SpanAssessmentView {
   return {
     perchable: row.perchable,
     score: row.score,
-    gates: r.gates.map((g) => ({ id: g.id, passed: g.passed, blocking: g.blocking, detail: g.detail })),
+    gates: r.gates.map((g) => ({ id: g.id, passed: g.passed, blocking: g.blocking, detail: g.detail, ...(g.parts ? { parts: g.parts } : {}) })),
     factors: r.factors.map((f) => ({ id: f.id, value: f.value, weight: f.weight, contribution: f.contribution })),
     harvestW: row.harvestW,
     harvestMinW: r.harvestMinW,

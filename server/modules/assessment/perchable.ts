@@ -2,7 +2,7 @@
 // One definition for the span list filter, the approval rule, the "needs a decision" flag, the map and mission planning.
 import type { EntityManager } from '@mikro-orm/core';
 import type { ApiIssue } from '#shared/api-error.ts';
-import type { SpanAssessment } from '#shared/engineering/assessment.ts';
+import type { DetailPart, SpanAssessment } from '#shared/engineering/assessment.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Assessment } from './assessment.entity.ts';
 import { assessSpans } from './assessment.service.ts';
@@ -91,6 +91,8 @@ export interface GateFailure {
   label: string;
   /** The first failing pair's detail, e.g. "clearance 5.20 m; code 5.83 m, drone 3.00 m". */
   detail: string;
+  /** The same detail as text and SI quantities, for a screen in the user's units. */
+  parts?: DetailPart[];
   /** The pairs (harvester × drone names) that fail it. */
   pairs: string[];
 }
@@ -111,7 +113,7 @@ function standingOf(rows: Row[], names: Map<string, string>): PerchStanding {
     const pair = `${names.get(row.harvesterProfileId) ?? row.harvesterProfileId} with ${names.get(row.droneProfileId) ?? row.droneProfileId}`;
     for (const g of (row.result as SpanAssessment).gates ?? []) {
       if (g.passed || g.blocking === false) continue;
-      const f = failing.get(g.id) ?? { id: g.id, label: gateWord(g.id), detail: g.detail, pairs: [] };
+      const f = failing.get(g.id) ?? { id: g.id, label: gateWord(g.id), detail: g.detail, ...(g.parts ? { parts: g.parts } : {}), pairs: [] };
       f.pairs.push(pair);
       failing.set(g.id, f);
     }

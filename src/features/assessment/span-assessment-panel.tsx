@@ -5,7 +5,7 @@ import { useQuery } from '@tanstack/react-query';
 import { formatQuantity } from '#shared/units.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
-import { dateTime, duration, number, percent, score } from '../../lib/format.ts';
+import { dateTime, duration, gateDetail, number, percent, score } from '../../lib/format.ts';
 import { DailyPowerChart, FactorContributionChart, PowerVsCurrentChart } from './charts.tsx';
 import { assessmentQueries, FACTOR_LABELS, GATE_LABELS } from './queries.ts';
 
@@ -87,7 +87,7 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
                 <span className="sr-only">{g.passed ? ': met' : g.blocking ? ': not met' : ': flagged'}</span>
                 {!g.blocking && !g.passed && <span className="ml-1 text-sm text-brass-700">(data-quality flag, does not block)</span>}
                 <br />
-                <span className="text-sm text-ink-700">{g.detail}</span>
+                <span className="text-sm text-ink-700">{gateDetail(g, system)}</span>
               </span>
             </li>
           ))}

@@ -4,6 +4,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Span } from '#shared/schemas/inventory.ts';
 import { formatQuantity } from '#shared/units.ts';
 import { ApiError } from '../../lib/api.ts';
+import { gateDetail } from '../../lib/format.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { spanApi } from '../spans/api.ts';
@@ -289,6 +290,7 @@ function Fact({ label, children }: { label: string; children: React.ReactNode })
 }
 
 function DecisionPanel({ span, mode, setMode, decide }: { span: Span; mode: ReasonMode | null; setMode: (m: ReasonMode | null) => void; decide: ReturnType<typeof useDecision> }) {
+  const me = useMe();
   const [reason, setReason] = useState('');
   const [localError, setLocalError] = useState<string | null>(null);
   const reasonRef = useRef<HTMLTextAreaElement>(null);
@@ -316,7 +318,7 @@ function DecisionPanel({ span, mode, setMode, decide }: { span: Span; mode: Reas
           </p>
           <ul className="mt-1 list-disc pl-5">
             {failing.map((g) => (
-              <li key={g.id}><strong>{g.label}</strong>{g.detail ? ` — ${g.detail}` : ''}</li>
+              <li key={g.id}><strong>{g.label}</strong>{g.detail ? ` — ${gateDetail(g, me.unitSystem)}` : ''}</li>
             ))}
           </ul>
           {span.status === 'submitted' && <p className="mt-1">Return it to the surveyor with what to fix.</p>}

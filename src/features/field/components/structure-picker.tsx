@@ -2,7 +2,7 @@
 import { useState } from 'react';
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { STRUCTURE_KINDS, structureCreateSchema, type Structure, type StructureKind } from '#shared/schemas/inventory.ts';
-import type { UnitSystem } from '#shared/units.ts';
+import { formatQuantity, type UnitSystem } from '#shared/units.ts';
 import { ApiError } from '../../../lib/api.ts';
 import { inventoryApi } from '../../spans/api.ts';
 import { inventoryQueries } from '../../spans/queries.ts';
@@ -106,7 +106,7 @@ function AddStructurePanel({ idPrefix, lineId, unitSystem, onAdded }: { idPrefix
       (pos) => {
         setLat(pos.coords.latitude.toFixed(6));
         setLon(pos.coords.longitude.toFixed(6));
-        setLocating(`Position found (±${Math.round(pos.coords.accuracy)} m).`);
+        setLocating(`Position found (±${formatQuantity(pos.coords.accuracy, 'length', unitSystem, { digits: 0 })}).`);
       },
       (err) => setLocating(err.code === err.PERMISSION_DENIED ? 'Location permission was refused; type the coordinates.' : 'No position fix yet; try again or type the coordinates.'),
       { enableHighAccuracy: true, timeout: 20_000, maximumAge: 0 },
