@@ -23,6 +23,7 @@ import { photosRouter } from './modules/photos/photo.router.ts';
 import { assessmentRouters } from './modules/assessment/index.ts';
 import { evidenceRouter } from './modules/evidence/evidence.router.ts';
 import { missionsRouter } from './modules/missions/missions.router.ts';
+import { linePermissionsRouter } from './modules/line-permissions/line-permissions.router.ts';
 
 export interface CreateAppOptions {
   orm: MikroORM;
@@ -67,6 +68,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api/auth', authRouter(ctx));
   app.use('/api/me', meRouter(ctx));
   app.use('/api', inventoryRouter(ctx));
+  app.use('/api/lines', linePermissionsRouter(ctx));
   app.use('/api/auth', invitationRouter(ctx), resetRouter(ctx));
   app.use('/api/admin', adminRouter(ctx));
   app.use('/api/audit', auditRouter(ctx));

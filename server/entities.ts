@@ -18,6 +18,7 @@ import { PhotoSchema } from './modules/photos/photo.entity.ts';
 import { LoadSeriesDaySchema, LoadSeriesSchema } from './modules/evidence/load-series.entity.ts';
 import { FlightRecordSchema, PerchEventSchema } from './modules/evidence/flight-record.entity.ts';
 import { PendingWorkSchema } from './modules/jobs/pending-work.entity.ts';
+import { LinePermissionSchema } from './modules/line-permissions/line-permission.entity.ts';
 import { IdempotencyKeySchema } from './modules/idempotency/idempotency-key.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema, FlightRecordSchema, PerchEventSchema, PendingWorkSchema, IdempotencyKeySchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema, FlightRecordSchema, PerchEventSchema, PendingWorkSchema, IdempotencyKeySchema, LinePermissionSchema];

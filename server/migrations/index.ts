@@ -14,6 +14,7 @@ import { Migration20261203113007 } from './Migration20261203113007.ts';
 import { Migration20261203113032 } from './Migration20261203113032.ts';
 import { Migration20261203113759 } from './Migration20261203113759.ts';
 import { Migration20261203113808 } from './Migration20261203113808.ts';
+import { Migration20261203124918 } from './Migration20261203124918.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202031719', class: Migration20261202031719 },
@@ -30,4 +31,5 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203113032', class: Migration20261203113032 },
   { name: 'Migration20261203113759', class: Migration20261203113759 },
   { name: 'Migration20261203113808', class: Migration20261203113808 },
+  { name: 'Migration20261203124918', class: Migration20261203124918 },
 ];

@@ -26,4 +26,4 @@ export function audit(em: EntityManager, input: AuditInput): AuditEntry {
 }
 
 /** Record types the safety role may read in the audit log: the span records and what hangs off them. */
-export const SPAN_RELATED_RECORD_TYPES = ['span', 'hazard', 'hazard-kind', 'hazard_kind', 'zone', 'photo', 'structure', 'line', 'assessment'];
+export const SPAN_RELATED_RECORD_TYPES = ['span', 'hazard', 'hazard-kind', 'hazard_kind', 'zone', 'photo', 'structure', 'line', 'assessment', 'line-permission'];

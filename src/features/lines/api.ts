@@ -1,30 +1,14 @@
 // Fetchers for a line and its owner's permissions (api.md "Line permissions"); the document goes up as multipart.
 import { queryOptions } from '@tanstack/react-query';
 import type { Line } from '#shared/schemas/inventory.ts';
+import type { LinePermissionView as LinePermission, LinePermissionInput as SharedInput } from '#shared/schemas/line-permissions.ts';
 import { api } from '../../lib/api.ts';
 import { uploadWithProgress, type UploadProgress } from '../../lib/upload.ts';
 
-export interface LinePermission {
-  id: string;
-  lineId: string;
-  reference: string;
-  validFrom: string;
-  validTo: string;
-  conditions: string;
-  documentId?: string | null;
-  documentUrl?: string | null;
-  documentName?: string | null;
-  expired?: boolean;
-  createdAt?: string;
-  createdByName?: string | null;
-}
+export type { LinePermissionView as LinePermission } from '#shared/schemas/line-permissions.ts';
 
-export interface LinePermissionInput {
-  reference: string;
-  validFrom: string;
-  validTo: string;
-  conditions: string;
-}
+/** The form's values; the server's schema (shared/schemas/line-permissions.ts) checks them again. */
+export type LinePermissionInput = Required<SharedInput>;
 
 const enc = encodeURIComponent;
 
@@ -48,7 +32,7 @@ export const lineQueries = {
 };
 
 /** Expired when the server says so, else when today (UTC, as the server's zones count whole days) is past validTo. */
-export function isExpired(p: Pick<LinePermission, 'validTo' | 'expired'>, today = new Date().toISOString().slice(0, 10)): boolean {
+export function isExpired(p: Pick<LinePermission, 'validTo'> & { expired?: boolean }, today = new Date().toISOString().slice(0, 10)): boolean {
   return p.expired ?? p.validTo < today;
 }
 

@@ -129,18 +129,4 @@ export interface Mission {
   updatedAt?: string;
 }
 
-export interface LinePermission {
-  id: string;
-  lineId: string;
-  reference: string;
-  validFrom: string;
-  validTo: string;
-  conditions: string;
-  documentId?: string | null;
-  documentUrl?: string | null;
-  documentName?: string | null;
-  expired?: boolean;
-  createdAt?: string;
-  createdById?: string | null;
-  createdByName?: string | null;
-}
+export type { LinePermissionView as LinePermission } from '#shared/schemas/line-permissions.ts';
