@@ -223,6 +223,29 @@ export interface SpanAssessmentView {
   droneProfileId: string;
   droneVersion: number;
   computedAt: string;
+  /** Which load current the harvest figures rest on: a typed estimate (the span's or the line's) or a metered month. */
+  loadSource: LoadSourceView;
+}
+
+export interface LoadSourceView {
+  kind: 'span-estimate' | 'line-estimate' | 'measured';
+  /** YYYY-MM of the metered month when `kind` is `measured`. */
+  month: string | null;
+}
+
+const MONTH_NAMES = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+
+/** How a harvest figure names its load source: "measured, December 2026" or "typed estimate (the line's)". */
+export function loadSourceLabel(s: LoadSourceView): string {
+  if (s.kind === 'measured' && s.month) return `measured, ${MONTH_NAMES[Number(s.month.slice(5, 7)) - 1]} ${s.month.slice(0, 4)}`;
+  return s.kind === 'span-estimate' ? "typed estimate (this span's)" : "typed estimate (the line's)";
+}
+
+/** The stored inputs' load source (`span`, `line` or `series YYYY-MM`) as the view says it. */
+export function loadSourceOf(stored: unknown): LoadSourceView {
+  const m = typeof stored === 'string' ? /^series (\d{4}-\d{2})$/.exec(stored) : null;
+  if (m) return { kind: 'measured', month: m[1] };
+  return { kind: stored === 'span' ? 'span-estimate' : 'line-estimate', month: null };
 }
 
 export interface HarvestCurveView {
@@ -237,4 +260,6 @@ export interface HarvestCurveView {
   daily: { hour: number; currentA: number; powerW: number }[] | null;
   /** Where the currents of the day come from: the line's metered series for this month, or its estimate. */
   loadSource?: 'series' | 'estimate';
+  /** YYYY-MM of the metered month when `loadSource` is `series`. */
+  loadMonth?: string | null;
 }

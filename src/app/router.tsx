@@ -24,6 +24,8 @@ import { ForgotPasswordPage } from '../features/auth/forgot-password-page.tsx';
 import { ReviewDesk } from '../features/review/review-desk.tsx';
 import { EvidenceLinesPage } from '../features/evidence/components/evidence-lines-page.tsx';
 import { LineEvidencePage } from '../features/evidence/components/line-evidence-page.tsx';
+import { FlightRecordPage } from '../features/evidence/components/flight-record-page.tsx';
+import { spanEvidenceSlot } from '../features/evidence/slots.tsx';
 import { MissionsListPage } from '../features/missions/missions-list-page.tsx';
 import { LinePage, LinesPage } from '../features/lines/line-page.tsx';
 
@@ -52,9 +54,9 @@ export const router = createBrowserRouter([
           { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><SpanFormPage photoSlot={spanFormPhotoSlot} /></RoleGate> },
           { path: 'spans', Component: SpansTablePage },
           { path: 'map', lazy: () => import('../features/map/map-page.tsx') },
-          { path: 'spans/:id', element: <SpanDetailPage photosSlot={spanDetailPhotosSlot} /> },
+          { path: 'spans/:id', element: <SpanDetailPage photosSlot={spanDetailPhotosSlot} evidenceSlot={spanEvidenceSlot} /> },
           { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
-          { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety"><ReviewDesk /></RoleHome></RoleGate> },
+          { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety"><ReviewDesk evidenceSlot={spanEvidenceSlot} /></RoleHome></RoleGate> },
           { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner"><PlanningHome /></RoleHome></RoleGate> },
           { path: 'lines', Component: LinesPage },
           { path: 'lines/:id', Component: LinePage },
@@ -70,6 +72,7 @@ export const router = createBrowserRouter([
           { path: 'calculators', Component: CalculatorsPage },
           { path: 'evidence', Component: EvidenceLinesPage },
           { path: 'evidence/lines/:id', Component: LineEvidencePage },
+          { path: 'evidence/flights/:id', Component: FlightRecordPage },
           { path: 'admin/audit', element: <RoleGate roles={['admin', 'safety']}><AuditLogPage /></RoleGate> },
           { path: 'account', Component: AccountPage },
           { path: '*', element: <StatusPage code={404} title="Nothing here" message="That page does not exist." /> },

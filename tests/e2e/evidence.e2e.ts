@@ -44,6 +44,64 @@ describe('load evidence', () => {
     await page.getByLabel('Residuals by line').locator('.recharts-bar-rectangle').first().waitFor({ timeout: 10_000 });
   });
 
+  it('when a flight measured less than half the predicted harvest on a span, then the review desk and the span page flag it and link to the flight', async () => {
+    const { page } = await h.newPage({ viewport: { width: 820, height: 1180 } });
+    await h.signIn(page, 'safety');
+    await page.waitForURL((u) => u.pathname === '/review');
+    // A span of the desk's approved queue (the queue shows the longest-waiting ones).
+    await page.getByRole('tab', { name: 'Approved' }).click();
+    await page.getByRole('heading', { name: /^Approved · \d+ spans?/ }).waitFor({ timeout: 15_000 });
+    const spanId = await page.locator('[data-span-id]').nth(1).getAttribute('data-span-id');
+    const span = await (await page.request.get(`/api/spans/${spanId}`)).json();
+    const structures = await (await page.request.get(`/api/structures?lineId=${span.lineId}`)).json();
+    const a = structures.items.find((s: { id: string }) => s.id === span.fromStructureId);
+    const b = structures.items.find((s: { id: string }) => s.id === span.toStructureId);
+    const mid = { lat: (a.lat + b.lat) / 2, lon: (a.lon + b.lon) / 2 };
+    const rows = ['time,lat,lon,altitude_m,battery_pct,harvest_w'];
+    const t0 = Date.parse('2026-06-02T19:00:00Z');
+    const at = (s: number) => new Date(t0 + s * 1000).toISOString().slice(0, 19) + '+00:00';
+    let s = 0;
+    for (let k = 10; k > 0; k--, s += 5) rows.push(`${at(s)},${mid.lat},${(mid.lon - k * 0.0006).toFixed(6)},30,70,`);
+    for (let k = 0; k < 40; k++, s += 5) rows.push(`${at(s)},${mid.lat},${mid.lon.toFixed(6)},20,${(70 + k * 0.01).toFixed(2)},0.5`);
+    for (let k = 1; k <= 10; k++, s += 5) rows.push(`${at(s)},${mid.lat},${(mid.lon + k * 0.0006).toFixed(6)},30,71,`);
+    const up = await page.request.post('/api/flight-records', {
+      headers: { Origin: h.baseUrl },
+      multipart: { file: { name: 'weak-perch.csv', mimeType: 'text/csv', buffer: Buffer.from(rows.join('\n')) } },
+    });
+    expect(up.status()).toBe(201);
+    const upBody = await up.json();
+    const perch = upBody.events.find((e: { kind: string }) => e.kind === 'perch');
+    expect(perch.spanId).toBe(span.id);
+    expect(perch.lowHarvest).toBe(true);
+
+    // The review desk: that span; the flag sits beside the decision.
+    await page.locator(`[data-span-id="${span.id}"]`).click();
+    const flag = page.getByTestId('harvest-evidence-flag');
+    await flag.waitFor({ timeout: 15_000 });
+    expect(await flag.textContent()).toMatch(/Measured harvest below half the prediction.*1 of 1 perch on this span harvested less than 50 %/);
+    expect(await flag.getByRole('link', { name: /Load evidence for/ }).getAttribute('href')).toBe(`/evidence/lines/${span.lineId}`);
+    if (process.env.EVIDENCE_SCREENSHOT) await page.screenshot({ path: process.env.EVIDENCE_SCREENSHOT.replace(/\.png$/, '-desk.png') });
+
+    // The span page: the same flag, and each harvest figure names the load it rests on.
+    await page.goto(`/spans/${span.id}`);
+    await page.getByTestId('harvest-evidence-flag').waitFor({ timeout: 15_000 });
+    const pairs = await (await page.request.get(`/api/spans/${span.id}/assessments`)).json();
+    const src = pairs.items[0].loadSource;
+    const months = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+    const expected = src.kind === 'measured' ? `load: measured, ${months[Number(src.month.slice(5)) - 1]} ${src.month.slice(0, 4)}` : src.kind === 'span-estimate' ? "load: typed estimate (this span's)" : "load: typed estimate (the line's)";
+    const labels = page.getByTestId('harvest-load-source');
+    await labels.first().waitFor({ timeout: 15_000 });
+    expect(await labels.count()).toBe(4); // typical, charge time, minimum, peak
+    for (const t of await labels.allTextContents()) expect(t).toBe(expected);
+    if (process.env.EVIDENCE_SCREENSHOT) await page.screenshot({ path: process.env.EVIDENCE_SCREENSHOT.replace(/\.png$/, '-span.png'), fullPage: true });
+
+    // The flag's link opens the flight record with the perch.
+    await page.getByTestId('harvest-evidence-flag').getByRole('link', { name: 'Latest flight record' }).click();
+    await page.waitForURL((u) => u.pathname.startsWith('/evidence/flights/'));
+    await page.getByRole('status').filter({ hasText: 'weak-perch.csv' }).waitFor({ timeout: 15_000 });
+    expect(await page.getByText('below half').count()).toBeGreaterThan(0);
+  });
+
   it('when the demo line with a metered year opens, then the month × hour heat map and the harvest band show', async () => {
     const { page } = await h.newPage({ viewport: { width: 820, height: 1180 } });
     await h.signIn(page, 'safety');

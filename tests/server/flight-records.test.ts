@@ -77,6 +77,29 @@ describe('flight records', () => {
     expect(flags.body.lowHarvestSpanIds).toContain(span.id);
   });
 
+  it('when one of a span\'s perches harvested below half the prediction, then its evidence summary flags it with the counts and the latest perch', async () => {
+    const { span, line } = await approvedSpan(-30.31);
+    const good = await upload(planner, flightCsv(-30.31, 20, '2026-06-01T10:00:00-09:00'));
+    const poor = await upload(planner, flightCsv(-30.31, 0.5, '2026-06-02T10:00:00-09:00'));
+    const g = good.body.events.find((e: { kind: string }) => e.kind === 'perch');
+    const p = poor.body.events.find((e: { kind: string }) => e.kind === 'perch');
+    expect(p.lowHarvest).toBe(true);
+    const res = await planner.get(`/api/evidence/spans/${span.id}`);
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ spanId: span.id, lineId: line.id, threshold: 0.5, perchCount: 2, measuredCount: 2, lowHarvestCount: g.lowHarvest ? 2 : 1, lowHarvest: true });
+    expect(res.body.medianRatio).toBeCloseTo((g.ratio + p.ratio) / 2, 9); // median of two = their mean
+    expect(res.body.latest).toMatchObject({ flightRecordId: poor.body.id, startAt: '2026-06-02T10:00:50-09:00', measuredW: 0.5, lowHarvest: true, predictedSource: 'estimate' });
+    expect(res.body.latest.predictedW).toBeCloseTo(p.predictedW, 9);
+  });
+
+  it('when a span has no perches, then its summary is empty and unflagged; an unknown span is 404', async () => {
+    const { span } = await approvedSpan(-30.32);
+    const res = await planner.get(`/api/evidence/spans/${span.id}`);
+    expect(res.status).toBe(200);
+    expect(res.body).toMatchObject({ perchCount: 0, measuredCount: 0, lowHarvestCount: 0, lowHarvest: false, medianRatio: null, latest: null });
+    expect((await planner.get('/api/evidence/spans/nope')).status).toBe(404);
+  });
+
   it('when the same flight comes as GPX with the product extension, then the same perch is found', async () => {
     const { span } = await approvedSpan(-30.35);
     const csv = flightCsv(-30.35, 20).split('\n').slice(1).map((r) => r.split(','));

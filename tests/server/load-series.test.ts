@@ -265,5 +265,28 @@ describe('the assessment on measured load', () => {
     expect(curve.status).toBe(200);
     expect(curve.body.loadSource).toBe('series');
     expect(curve.body.daily[5].currentA).toBeCloseTo(250, 3);
+    expect(curve.body.loadMonth).toBe(month);
+    // Every harvest figure of the span's assessments names the metered month it rests on.
+    const pairs = await admin.get(`/api/spans/${span.id}/assessments`);
+    expect(pairs.body.items.length).toBeGreaterThan(0);
+    for (const p of pairs.body.items) expect(p.loadSource).toEqual({ kind: 'measured', month });
+    expect((await admin.get(`/api/spans/${span.id}`)).body.assessment.loadSource).toEqual({ kind: 'measured', month });
+  });
+
+  it('when a line has no series, then the assessment says it rests on the typed estimate (the line\'s, or the span\'s own)', async () => {
+    const { assessSpans } = await import('../../server/modules/assessment/assessment.service.ts');
+    const line = await makeLine(t.orm);
+    const onLine = await makeSpan(t.orm, line);
+    const own = await makeSpan(t.orm, line, { lat: -30.9 });
+    const em = t.orm.em.fork();
+    await em.nativeUpdate((await import('../../server/modules/inventory/span.entity.ts')).Span, { id: own.id }, { loadCurrentA: 320 });
+    await assessSpans(t.orm.em.fork(), [onLine.id, own.id]);
+    const a = await admin.get(`/api/spans/${onLine.id}/assessments`);
+    const b = await admin.get(`/api/spans/${own.id}/assessments`);
+    expect(a.body.items[0].loadSource).toEqual({ kind: 'line-estimate', month: null });
+    expect(b.body.items[0].loadSource).toEqual({ kind: 'span-estimate', month: null });
+    const curve = await admin.get(`/api/spans/${onLine.id}/harvest-curve`);
+    expect(curve.body.loadSource).toBe('estimate');
+    expect(curve.body.loadMonth).toBeNull();
   });
 });

@@ -15,7 +15,7 @@ import {
 } from '#shared/engineering/assessment.ts';
 import { ACSR_CONDUCTORS, DEFAULT_ABSORPTIVITY, DEFAULT_EMISSIVITY, findConductor, thermalConductorOf } from '#shared/engineering/conductors.ts';
 import { harvestCurve, harvestPowerW, type HarvesterProfile as HarvesterModel } from '#shared/engineering/ct-harvester.ts';
-import type { HarvestCurveView, SpanAssessmentView } from '#shared/schemas/assessment.ts';
+import { loadSourceOf, type HarvestCurveView, type SpanAssessmentView } from '#shared/schemas/assessment.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Line } from '../inventory/line.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
@@ -311,6 +311,7 @@ export function assessmentView(row: Assessment): SpanAssessmentView {
     droneProfileId: row.droneProfileId,
     droneVersion: row.droneVersion,
     computedAt: row.computedAt.toISOString(),
+    loadSource: loadSourceOf((row.inputs as { loadSource?: unknown } | null)?.loadSource),
   };
 }
 
@@ -389,5 +390,6 @@ export async function harvestCurveOfSpan(em: EntityManager, spanId: string, harv
     harvestW: { min: at(load.min), typical: at(load.typical), peak: at(load.peak) },
     daily,
     loadSource: (line as MeasuredLine).measuredMonth ? 'series' : 'estimate',
+    loadMonth: (line as MeasuredLine).measuredMonth ?? null,
   };
 }

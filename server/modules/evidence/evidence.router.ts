@@ -8,7 +8,7 @@ import { impliedCurrentA, PowerAboveCeilingError } from '#shared/engineering/imp
 import type { AppContext } from '../../context.ts';
 import { currentUser, featureRouter } from '../../http/access.ts';
 import { AppError, errorBody, parse } from '../../http/errors.ts';
-import { getFlightRecord, listFlightRecords, perchEvidence, uploadFlightRecord } from './flight-record.service.ts';
+import { getFlightRecord, listFlightRecords, perchEvidence, spanEvidence, uploadFlightRecord } from './flight-record.service.ts';
 import { flightTemplateCsv } from './flight-template.ts';
 import { updateLine } from '../inventory/lines.service.ts';
 import { currentMonth, estimateFromEvidence, importLoadSeries, seriesSummaries, loadEvidence, loadProfile, LoadSeriesRefusedError } from './load-series.service.ts';
@@ -106,6 +106,7 @@ export function evidenceRouter(_ctx: AppContext) {
     const q = parse(z.object({ spanId: z.string().max(64).optional(), harvesterProfileId: z.string().max(64).optional() }), req.query);
     res.json(await perchEvidence(req.em, q));
   });
+  ev.get('/spans/:id', 'signed-in', async (req, res) => res.json(await spanEvidence(req.em, String(req.params.id))));
 
   const calc = featureRouter('/api/calc');
   calc.post('/implied-current', 'signed-in', (req, res) => {

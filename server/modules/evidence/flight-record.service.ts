@@ -176,3 +176,37 @@ export async function perchEvidence(em: EntityManager, filter: { spanId?: string
   const lowSpans = [...new Set(items.filter((i) => i.lowHarvest).map((i) => i.spanId!))];
   return { items, lowHarvestSpanIds: lowSpans };
 }
+
+/**
+ * What the fleet measured on one span, for the places where people decide (review desk, span page): how many perches,
+ * how many harvested below half the prediction, the median measured ÷ predicted, and the latest perch with figures.
+ */
+export async function spanEvidence(em: EntityManager, spanId: string) {
+  const span = await em.findOne(Span, { id: spanId }, { fields: ['id', 'lineId'] });
+  if (!span) throw AppError.notFound('Span');
+  const events = (await em.find(PerchEvent, { kind: 'perch', spanId }, { orderBy: { startAt: 'asc' } })).map(eventView);
+  const measured = events.filter((e) => e.ratio !== null);
+  const ratios = measured.map((e) => e.ratio!).sort((a, b) => a - b);
+  const mid = ratios.length ? (ratios.length % 2 ? ratios[(ratios.length - 1) / 2] : (ratios[ratios.length / 2 - 1] + ratios[ratios.length / 2]) / 2) : null;
+  const latest = measured.at(-1) ?? null;
+  const low = measured.filter((e) => e.lowHarvest);
+  return {
+    spanId,
+    lineId: span.lineId,
+    threshold: LOW_HARVEST_RATIO,
+    perchCount: events.length,
+    measuredCount: measured.length,
+    lowHarvestCount: low.length,
+    lowHarvest: low.length > 0,
+    medianRatio: mid,
+    latest: latest && {
+      flightRecordId: latest.flightRecordId,
+      startAt: latest.startAt,
+      measuredW: latest.measuredW,
+      predictedW: latest.predictedW,
+      predictedSource: latest.predictedSource,
+      ratio: latest.ratio,
+      lowHarvest: latest.lowHarvest,
+    },
+  };
+}

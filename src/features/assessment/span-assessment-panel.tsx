@@ -3,13 +3,14 @@
 import { useState } from 'react';
 import { useQuery } from '@tanstack/react-query';
 import { formatQuantity } from '#shared/units.ts';
+import { loadSourceLabel } from '#shared/schemas/assessment.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { dateTime, duration, gateDetail, number, percent, score } from '../../lib/format.ts';
 import { DailyPowerChart, FactorContributionChart, PowerVsCurrentChart } from './charts.tsx';
 import { assessmentQueries, FACTOR_LABELS, GATE_LABELS } from './queries.ts';
 
-function Figure({ label, value, caution = false }: { label: string; value: string; caution?: boolean }) {
+function Figure({ label, value, caution = false, source }: { label: string; value: string; caution?: boolean; /** Which load the figure rests on. */ source?: string }) {
   return (
     <div>
       <dt className="text-sm text-ink-700">{label}</dt>
@@ -17,6 +18,7 @@ function Figure({ label, value, caution = false }: { label: string; value: strin
         {value}
         {caution && <span className="sr-only"> (see caution)</span>}
       </dd>
+      {source && <dd className="text-xs text-ink-700" data-testid="harvest-load-source">load: {source}</dd>}
     </div>
   );
 }
@@ -35,6 +37,8 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
   if (!a) return <p className="text-ink-700" data-testid="assessment-none">Not assessed yet: it appears once the span has a line, structures and an active harvester and drone profile.</p>;
 
   const failed = a.gates.filter((g) => !g.passed);
+  // Older stored rows may predate the field: they rest on the typed estimate.
+  const source = loadSourceLabel(a.loadSource ?? { kind: 'line-estimate', month: null });
   return (
     <div className="space-y-5" data-testid="span-assessment-panel">
       <div className="flex flex-wrap items-end gap-3">
@@ -61,10 +65,10 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
           </dd>
         </div>
         <Figure label="Score" value={`${score(a.score)} / 100`} />
-        <Figure label="Harvest at typical load" value={formatQuantity(a.harvestW, 'power', system)} />
-        <Figure label="Charge time (typical load)" value={a.chargeTimeMin === null ? 'never (no harvest)' : duration(a.chargeTimeMin)} />
-        <Figure label="Harvest at minimum load" value={formatQuantity(a.harvestMinW, 'power', system)} />
-        <Figure label="Harvest at peak load" value={formatQuantity(a.harvestPeakW, 'power', system)} />
+        <Figure label="Harvest at typical load" value={formatQuantity(a.harvestW, 'power', system)} source={source} />
+        <Figure label="Charge time (typical load)" value={a.chargeTimeMin === null ? 'never (no harvest)' : duration(a.chargeTimeMin)} source={source} />
+        <Figure label="Harvest at minimum load" value={formatQuantity(a.harvestMinW, 'power', system)} source={source} />
+        <Figure label="Harvest at peak load" value={formatQuantity(a.harvestPeakW, 'power', system)} source={source} />
         <Figure label="Conductor at peak load" value={formatQuantity(a.conductorTempC, 'temperature', system)} caution />
         <Figure label="Ampacity" value={formatQuantity(a.ampacityA, 'current', system)} caution />
         <Figure label="Code ground clearance" value={formatQuantity(a.codeClearanceM, 'length', system)} caution />
@@ -136,7 +140,11 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
       <section aria-labelledby="daily-title" className="space-y-2">
         <h3 id="daily-title" className="font-bold">Power over the day</h3>
         {curve.data?.daily && (
-          <p className="text-sm text-ink-700">{curve.data.loadSource === 'series' ? "From the line's metered currents for this month (hourly medians)." : "From the line's load estimate."}</p>
+          <p className="text-sm text-ink-700" data-testid="daily-load-source">
+            {curve.data.loadSource === 'series'
+              ? `Load: ${loadSourceLabel({ kind: 'measured', month: curve.data.loadMonth ?? null })} (the line's metered currents, hourly medians).`
+              : "Load: typed estimate (the line's 24-hour profile)."}
+          </p>
         )}
         {curve.data && (curve.data.daily ? <DailyPowerChart daily={curve.data.daily} /> : <p className="text-ink-700">The line has no 24-hour load profile; add one on the line to see the daily harvest.</p>)}
       </section>

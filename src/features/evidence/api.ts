@@ -55,6 +55,18 @@ export interface PerchEventView {
   lowHarvest: boolean;
 }
 
+export interface FlightRecordSummary {
+  id: string;
+  fileName: string;
+  format: 'csv' | 'gpx';
+  missionId: string | null;
+  spanId: string | null;
+  startedAt: string;
+  endedAt: string;
+  pointCount: number;
+  uploadedAt: string;
+}
+
 export interface FlightRecordView {
   id: string;
   fileName: string;
@@ -62,6 +74,8 @@ export interface FlightRecordView {
   startedAt: string;
   endedAt: string;
   pointCount: number;
+  missionId: string | null;
+  spanId: string | null;
   track: [number, number][];
   events: PerchEventView[];
 }
@@ -73,4 +87,28 @@ export const flightApi = {
     return uploadWithProgress<FlightRecordView>('/api/flight-records', body, onProgress);
   },
   perches: () => api.get<{ items: PerchEventView[]; lowHarvestSpanIds: string[] }>('/api/evidence/perches'),
+  get: (id: string) => api.get<FlightRecordView>(`/api/flight-records/${encodeURIComponent(id)}`),
+  list: () => api.get<{ items: FlightRecordSummary[] }>('/api/flight-records'),
+  ofSpan: (spanId: string) => api.get<SpanEvidenceView>(`/api/evidence/spans/${encodeURIComponent(spanId)}`),
 };
+
+/** What the fleet measured on one span (`GET /api/evidence/spans/:id`). */
+export interface SpanEvidenceView {
+  spanId: string;
+  lineId: string;
+  threshold: number;
+  perchCount: number;
+  measuredCount: number;
+  lowHarvestCount: number;
+  lowHarvest: boolean;
+  medianRatio: number | null;
+  latest: {
+    flightRecordId: string;
+    startAt: string;
+    measuredW: number | null;
+    predictedW: number | null;
+    predictedSource: 'series' | 'estimate' | null;
+    ratio: number | null;
+    lowHarvest: boolean;
+  } | null;
+}

@@ -1,4 +1,4 @@
-import { useEffect, useRef, useState } from 'react';
+import { useEffect, useRef, useState, type ReactNode } from 'react';
 import { Link } from 'react-router';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Span } from '#shared/schemas/inventory.ts';
@@ -22,7 +22,7 @@ const isTyping = (el: EventTarget | null) =>
   el instanceof HTMLElement && (el.tagName === 'INPUT' || el.tagName === 'TEXTAREA' || el.tagName === 'SELECT' || el.isContentEditable);
 
 /** The safety officer's desk: a queue on the left, the selected span with everything needed to decide on the right. */
-export function ReviewDesk() {
+export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => ReactNode } = {}) {
   const [kind, setKind] = useState<QueueKind>('submitted');
   const list = useQuery(spanQueries.list({ status: kind, sort: 'updatedAt', pageSize: 200 }));
   const spans = orderQueue(list.data?.items ?? [], kind);
@@ -140,7 +140,7 @@ export function ReviewDesk() {
           )}
         </section>
         {current ? (
-          <SpanReview key={current.id} spanId={current.id} listed={current} mode={mode} setMode={setMode} decide={decide} />
+          <SpanReview key={current.id} spanId={current.id} listed={current} mode={mode} setMode={setMode} decide={decide} evidenceSlot={evidenceSlot} />
         ) : (
           !list.isPending && <p className="card text-ink-700">Select a span from the queue.</p>
         )}
@@ -199,12 +199,14 @@ function SpanReview({
   mode,
   setMode,
   decide,
+  evidenceSlot,
 }: {
   spanId: string;
   listed: Span;
   mode: ReasonMode | null;
   setMode: (m: ReasonMode | null) => void;
   decide: ReturnType<typeof useDecision>;
+  evidenceSlot?: (span: Span) => ReactNode;
 }) {
   const me = useMe();
   const system = me.unitSystem;
@@ -242,6 +244,8 @@ function SpanReview({
         {span.suspendReason && span.status === 'suspended' && <p className="rounded-lg bg-red-50 p-2 text-sm text-alarm"><strong>Suspended:</strong> {span.suspendReason}</p>}
       </header>
 
+      {/* What flights measured on this span (the load-evidence feature, composed in src/app/router.tsx). */}
+      {evidenceSlot?.(span)}
       <DecisionPanel span={span} mode={mode} setMode={setMode} decide={decide} />
 
       <section aria-labelledby="sec-zones" className="card space-y-2">

@@ -108,7 +108,7 @@ export function FlightRecordsSection({ canUpload }: { canUpload: boolean }) {
 
 const round1 = (v: number) => Math.round(v * 10) / 10;
 
-function FlightRecordResult({ record }: { record: FlightRecordView }) {
+export function FlightRecordResult({ record }: { record: FlightRecordView }) {
   const me = useMe();
   const { path, stops } = projectTrack(record.track, record.events, 640, 240);
   return (

@@ -15,6 +15,8 @@ import { SpanHistoryList } from './span-history-list.tsx';
 
 /** Where the photos feature shows the span's photos (composed in src/app/router.tsx). */
 export type SpanPhotosSlot = (span: Span) => ReactNode;
+/** Where the load-evidence feature flags what flights measured on the span (composed in src/app/router.tsx). */
+export type SpanEvidenceSlot = (span: Span) => ReactNode;
 
 function Item({ label, children }: { label: string; children: ReactNode }) {
   return (
@@ -25,7 +27,7 @@ function Item({ label, children }: { label: string; children: ReactNode }) {
   );
 }
 
-export function SpanDetailPage({ photosSlot }: { photosSlot?: SpanPhotosSlot }) {
+export function SpanDetailPage({ photosSlot, evidenceSlot }: { photosSlot?: SpanPhotosSlot; evidenceSlot?: SpanEvidenceSlot }) {
   const { id = '' } = useParams();
   const me = useMe();
   const system = me.unitSystem;
@@ -66,6 +68,8 @@ export function SpanDetailPage({ photosSlot }: { photosSlot?: SpanPhotosSlot }) 
       </header>
 
       <LifecycleActions span={span} roles={me.roles} />
+
+      {evidenceSlot?.(span)}
 
       <section className="card space-y-3" aria-labelledby="sec-record">
         <h2 id="sec-record" className="text-lg font-bold">Survey record</h2>
