@@ -82,7 +82,16 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api', notFoundHandler);
 
   if (fs.existsSync(path.join(clientDir, 'index.html'))) {
-    app.use(express.static(clientDir, { index: false, maxAge: '1h' }));
+    app.use(
+      express.static(clientDir, {
+        index: false,
+        maxAge: '1h',
+        // The service worker and the manifest are checked for a new version on every visit.
+        setHeaders: (res, file) => {
+          if (/[\\/](sw\.js|manifest\.webmanifest)$/.test(file)) res.setHeader('Cache-Control', 'no-cache');
+        },
+      }),
+    );
     app.get('/{*splat}', (_req, res) => {
       res.sendFile(path.join(clientDir, 'index.html'), { headers: { 'Cache-Control': 'no-cache' } });
     });

@@ -4,11 +4,13 @@ import { QueryClientProvider } from '@tanstack/react-query';
 import { RouterProvider } from 'react-router/dom';
 import { queryClient } from './lib/query-client.ts';
 import { router } from './app/router.tsx';
+import { UpdatePrompt } from './app/update-prompt.tsx';
 import './index.css';
 
 createRoot(document.getElementById('root')!).render(
   <StrictMode>
     <QueryClientProvider client={queryClient}>
+      <UpdatePrompt />
       <RouterProvider router={router} />
     </QueryClientProvider>
   </StrictMode>,

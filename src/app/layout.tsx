@@ -1,17 +1,17 @@
 import { NavLink, Outlet, useNavigate } from 'react-router';
-import { useQueryClient } from '@tanstack/react-query';
 import { ROLE_LABELS } from '#shared/roles.ts';
 import { Logo } from '../components/logo.tsx';
 import { signOut, useMe } from '../features/auth/queries.ts';
 import { navFor } from './nav.ts';
+import { clearDeviceCache } from '../lib/query-client.ts';
 
 export function AppLayout() {
   const me = useMe();
   const navigate = useNavigate();
-  const queryClient = useQueryClient();
   const onSignOut = async () => {
     await signOut().catch(() => undefined);
-    queryClient.clear();
+    // A shared tablet: the next person does not see this person's records.
+    await clearDeviceCache();
     navigate('/sign-in', { replace: true });
   };
   return (

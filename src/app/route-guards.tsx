@@ -1,15 +1,38 @@
 import type { ReactNode } from 'react';
+import { onlineManager } from '@tanstack/react-query';
 import { redirect, isRouteErrorResponse, useRouteError, type LoaderFunctionArgs } from 'react-router';
 import type { Role } from '#shared/roles.ts';
 import { homeFor } from '#shared/roles.ts';
-import { queryClient } from '../lib/query-client.ts';
+import { cacheRestored, queryClient } from '../lib/query-client.ts';
 import { authQueries, useMe } from '../features/auth/queries.ts';
 import { StatusPage } from '../components/status-page.tsx';
-import { ApiError } from '../lib/api.ts';
+import { ApiError, isNetworkError } from '../lib/api.ts';
 
 /** Loader of the signed-in layout: no session → the sign-in page, remembering where the user was going. */
+/**
+ * Who is signed in: the copy kept on the device (restored from IndexedDB) when there is one, else the server.
+ * With no signal and no copy, nobody (sign-in says it needs a connection).
+ */
+let askedServer = false;
+export async function currentUser() {
+  await cacheRestored;
+  const kept = queryClient.getQueryData(authQueries.me().queryKey) ?? null;
+  try {
+    // The first time after a page load the server decides (a session may have ended); later the cache is enough.
+    if (!askedServer && onlineManager.isOnline()) {
+      const me = await queryClient.fetchQuery({ ...authQueries.me(), staleTime: 0 });
+      askedServer = true;
+      return me;
+    }
+    return await queryClient.ensureQueryData(authQueries.me());
+  } catch (err) {
+    if (isNetworkError(err)) return kept;
+    throw err;
+  }
+}
+
 export async function requireSession({ request }: LoaderFunctionArgs) {
-  const me = await queryClient.ensureQueryData(authQueries.me());
+  const me = await currentUser();
   if (!me) {
     const url = new URL(request.url);
     throw redirect(`/sign-in?next=${encodeURIComponent(url.pathname + url.search)}`);
@@ -18,12 +41,12 @@ export async function requireSession({ request }: LoaderFunctionArgs) {
 }
 
 export async function homeRedirect() {
-  const me = await queryClient.ensureQueryData(authQueries.me());
+  const me = await currentUser();
   return redirect(me ? homeFor(me.roles) : '/sign-in');
 }
 
 export async function signInLoader() {
-  const me = await queryClient.ensureQueryData(authQueries.me());
+  const me = await currentUser();
   return me ? redirect(homeFor(me.roles)) : null;
 }
 

@@ -16,13 +16,19 @@ export class ApiError extends Error {
   }
 }
 
-async function request<T>(method: string, url: string, body?: unknown): Promise<T> {
-  const res = await fetch(url, {
-    method,
-    credentials: 'same-origin',
-    headers: body === undefined ? {} : { 'Content-Type': 'application/json' },
-    body: body === undefined ? undefined : JSON.stringify(body),
-  });
+async function request<T>(method: string, url: string, body?: unknown, headers: Record<string, string> = {}): Promise<T> {
+  let res: Response;
+  try {
+    res = await fetch(url, {
+      method,
+      credentials: 'same-origin',
+      headers: { ...(body === undefined ? {} : { 'Content-Type': 'application/json' }), ...headers },
+      body: body === undefined ? undefined : JSON.stringify(body),
+    });
+  } catch {
+    // No answer at all (no signal, server unreachable): status 0, so callers can tell it from a refusal.
+    throw new ApiError(0, 'network', 'No connection to the server');
+  }
   if (res.status === 204) return undefined as T;
   const data = await res.json().catch(() => null);
   if (!res.ok) {
@@ -38,7 +44,12 @@ export const api = {
   put: <T>(url: string, body: unknown) => request<T>('PUT', url, body),
   patch: <T>(url: string, body: unknown) => request<T>('PATCH', url, body),
   delete: <T>(url: string) => request<T>('DELETE', url),
+  /** Any method with extra headers (the outbox sends its Idempotency-Key this way). */
+  send: <T>(method: string, url: string, body: unknown, headers: Record<string, string>) => request<T>(method, url, body, headers),
 };
+
+/** True when the request got no answer (as opposed to an answer refusing it). */
+export const isNetworkError = (err: unknown) => err instanceof ApiError && err.status === 0;
 
 /** Builds a query string from the set values only. */
 export function qs(params: Record<string, string | number | boolean | null | undefined>) {

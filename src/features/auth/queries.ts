@@ -16,6 +16,9 @@ export const authQueries = {
         }
       },
       staleTime: 60_000,
+      // Asked even with no signal: the loaders then fall back to the copy kept on the device (or to sign-in).
+      networkMode: 'always',
+      retry: false,
     }),
 };
 

@@ -8,11 +8,13 @@ import { homeFor } from '#shared/roles.ts';
 import { ApiError } from '../../lib/api.ts';
 import { authQueries, signIn } from './queries.ts';
 import { Logo } from '../../components/logo.tsx';
+import { useOnline } from '../../lib/online.ts';
 
 export function SignInPage() {
   const navigate = useNavigate();
   const [params] = useSearchParams();
   const queryClient = useQueryClient();
+  const online = useOnline();
   const [formError, setFormError] = useState<string | null>(null);
   const { register, handleSubmit, formState } = useForm<SignInInput>({ resolver: zodResolver(signInSchema) });
 
@@ -38,6 +40,11 @@ export function SignInPage() {
             <p className="text-sm text-ink-700">Perch-site survey and line inventory</p>
           </div>
         </div>
+        {!online && (
+          <p role="status" className="mb-4 rounded-lg border-2 border-brass-500 bg-brass-100 p-3 text-sm" data-testid="offline-sign-in">
+            No connection. Signing in needs the network once; after that Roostline keeps working in the field without it.
+          </p>
+        )}
         <form onSubmit={onSubmit} noValidate className="space-y-4" aria-label="Sign in">
           <div>
             <label htmlFor="email" className="field-label">E-mail</label>
