@@ -1,13 +1,14 @@
 // Layers of the plan map over /map/style.json (its `zones` source) and the plan's own route source.
 // Zones in the app's zone colours (exclude alarm red, caution brass); the route in night-teal ink on a chalk casing.
 import type { LayerProps } from 'react-map-gl/maplibre';
+import { MISSION_COLOURS } from '#shared/mission-colours.ts';
 
 type OverlayLayer = LayerProps & { id: string };
 
 /** The first label layer of /map/style.json: overlays go under it so names stay readable. */
 export const LABELS_FROM = 'road-label';
 
-export const MISSION_COLOURS = { exclude: '#b3261e', caution: '#e8b04a', route: '#12343b', casing: '#f7f4ee', perch: '#2e7d4f' } as const;
+export { MISSION_COLOURS };
 
 export const MISSION_ZONES_FILL_LAYER = {
   id: 'mission-zones-fill',
