@@ -4,6 +4,8 @@ import { MikroORM, type Options } from '@mikro-orm/sqlite';
 import { Migrator } from '@mikro-orm/migrations';
 import { entities } from './entities.ts';
 import { migrationsList } from './migrations/index.ts';
+import { BoundSqliteDriver } from './sql/sqlite-driver.ts';
+import { sql } from './sql/query.ts';
 
 /**
  * How long a connection waits for another process's lock before SQLite gives up (SQLite retries inside this
@@ -22,6 +24,8 @@ export const CONNECTION_PRAGMAS = ['PRAGMA foreign_keys = ON', 'PRAGMA journal_m
 export function ormOptions(databasePath: string): Options {
   return {
     dbName: databasePath,
+    // Every value reaches SQLite as a bound parameter, never written into the SQL text.
+    driver: BoundSqliteDriver,
     entities,
     extensions: [Migrator],
     allowGlobalContext: false,
@@ -50,6 +54,6 @@ export async function initORM(databasePath: string): Promise<MikroORM> {
 
 /** `PRAGMA integrity_check`: "ok", or the problems SQLite found. */
 export async function integrityCheck(orm: MikroORM): Promise<string> {
-  const rows = await orm.em.fork().getConnection().execute<{ integrity_check: string }[]>('PRAGMA integrity_check');
+  const rows = await sql.all<{ integrity_check: string }>(orm.em.fork(), 'PRAGMA integrity_check');
   return rows.map((r) => r.integrity_check).join('\n');
 }

@@ -71,5 +71,4 @@ export async function bulkInsert(
   });
 }
 
-/** `?,?,…` for an IN list of n bound values. */
-export const marks = (n: number) => Array.from({ length: n }, () => '?').join(',');
+export { marks } from './query.ts';

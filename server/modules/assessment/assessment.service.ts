@@ -27,6 +27,7 @@ import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneModel, harvesterModel } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
+import { sql } from '../../sql/query.ts';
 
 const BATCH = 500;
 const DAY_MS = 86_400_000;
@@ -279,7 +280,7 @@ export async function assessSpans(em: EntityManager, spanIds?: readonly string[]
   }
   // Rows of spans that were deleted meanwhile.
   if (!opts.lineId && !opts.shouldStop?.()) {
-    await em.getConnection().execute('delete from `assessments` where `span_id` not in (select `id` from `spans`)');
+    await sql.run(em, 'delete from `assessments` where `span_id` not in (select `id` from `spans`)');
   }
   return assessed;
 }

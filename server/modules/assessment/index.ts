@@ -16,6 +16,7 @@ import { profilesRouter } from './profiles.router.ts';
 import { scoringSettingsRouter } from './settings.router.ts';
 import { spanAssessmentRouter } from './span-assessment.router.ts';
 import { assessmentReady, rescoreSpansNow, startRescore } from './rescore.ts';
+import { sql } from '../../sql/query.ts';
 
 export { assessmentForSpans, assessSpans, defaultPairIds } from './assessment.service.ts';
 export { startRescore } from './rescore.ts';
@@ -29,7 +30,8 @@ async function spansNear(em: EntityManager, polygons: Polygon[]): Promise<string
   const ids = new Set<string>();
   for (const p of polygons) {
     const [x0, y0, x1, y1] = turfBbox(p);
-    const rows = await em.getConnection().execute<{ id: string }[]>(
+    const rows = await sql.all<{ id: string }>(
+      em,
       'select s.id as id from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id ' +
         'where min(a.lon, b.lon) <= ? and max(a.lon, b.lon) >= ? and min(a.lat, b.lat) <= ? and max(a.lat, b.lat) >= ?',
       [x1, x0, y1, y0],
@@ -69,7 +71,8 @@ async function resumePendingRescores(ctx: AppContext) {
 async function rescoreStaleAtStart(ctx: AppContext) {
   await assessmentReady(ctx);
   const em = ctx.orm.em.fork();
-  const [row] = await em.getConnection().execute<{ n: number }[]>(
+  const [row] = await sql.all<{ n: number }>(
+    em,
     'select (select count(*) from spans s where not exists (select 1 from assessments a where a.span_id = s.id)) + ' +
       '(select count(*) from assessments where method_version <> ?) as n',
     [METHOD_VERSION],

@@ -7,6 +7,7 @@ import { Span } from '../inventory/span.entity.ts';
 import { Assessment } from './assessment.entity.ts';
 import { assessSpans } from './assessment.service.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
+import { sql } from '../../sql/query.ts';
 
 /** The gate names a person reads (messages, the review desk); the ampacity flag is listed but never blocks. */
 export const GATE_WORDS: Record<string, string> = {
@@ -77,7 +78,7 @@ export async function perchableSpanIds(em: EntityManager, q: PerchableQuery = {}
   const out: string[] = [];
   const run = async (ids?: readonly string[]) => {
     const idSql = ids ? ` and s.id in (${ids.map(() => '?').join(',')})` : '';
-    const rows = await em.getConnection().execute<{ id: string }[]>(`select s.id as id from spans s where ${where.join(' and ')}${idSql} order by s.id`, [...params, ...(ids ?? [])]);
+    const rows = await sql.all<{ id: string }>(em, `select s.id as id from spans s where ${where.join(' and ')}${idSql} order by s.id`, [...params, ...(ids ?? [])]);
     for (const r of rows) out.push(r.id);
   };
   if (!q.spanIds) await run();

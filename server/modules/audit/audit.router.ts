@@ -7,6 +7,7 @@ import { User } from '../auth/user.entity.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { AuditEntry } from './audit.entity.ts';
 import { SPAN_RELATED_RECORD_TYPES } from './audit.service.ts';
+import { sql } from '../../sql/query.ts';
 
 async function toItems(em: EntityManager, entries: AuditEntry[]): Promise<AuditItem[]> {
   const ids = [...new Set(entries.map((e) => e.actorId).filter((id): id is string => !!id))];
@@ -57,9 +58,7 @@ export function auditRouter(_ctx: AppContext) {
   // What the filters offer: the actions and record types present in the part of the log the role reads.
   r.get('/facets', ['admin', 'safety'], async (req, res) => {
     const seesAll = hasRole(currentUser(req), 'admin');
-    const rows: { action: string; record_type: string }[] = await req.em
-      .getConnection()
-      .execute('select distinct action, record_type from audit_entries order by action');
+    const rows = await sql.all<{ action: string; record_type: string }>(req.em, 'select distinct action, record_type from audit_entries order by action');
     const visible = rows.filter((r) => seesAll || SPAN_RELATED_RECORD_TYPES.includes(r.record_type));
     const actors = await req.em.find(User, {}, { orderBy: { name: 'asc' } });
     res.json({
@@ -73,7 +72,8 @@ export function auditRouter(_ctx: AppContext) {
   r.get('/spans/:id', 'signed-in', async (req, res) => {
     const spanId = req.params.id as string;
     if (!(await req.em.findOne(Span, { id: spanId }, { fields: ['id'] }))) throw AppError.notFound('Span');
-    const rows: { id: number }[] = await req.em.getConnection().execute(
+    const rows = await sql.all<{ id: number }>(
+      req.em,
       `select id from audit_entries
         where (record_type = 'span' and record_id = ?)
            or (record_type in ('hazard', 'photo') and (json_extract("after", '$.spanId') = ? or json_extract("before", '$.spanId') = ?))

@@ -21,6 +21,7 @@ import { HazardKind } from './hazard-kind.entity.ts';
 import { Line } from './line.entity.ts';
 import { Span } from './span.entity.ts';
 import { Structure } from './structure.entity.ts';
+import { marks, sql } from '../../sql/query.ts';
 
 export const newId = () => generateIdFromEntropySize(10);
 
@@ -90,7 +91,7 @@ export async function tableExists(em: EntityManager, name: string): Promise<bool
   let known = tableCache.get(key);
   if (!known) tableCache.set(key, (known = new Map()));
   if (known.get(name)) return true;
-  const rows = await em.getConnection().execute<{ name: string }[]>("select name from sqlite_master where type = 'table' and name = ?", [name]);
+  const rows = await sql.all<{ name: string }>(em, "select name from sqlite_master where type = 'table' and name = ?", [name]);
   const exists = rows.length > 0;
   if (exists) known.set(name, true);
   return exists;
@@ -113,9 +114,7 @@ async function photoIdsFor(em: EntityManager, spanIds: string[]): Promise<Map<st
   const out = new Map<string, string[]>();
   if (!spanIds.length || !(await tableExists(em, 'photos'))) return out;
   for (const chunk of chunks(spanIds, 400)) {
-    const rows = await em
-      .getConnection()
-      .execute<{ id: string; span_id: string }[]>(`select id, span_id from photos where span_id in (${chunk.map(() => '?').join(',')}) order by created_at, id`, chunk);
+    const rows = await sql.all<{ id: string; span_id: string }>(em, `select id, span_id from photos where span_id in (${marks(chunk.length)}) order by created_at, id`, chunk);
     for (const r of rows) {
       const list = out.get(r.span_id) ?? [];
       list.push(r.id);

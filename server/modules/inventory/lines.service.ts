@@ -9,12 +9,12 @@ import { Line } from './line.entity.ts';
 import { Span } from './span.entity.ts';
 import { Structure } from './structure.entity.ts';
 import { StaleVersionError, lineSnapshot, lineView, newId, notifySpanChanged, spanLengthM, spanSnapshot, structureSnapshot, structureView } from './inventory.service.ts';
+import { sql } from '../../sql/query.ts';
 
 export async function lineCounts(em: EntityManager): Promise<Map<string, { structureCount: number; spanCount: number }>> {
-  const conn = em.getConnection();
   const [st, sp] = await Promise.all([
-    conn.execute<{ line_id: string; n: number }[]>('select line_id, count(*) as n from structures group by line_id'),
-    conn.execute<{ line_id: string; n: number }[]>('select line_id, count(*) as n from spans group by line_id'),
+    sql.all<{ line_id: string; n: number }>(em, 'select line_id, count(*) as n from structures group by line_id'),
+    sql.all<{ line_id: string; n: number }>(em, 'select line_id, count(*) as n from spans group by line_id'),
   ]);
   const out = new Map<string, { structureCount: number; spanCount: number }>();
   for (const r of st) out.set(r.line_id, { structureCount: Number(r.n), spanCount: 0 });

@@ -6,6 +6,7 @@ import type { Page, Span as SpanView, SpanListQuery, SpanSortKey } from '#shared
 import { Span } from './span.entity.ts';
 import { perchableSql } from '../assessment/perchable.ts';
 import { defaultAssessmentPair, spanViews } from './inventory.service.ts';
+import { sql as bound } from '../../sql/query.ts';
 
 export interface SpanFilter {
   status?: string[];
@@ -99,11 +100,8 @@ function orderBy(sort: string | undefined, hasAssessment: boolean) {
 
 export async function listSpans(em: EntityManager, f: SpanFilter): Promise<Page<SpanView>> {
   const { sql, params, hasAssessment } = await buildQuery(em, f);
-  const conn = em.getConnection();
-  const [{ n }] = (await conn.execute(`select count(*) as n ${sql}`, params)) as { n: number }[];
-  const rows = (await conn.execute(`select s.id as id ${sql}${orderBy(f.sort, hasAssessment)} limit ? offset ?`, [...params, f.pageSize, (f.page - 1) * f.pageSize])) as {
-    id: string;
-  }[];
+  const [{ n }] = await bound.all<{ n: number }>(em, `select count(*) as n ${sql}`, params);
+  const rows = await bound.all<{ id: string }>(em, `select s.id as id ${sql}${orderBy(f.sort, hasAssessment)} limit ? offset ?`, [...params, f.pageSize, (f.page - 1) * f.pageSize]);
   const ids = rows.map((r) => r.id);
   const spans = ids.length ? await em.find(Span, { id: { $in: ids } }) : [];
   const byId = new Map(spans.map((s) => [s.id, s]));
@@ -118,7 +116,7 @@ export async function listSpans(em: EntityManager, f: SpanFilter): Promise<Page<
 export async function matchingSpanIds(em: EntityManager, f: Omit<SpanFilter, 'page' | 'pageSize'>): Promise<string[]> {
   const { sql, params, hasAssessment } = await buildQuery(em, { ...f, page: 1, pageSize: 1 });
   const sort = f.sort ?? 'line';
-  const rows = (await em.getConnection().execute(`select s.id as id ${sql}${orderBy(sort, hasAssessment)}`, params)) as { id: string }[];
+  const rows = await bound.all<{ id: string }>(em, `select s.id as id ${sql}${orderBy(sort, hasAssessment)}`, params);
   return rows.map((r) => r.id);
 }
 

@@ -3,6 +3,7 @@
 import type { JobView } from '#shared/schemas/assessment.ts';
 import type { AppContext } from '../../context.ts';
 import { jobRunnerFor, type JobWork } from './job-runner.ts';
+import { sql } from '../../sql/query.ts';
 
 export interface PendingRow {
   key: string;
@@ -12,13 +13,10 @@ export interface PendingRow {
   requestedAt: number;
 }
 
-function execute<T>(ctx: AppContext, sql: string, params: unknown[]): Promise<T> {
-  return ctx.orm.em.fork().getConnection().execute(sql, params) as Promise<T>;
-}
 
-export function markPending(ctx: AppContext, key: string, kind: string, payload: unknown, reason: string, at = Date.now()): Promise<void> {
-  return execute(
-    ctx,
+export async function markPending(ctx: AppContext, key: string, kind: string, payload: unknown, reason: string, at = Date.now()): Promise<void> {
+  await sql.run(
+    ctx.orm.em.fork(),
     'insert into pending_work (key, kind, payload, reason, requested_at) values (?, ?, ?, ?, ?) ' +
       'on conflict (key) do update set payload = excluded.payload, reason = excluded.reason, requested_at = excluded.requested_at',
     [key, kind, JSON.stringify(payload ?? null), reason, at],
@@ -26,15 +24,14 @@ export function markPending(ctx: AppContext, key: string, kind: string, payload:
 }
 
 /** Removes the row unless it was requested again after `startedAt` (then the newer request still needs a run). */
-export function clearPending(ctx: AppContext, key: string, startedAt: number): Promise<void> {
-  return execute(ctx, 'delete from pending_work where key = ? and requested_at <= ?', [key, startedAt]);
+export async function clearPending(ctx: AppContext, key: string, startedAt: number): Promise<void> {
+  await sql.run(ctx.orm.em.fork(), 'delete from pending_work where key = ? and requested_at <= ?', [key, startedAt]);
 }
 
 export async function listPending(ctx: AppContext): Promise<PendingRow[]> {
-  const rows = await execute<{ key: string; kind: string; payload: string; reason: string; requested_at: number }[]>(
-    ctx,
+  const rows = await sql.all<{ key: string; kind: string; payload: string; reason: string; requested_at: number }>(
+    ctx.orm.em.fork(),
     'select key, kind, payload, reason, requested_at from pending_work order by requested_at, key',
-    [],
   );
   return rows.map((r) => ({ key: r.key, kind: r.kind, payload: JSON.parse(r.payload), reason: r.reason, requestedAt: Number(r.requested_at) }));
 }

@@ -5,6 +5,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import type { MikroORM } from '@mikro-orm/sqlite';
 import vtpbf from 'vt-pbf';
 import { defaultAssessmentPair, tableExists } from '../inventory/inventory.service.ts';
+import { marks, sql } from '../../sql/query.ts';
 
 export const TILE_EXTENT = 4096;
 /** Tile buffer in tile units (as in the basemap): features this close outside the tile are included. */
@@ -129,9 +130,8 @@ export class SpanTileService {
   /** Reads the database's data fingerprint (counts and latest change times of spans, structures, assessments). */
   private async readFingerprint(em: EntityManager): Promise<Fingerprint> {
     const hasAssessments = await tableExists(em, 'assessments');
-    const [row] = await em
-      .getConnection()
-      .execute<any[]>(
+    const [row] = await sql.all<any>(
+        em,
         'select (select count(*) from spans) as sc, (select max(updated_at) from spans) as su, (select count(*) from structures) as tc, (select max(updated_at) from structures) as tu' +
           (hasAssessments ? ', (select count(*) from assessments) as ac, (select max(computed_at) from assessments) as au' : ''),
       );
@@ -171,15 +171,14 @@ export class SpanTileService {
   private async patch(em: EntityManager, snap: Snapshot, next: Fingerprint): Promise<boolean> {
     const old = snap.fp;
     if (next.sc < old.sc || next.tc < old.tc || next.ac < old.ac) return false;
-    const conn = em.getConnection();
     const spanIds = new Set<string>();
     // Rows changed after the snapshot's latest change time, plus those stamped with exactly that time (a write in
     // the same millisecond as the reading) unless a bulk write stamped very many rows with it: those were read.
     const since = async (table: string, column: string, value: unknown, columns: string): Promise<any[]> => {
-      if (value === null) return conn.execute<any[]>(`select ${columns} from ${table}`);
-      const later = await conn.execute<any[]>(`select ${columns} from ${table} where ${column} > ?`, [value]);
-      const [{ n }] = await conn.execute<{ n: number }[]>(`select count(*) as n from ${table} where ${column} = ?`, [value]);
-      if (Number(n) <= 1000) later.push(...(await conn.execute<any[]>(`select ${columns} from ${table} where ${column} = ?`, [value])));
+      if (value === null) return sql.all<any>(em, `select ${columns} from ${table}`);
+      const later = await sql.all<any>(em, `select ${columns} from ${table} where ${column} > ?`, [value]);
+      const [{ n }] = await sql.all<{ n: number }>(em, `select count(*) as n from ${table} where ${column} = ?`, [value]);
+      if (Number(n) <= 1000) later.push(...(await sql.all<any>(em, `select ${columns} from ${table} where ${column} = ?`, [value])));
       return later;
     };
     if (old.su !== next.su || old.sc !== next.sc) for (const r of await since('spans', 'updated_at', old.su, 'id')) spanIds.add(r.id);
@@ -187,8 +186,8 @@ export class SpanTileService {
     const movedIds = structures.map((t) => t.id as string);
     for (let i = 0; i < movedIds.length; i += 400) {
       const chunk = movedIds.slice(i, i + 400);
-      const marks = chunk.map(() => '?').join(',');
-      for (const r of await conn.execute<any[]>(`select id from spans where from_structure_id in (${marks}) or to_structure_id in (${marks})`, [...chunk, ...chunk])) spanIds.add(r.id);
+      const list = marks(chunk.length);
+      for (const r of await sql.all<any>(em, `select id from spans where from_structure_id in (${list}) or to_structure_id in (${list})`, [...chunk, ...chunk])) spanIds.add(r.id);
     }
     if ((old.ac !== next.ac || old.au !== next.au) && (await tableExists(em, 'assessments'))) {
       for (const r of await since('assessments', 'computed_at', old.au, 'span_id')) spanIds.add(r.span_id);
@@ -210,12 +209,13 @@ export class SpanTileService {
     const withAssessment = pair && (await tableExists(em, 'assessments'));
     const params: unknown[] = withAssessment ? [pair!.harvesterProfileId, pair!.droneProfileId] : [];
     if (ids) params.push(...ids);
-    return em.getConnection().execute<any[]>(
+    return sql.all<any>(
+      em,
       'select s.id, s.line_id, s.status, s.length_m, a.lon as lon0, a.lat as lat0, b.lon as lon1, b.lat as lat1' +
         (withAssessment ? ', x.score, x.harvest_w, x.perchable' : '') +
         ' from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id' +
         (withAssessment ? ' left join assessments x on x.span_id = s.id and x.harvester_profile_id = ? and x.drone_profile_id = ?' : '') +
-        (ids ? ` where s.id in (${ids.map(() => '?').join(',')})` : ''),
+        (ids ? ` where s.id in (${marks(ids.length)})` : ''),
       params,
     );
   }
@@ -265,7 +265,7 @@ export class SpanTileService {
     const fp = await this.readFingerprint(em);
     this.ensureWatcher();
     const rows = await this.spanRows(em, pair);
-    const structures = await em.getConnection().execute<any[]>('select id, line_id, lon, lat, kind, label from structures');
+    const structures = await sql.all<any>(em, 'select id, line_id, lon, lat, kind, label from structures');
     const snap: Snapshot = {
       n: 0,
       ids: [],
