@@ -12,7 +12,7 @@ import { testConfig } from '../server/env.ts';
 import { seedDemoUsers, DEMO_PASSWORD } from '../server/seeders/demo-users.ts';
 import { seedScaleInventory } from '../server/seeders/scale-inventory.ts';
 import { ensureAssessmentDefaults } from '../server/modules/assessment/profiles.service.ts';
-import { assessSpans } from '../server/modules/assessment/assessment.service.ts';
+import { assessSpans, assessSpansBulk } from '../server/modules/assessment/assessment.service.ts';
 import { SpanTileService } from '../server/modules/map/span-tiles.ts';
 import { User } from '../server/modules/auth/user.entity.ts';
 import { assessSpan, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS } from '../shared/engineering/assessment.ts';
@@ -98,12 +98,20 @@ async function measure(spans: number): Promise<Record<string, string>> {
     const seeded = await seedScaleInventory(orm.em.fork(), { spans, surveyorIds: [surveyor.id] });
     out.seed = `${f1((performance.now() - t) / 1000)} s (${seeded.lines} lines, ${seeded.hazards} hazards)`;
 
-    // Rescoring all spans × active pairs (current path) beside the pure function in one process.
+    // Rescoring all spans × active pairs after a settings change: the bulk path (the background job's), beside the
+    // per-span path on a sample of 2 000 spans and the pure function in one process.
+    const conn0 = orm.em.fork().getConnection();
+    const sample = (await conn0.execute<{ id: string }[]>('select id from spans order by id limit 2000')).map((r) => r.id);
     t = performance.now();
-    const assessed = await assessSpans(orm.em.fork(), undefined, { clearBetweenBatches: true });
-    const [{ pairs }] = await orm.em.fork().getConnection().execute<{ pairs: number }[]>('select count(*) as pairs from assessments');
+    await assessSpans(orm.em.fork(), sample);
+    const plainS = (performance.now() - t) / 1000;
+    const [{ n: samplePairs }] = await conn0.execute<{ n: number }[]>('select count(*) as n from assessments');
+    t = performance.now();
+    const assessed = await assessSpansBulk(orm.em.fork(), undefined, { clearBetweenBatches: true });
     const rescoreS = (performance.now() - t) / 1000;
-    out.rescore = `${f1(Number(pairs) / rescoreS)} span·pairs/s (${assessed} spans, ${f1(rescoreS)} s)`;
+    const [{ pairs }] = await conn0.execute<{ pairs: number }[]>('select count(*) as pairs from assessments');
+    out.rescore = `${f1(Number(pairs) / rescoreS)} span·pairs/s bulk (${assessed} spans × ${Math.round(Number(pairs) / assessed)} pairs, ${f1(rescoreS)} s)`;
+    out['rescore before'] = `${f1(Number(samplePairs) / plainS)} span·pairs/s per-span path (2 000-span sample)`;
     out['rescore baseline'] = `${f1(pureRate(20_000))} span·pairs/s pure`;
 
     // List API: filtered, sorted, page of 50, 10 concurrent clients, beside the bare prepared query.

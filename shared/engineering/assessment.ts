@@ -158,6 +158,37 @@ export function gripperRange(h: Pick<HarvesterProfile, 'gripperMinDiameterMm' | 
   return [{ quantity: 'diameter', si: h.gripperMinDiameterMm, digits: 1, bare: true }, '–', part('diameter', h.gripperMaxDiameterMm)];
 }
 
+/**
+ * Reuse of the costly sub-results across many spans (a full rescore): the IEEE 738 ampacity and conductor
+ * temperature per (conductor, weather, current or limit), and the harvester's output per (harvester, current,
+ * frequency). The same pure functions run on the same arguments, so the results are identical; only repeats are
+ * skipped. Harvester objects are keyed by identity: pass the same object for the whole run and do not change it.
+ */
+export interface AssessmentMemo {
+  thermal: Map<string, number>;
+  harvest: WeakMap<object, Map<string, number>>;
+  weatherKeys: WeakMap<object, string>;
+}
+
+export function createAssessmentMemo(): AssessmentMemo {
+  return { thermal: new Map(), harvest: new WeakMap(), weatherKeys: new WeakMap() };
+}
+
+/** Entries kept per table before it starts again (bounds memory on networks with very many distinct loads). */
+const MEMO_LIMIT = 250_000;
+
+function memoised<K>(map: Map<K, number>, key: K, compute: () => number): number {
+  const hit = map.get(key);
+  if (hit !== undefined) return hit;
+  const v = compute();
+  if (map.size >= MEMO_LIMIT) map.clear();
+  map.set(key, v);
+  return v;
+}
+
+const weatherKeyOf = (w: ThermalWeather) =>
+  `${w.ambientC}|${w.windSpeedMps}|${w.windAngleDeg}|${w.elevationM}|${w.latitudeDeg}|${w.lineAzimuthDeg}|${w.dayOfYear}|${w.solarHour}|${w.atmosphere}`;
+
 const clamp01 = (x: number) => (Number.isFinite(x) ? Math.min(1, Math.max(0, x)) : 0);
 
 // Perch assessment: IEEE Std 738-2012 thermal checks, CT harvester model, NESC Table 232-1 and OSHA 29 CFR 1910.333(c)(3) distances.
@@ -167,8 +198,19 @@ export function assessSpan(
   drone: DroneProfile,
   designWeather: ThermalWeather = DEFAULT_DESIGN_WEATHER,
   settings: ScoringSettings = DEFAULT_SCORING_SETTINGS,
+  memo?: AssessmentMemo,
 ): SpanAssessment {
   const weather: ThermalWeather = { ...designWeather, ...span.weather };
+  let thermalKey = '';
+  if (memo) {
+    let wk = span.weather ? undefined : memo.weatherKeys.get(designWeather);
+    if (wk === undefined) {
+      wk = weatherKeyOf(weather);
+      if (!span.weather) memo.weatherKeys.set(designWeather, wk);
+    }
+    const c = span.conductor;
+    thermalKey = `${wk}|${c.diameterMm}|${c.resistanceLowOhmPerM}|${c.tempLowC}|${c.resistanceHighOhmPerM}|${c.tempHighC}|${c.emissivity ?? DEFAULT_EMISSIVITY}|${c.absorptivity ?? DEFAULT_ABSORPTIVITY}`;
+  }
   const thermalConductor = {
     diameterMm: span.conductor.diameterMm,
     resistanceLowOhmPerM: span.conductor.resistanceLowOhmPerM,
@@ -180,8 +222,14 @@ export function assessSpan(
   };
   const bundle = Math.max(1, Math.floor(span.conductor.subConductors ?? 1));
   // The core closes around one sub-conductor, which carries I/n of the phase current.
-  const harvestAt = (phaseA: number) =>
+  const harvestOf = (phaseA: number) =>
     harvest({ currentA: phaseA / bundle, frequencyHz: span.frequencyHz, harvester }).powerW * harvester.converterEfficiency;
+  let harvestMemo: Map<string, number> | undefined;
+  if (memo) {
+    harvestMemo = memo.harvest.get(harvester);
+    if (!harvestMemo) memo.harvest.set(harvester, (harvestMemo = new Map()));
+  }
+  const harvestAt = (phaseA: number) => (harvestMemo ? memoised(harvestMemo, `${phaseA}|${bundle}|${span.frequencyHz}`, () => harvestOf(phaseA)) : harvestOf(phaseA));
 
   const harvestW = harvestAt(span.loadCurrentA.typical);
   const harvestMinW = harvestAt(span.loadCurrentA.min);
@@ -193,8 +241,10 @@ export function assessSpan(
     converterEfficiency: 1, // harvestW is already the converter's output
     batteryEfficiency: settings.batteryEfficiency,
   });
-  const conductorTempC = ieeeConductorTempC(thermalConductor, weather, span.loadCurrentA.peak / bundle);
-  const ampacityA = ieeeAmpacityA(thermalConductor, weather, settings.ampacityMaxConductorC) * bundle;
+  const tempOf = () => ieeeConductorTempC(thermalConductor, weather, span.loadCurrentA.peak / bundle);
+  const ratingOf = () => ieeeAmpacityA(thermalConductor, weather, settings.ampacityMaxConductorC);
+  const conductorTempC = memo ? memoised(memo.thermal, `${thermalKey}|t|${span.loadCurrentA.peak / bundle}`, tempOf) : tempOf();
+  const ampacityA = (memo ? memoised(memo.thermal, `${thermalKey}|a|${settings.ampacityMaxConductorC}`, ratingOf) : ratingOf()) * bundle;
   const codeClearanceM = codeGroundClearanceM(span.voltageKv);
   const approachDistanceM = oshaApproachDistanceM(span.voltageKv);
   const requiredClearanceM = Math.max(codeClearanceM, drone.approachClearanceM);

@@ -8,7 +8,9 @@ import {
   DEFAULT_DESIGN_WEATHER,
   detailText,
   gripperRange,
+  createAssessmentMemo,
   METHOD_VERSION,
+  type AssessmentMemo,
   type ScoringSettings,
   type SpanAssessment,
   type SpanAssessmentInput,
@@ -26,6 +28,7 @@ import { Assessment } from './assessment.entity.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneModel, harvesterModel } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
+import { replaceAssessmentRows, deleteOrphanAssessments } from '../../sql/assessments.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
 import { sql } from '../../sql/query.ts';
 
@@ -127,6 +130,11 @@ export function spanInputOf(rec: SpanRecords, now: Date = new Date()): { input: 
 export function assessRecords(rec: SpanRecords, harvester: HarvesterProfile, drone: DroneProfile, settings: ScoringSettings, now = new Date()) {
   const built = spanInputOf(rec, now);
   const result: SpanAssessment = assessSpanPure(built.input, harvesterModel(harvester), droneModel(drone), DEFAULT_DESIGN_WEATHER, settings);
+  return { ...built, result: withRecordRules(rec, harvester, result) };
+}
+
+/** What only the records know, applied to the method's result: a diameter never surveyed cannot fit a gripper. */
+function withRecordRules(rec: SpanRecords, harvester: HarvesterProfile, result: SpanAssessment): SpanAssessment {
   if (rec.span.conductorDiameterMm === null) {
     const gate = result.gates.find((g) => g.id === 'gripper-fit');
     if (gate) {
@@ -136,7 +144,7 @@ export function assessRecords(rec: SpanRecords, harvester: HarvesterProfile, dro
     }
     result.perchable = result.gates.every((g) => g.passed || !g.blocking);
   }
-  return { ...built, result };
+  return result;
 }
 
 /** Zones are read once per batch run; a span is in a zone when the polygon touches its line (zones module rule). */
@@ -182,6 +190,72 @@ async function recordsFor(em: EntityManager, spans: Span[], lineCache: Map<strin
   return out;
 }
 
+/** Models of the active pairs, built once per run (the memo keys harvesters by object identity). */
+interface PairModels {
+  harvester: HarvesterProfile;
+  drone: DroneProfile;
+  harvesterModel: HarvesterModel;
+  droneModel: ReturnType<typeof droneModel>;
+}
+
+function pairModelsOf(harvesters: HarvesterProfile[], drones: DroneProfile[]): PairModels[] {
+  const out: PairModels[] = [];
+  for (const h of harvesters) {
+    const hm = harvesterModel(h);
+    for (const d of drones) out.push({ harvester: h, drone: d, harvesterModel: hm, droneModel: droneModel(d) });
+  }
+  return out;
+}
+
+/** The stored rows of a batch of spans: one per span and active pair, harvester-major (the per-span path's order). */
+function assessmentRows(
+  records: SpanRecords[],
+  harvesters: HarvesterProfile[],
+  drones: DroneProfile[],
+  settings: ScoringSettings,
+  settingsVersion: number,
+  now: Date,
+  fast?: { pairs: PairModels[]; memo: AssessmentMemo },
+): Partial<Assessment>[] {
+  const rows: Partial<Assessment>[] = [];
+  const pairs = fast?.pairs ?? pairModelsOf(harvesters, drones);
+  for (const rec of records) {
+    // The inputs are the same for every pair of a span; the per-span path builds them once per pair.
+    const built = fast ? spanInputOf(rec, now) : undefined;
+    for (const p of pairs) {
+      const { input, result, conductorSource, loadSource } = fast
+        ? assessBuilt(rec, built!, p, settings, fast.memo)
+        : assessRecords(rec, p.harvester, p.drone, settings, now);
+      const chargeTimeMin = Number.isFinite(result.chargeTimeMin) ? result.chargeTimeMin : null;
+      rows.push({
+        spanId: rec.span.id,
+        harvesterProfileId: p.harvester.id,
+        droneProfileId: p.drone.id,
+        perchable: result.perchable,
+        score: result.score,
+        harvestW: result.harvestW,
+        chargeTimeMin,
+        conductorTempC: result.conductorTempC,
+        ampacityA: result.ampacityA,
+        result: { ...result, chargeTimeMin },
+        inputs: { span: input, designWeather: DEFAULT_DESIGN_WEATHER, conductorSource, loadSource, zoneIds: rec.zones.zoneIds, spanVersion: rec.span.version, lineVersion: rec.line.version },
+        methodVersion: METHOD_VERSION,
+        settingsVersion,
+        harvesterVersion: p.harvester.version,
+        droneVersion: p.drone.version,
+        computedAt: now,
+      });
+    }
+  }
+  return rows;
+}
+
+/** assessRecords with the inputs built once and the memo (the fast path); same result. */
+function assessBuilt(rec: SpanRecords, built: ReturnType<typeof spanInputOf>, p: PairModels, settings: ScoringSettings, memo: AssessmentMemo) {
+  const result: SpanAssessment = assessSpanPure(built.input, p.harvesterModel, p.droneModel, DEFAULT_DESIGN_WEATHER, settings, memo);
+  return { ...built, result: withRecordRules(rec, p.harvester, result) };
+}
+
 export interface AssessOptions {
   /** Progress of a background job: called with the number of spans done in each batch. */
   onBatch?: (doneInBatch: number) => void;
@@ -214,33 +288,7 @@ export async function assessSpans(em: EntityManager, spanIds?: readonly string[]
 
   const runBatch = async (spans: Span[]) => {
     const records = await recordsFor(em, spans, lineCache, zonesOf);
-    const rows: Partial<Assessment>[] = [];
-    for (const rec of records) {
-      for (const h of harvesters) {
-        for (const d of drones) {
-          const { input, result, conductorSource, loadSource } = assessRecords(rec, h, d, settings, now);
-          const chargeTimeMin = Number.isFinite(result.chargeTimeMin) ? result.chargeTimeMin : null;
-          rows.push({
-            spanId: rec.span.id,
-            harvesterProfileId: h.id,
-            droneProfileId: d.id,
-            perchable: result.perchable,
-            score: result.score,
-            harvestW: result.harvestW,
-            chargeTimeMin,
-            conductorTempC: result.conductorTempC,
-            ampacityA: result.ampacityA,
-            result: { ...result, chargeTimeMin },
-            inputs: { span: input, designWeather: DEFAULT_DESIGN_WEATHER, conductorSource, loadSource, zoneIds: rec.zones.zoneIds, spanVersion: rec.span.version, lineVersion: rec.line.version },
-            methodVersion: METHOD_VERSION,
-            settingsVersion,
-            harvesterVersion: h.version,
-            droneVersion: d.version,
-            computedAt: now,
-          });
-        }
-      }
-    }
+    const rows = assessmentRows(records, harvesters, drones, settings, settingsVersion, now);
     const ids = spans.map((s) => s.id);
     await em.transactional(async (tx) => {
       await tx.nativeDelete(Assessment, { spanId: { $in: ids } });
@@ -282,6 +330,59 @@ export async function assessSpans(em: EntityManager, spanIds?: readonly string[]
   if (!opts.lineId && !opts.shouldStop?.()) {
     await sql.run(em, 'delete from `assessments` where `span_id` not in (select `id` from `spans`)');
   }
+  return assessed;
+}
+
+/** Spans per transaction on the bulk path: large enough to amortise a commit, short enough for reads to go between. */
+const BULK_BATCH = 2000;
+
+/**
+ * The bulk path of assessSpans for background rescoring: the same rows, computed with the pure method's memo (each
+ * distinct conductor × current × profile × settings case once) and written with prepared multi-row statements, one
+ * transaction per batch of spans. Reads go between batches. Returns the number of spans assessed.
+ */
+export async function assessSpansBulk(em: EntityManager, spanIds?: readonly string[], opts: AssessOptions & { lineId?: string } = {}): Promise<number> {
+  const now = opts.now ?? new Date();
+  const [harvesters, drones, { version: settingsVersion, settings }, zones] = await Promise.all([
+    activeHarvesters(em),
+    activeDrones(em),
+    currentSettings(em),
+    em.find(Zone, {}),
+  ]);
+  const zonesOf = zoneIndex(zones, now);
+  const lineCache = new Map<string, Line>();
+  const fast = { pairs: pairModelsOf(harvesters, drones), memo: createAssessmentMemo() };
+  let assessed = 0;
+
+  const runBatch = async (spans: Span[], ids: readonly string[]) => {
+    const records = await recordsFor(em, spans, lineCache, zonesOf);
+    const rows = assessmentRows(records, harvesters, drones, settings, settingsVersion, now, fast);
+    // Spans asked for that no longer exist lose their rows in the same transaction.
+    await replaceAssessmentRows(em, ids, rows);
+    assessed += records.length;
+    opts.onBatch?.(spans.length);
+    if (opts.clearBetweenBatches) em.clear();
+    await new Promise((r) => setImmediate(r));
+  };
+
+  if (spanIds) {
+    for (let i = 0; i < spanIds.length; i += BULK_BATCH) {
+      if (opts.shouldStop?.()) break;
+      const ids = spanIds.slice(i, i + BULK_BATCH);
+      await runBatch(await em.find(Span, { id: { $in: ids } }), ids);
+    }
+    return assessed;
+  }
+  let after = '';
+  for (;;) {
+    if (opts.shouldStop?.()) break;
+    const where = opts.lineId ? { lineId: opts.lineId, id: { $gt: after } } : { id: { $gt: after } };
+    const spans = await em.find(Span, where, { orderBy: { id: 'asc' }, limit: BULK_BATCH });
+    if (spans.length === 0) break;
+    after = spans[spans.length - 1].id;
+    await runBatch(spans, spans.map((s) => s.id));
+  }
+  if (!opts.lineId && !opts.shouldStop?.()) await deleteOrphanAssessments(em);
   return assessed;
 }
 

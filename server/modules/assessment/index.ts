@@ -11,14 +11,14 @@ import { calcRouter } from '../calc/calc.router.ts';
 import { jobsRouter } from '../jobs/jobs.router.ts';
 import { enqueueDurable, listPending } from '../jobs/pending-work.ts';
 import { METHOD_VERSION } from '#shared/engineering/assessment.ts';
-import { assessSpans } from './assessment.service.ts';
+import { assessSpansBulk } from './assessment.service.ts';
 import { profilesRouter } from './profiles.router.ts';
 import { scoringSettingsRouter } from './settings.router.ts';
 import { spanAssessmentRouter } from './span-assessment.router.ts';
 import { assessmentReady, rescoreSpansNow, startRescore } from './rescore.ts';
 import { sql } from '../../sql/query.ts';
 
-export { assessmentForSpans, assessSpans, defaultPairIds } from './assessment.service.ts';
+export { assessmentForSpans, assessSpans, assessSpansBulk, defaultPairIds } from './assessment.service.ts';
 export { startRescore } from './rescore.ts';
 export { perchableSpanIds, perchableSql, perchStandings, freshPerchStanding, refusalOf, gateWord, type PerchStanding, type PerchableQuery } from './perchable.ts';
 
@@ -52,7 +52,7 @@ function startRescoreOf(ctx: AppContext, reason: string, spanIds: string[], key 
       await assessmentReady(ctx);
       const em = ctx.orm.em.fork();
       progress.setTotal(spanIds.length);
-      await assessSpans(em, spanIds, { onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
+      await assessSpansBulk(em, spanIds, { onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
     },
   });
 }

@@ -5,7 +5,7 @@ import type { RequestHandler } from 'express';
 import type { JobView } from '#shared/schemas/assessment.ts';
 import type { AppContext } from '../../context.ts';
 import { enqueueDurable } from '../jobs/pending-work.ts';
-import { assessSpans, countSpans } from './assessment.service.ts';
+import { assessSpans, assessSpansBulk, countSpans } from './assessment.service.ts';
 import { ensureAssessmentDefaults } from './profiles.service.ts';
 
 const ready = new WeakMap<AppContext, Promise<void>>();
@@ -48,7 +48,7 @@ export function startRescore(ctx: AppContext, reason: string, scope: { lineId?: 
       await assessmentReady(ctx);
       const em = ctx.orm.em.fork();
       progress.setTotal(await countSpans(em, scope));
-      await assessSpans(em, undefined, {
+      await assessSpansBulk(em, undefined, {
         lineId: scope.lineId,
         clearBetweenBatches: true,
         onBatch: (n) => progress.advance(n),

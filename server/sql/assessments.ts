@@ -1,0 +1,73 @@
+// Stored assessments written in bulk (the background rescoring path). The column list and the value encoding
+// (booleans as 0/1, dates as epoch milliseconds, JSON as text — what the ORM stores on SQLite) live here, so another
+// database implements these two functions with its own encoding.
+import type { EntityManager } from '@mikro-orm/core';
+import type { Assessment } from '../modules/assessment/assessment.entity.ts';
+import { inTransaction, marks, rowsPerStatement } from './bulk.ts';
+import { changeCounter, noteAssessmentOnlyChanges } from './data-version.ts';
+
+const COLUMNS: [string, keyof Assessment][] = [
+  ['span_id', 'spanId'],
+  ['harvester_profile_id', 'harvesterProfileId'],
+  ['drone_profile_id', 'droneProfileId'],
+  ['perchable', 'perchable'],
+  ['score', 'score'],
+  ['harvest_w', 'harvestW'],
+  ['charge_time_min', 'chargeTimeMin'],
+  ['conductor_temp_c', 'conductorTempC'],
+  ['ampacity_a', 'ampacityA'],
+  ['result', 'result'],
+  ['inputs', 'inputs'],
+  ['method_version', 'methodVersion'],
+  ['settings_version', 'settingsVersion'],
+  ['harvester_version', 'harvesterVersion'],
+  ['drone_version', 'droneVersion'],
+  ['computed_at', 'computedAt'],
+];
+
+function encode(v: unknown): unknown {
+  if (v === undefined || v === null) return null;
+  if (typeof v === 'boolean') return v ? 1 : 0;
+  if (v instanceof Date) return v.getTime();
+  if (typeof v === 'object') return JSON.stringify(v);
+  return v;
+}
+
+const DELETE_CHUNK = 900;
+
+/**
+ * Replaces the stored rows of the given spans with `rows` in one transaction: the spans' old rows are deleted
+ * (spans asked for but absent from `rows` are left without any), then the rows are inserted with multi-row
+ * prepared statements.
+ */
+export async function replaceAssessmentRows(em: EntityManager, spanIds: readonly string[], rows: readonly Partial<Assessment>[]): Promise<void> {
+  const per = rowsPerStatement(COLUMNS.length);
+  const insertOf = (n: number) =>
+    `insert into \`assessments\` (${COLUMNS.map(([c]) => `\`${c}\``).join(',')}) values ${Array.from({ length: n }, () => `(${marks(COLUMNS.length)})`).join(',')}`;
+  const full = insertOf(per);
+  await inTransaction(em, async (run) => {
+    // The transaction holds the connection, so the counter moves only by this writer's rows.
+    const before = await changeCounter(run);
+    for (let i = 0; i < spanIds.length; i += DELETE_CHUNK) {
+      const ids = spanIds.slice(i, i + DELETE_CHUNK);
+      await run(`delete from \`assessments\` where \`span_id\` in (${marks(ids.length)})`, ids as unknown[]);
+    }
+    for (let i = 0; i < rows.length; i += per) {
+      const chunk = rows.slice(i, i + per);
+      const params: unknown[] = new Array(chunk.length * COLUMNS.length);
+      let k = 0;
+      for (const r of chunk) for (const [, prop] of COLUMNS) params[k++] = encode(r[prop]);
+      await run(chunk.length === per ? full : insertOf(chunk.length), params);
+    }
+    noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
+  });
+}
+
+/** Rows of spans that were deleted meanwhile. */
+export async function deleteOrphanAssessments(em: EntityManager): Promise<void> {
+  await inTransaction(em, async (run) => {
+    const before = await changeCounter(run);
+    await run('delete from `assessments` where `span_id` not in (select `id` from `spans`)', []);
+    noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
+  });
+}

@@ -1,0 +1,42 @@
+// A cheap data version of the database, for caches that must never serve a figure older than the data (list
+// totals, tiles). SQLite: total_changes() counts every row this connection inserted, updated or deleted (the server
+// holds one connection), and PRAGMA data_version changes when another connection commits. Both are O(1).
+// Another database implements these functions its own way (e.g. a counter bumped by statement-level triggers).
+import type { EntityManager } from '@mikro-orm/core';
+
+interface VersionState {
+  /** Rows changed by writers that touch only stored assessments (the bulk rescorer): the inventory's version skips them. */
+  assessmentOnly: number;
+}
+
+const states = new WeakMap<object, VersionState>();
+
+function stateOf(em: EntityManager): VersionState {
+  const key = em.getConnection();
+  let s = states.get(key);
+  if (!s) states.set(key, (s = { assessmentOnly: 0 }));
+  return s;
+}
+
+export type VersionScope = 'all' | 'inventory';
+
+/**
+ * The current data version as a string. `all`: any change anywhere. `inventory`: any change except those of
+ * assessment-only writers (so totals that do not depend on assessments stay cached during a full rescore).
+ */
+export async function dataVersion(em: EntityManager, scope: VersionScope = 'all'): Promise<string> {
+  const [row] = await em.getConnection().execute<{ c: number; d: number }[]>('select total_changes() as c, (select data_version from pragma_data_version) as d');
+  const changes = Number(row.c) - (scope === 'inventory' ? stateOf(em).assessmentOnly : 0);
+  return `${row.d}:${changes}`;
+}
+
+/** The connection's change counter, read inside a transaction by a writer that counts its own changes. */
+export async function changeCounter(run: (sql: string, params: unknown[]) => Promise<unknown>): Promise<number> {
+  const rows = (await run('select total_changes() as c', [])) as { c: number }[];
+  return Number(rows[0].c);
+}
+
+/** Records rows changed by an assessment-only writer (measured inside its own transaction). */
+export function noteAssessmentOnlyChanges(em: EntityManager, rows: number) {
+  stateOf(em).assessmentOnly += rows;
+}

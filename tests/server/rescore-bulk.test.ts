@@ -1,0 +1,99 @@
+// The bulk rescoring path (memoised method, prepared multi-row writes) against the per-span path on the same data:
+// the stored assessments must be identical, row for row and byte for byte.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { MikroORM } from '@mikro-orm/sqlite';
+import { initORM } from '../../server/db.ts';
+import { seedDemoUsers } from '../../server/seeders/demo-users.ts';
+import { seedScaleInventory } from '../../server/seeders/scale-inventory.ts';
+import { ensureAssessmentDefaults } from '../../server/modules/assessment/profiles.service.ts';
+import { assessSpans, assessSpansBulk } from '../../server/modules/assessment/assessment.service.ts';
+import { Zone } from '../../server/modules/zones/zone.entity.ts';
+import { User } from '../../server/modules/auth/user.entity.ts';
+import { assessSpan, createAssessmentMemo, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS, type SpanAssessmentInput } from '../../shared/engineering/assessment.ts';
+import { ACSR_CONDUCTORS, thermalConductorOf } from '../../shared/engineering/conductors.ts';
+import { KESTREL_CORE, SWIFT_QUAD } from '../../shared/engineering/demo-profiles.ts';
+
+const NOW = new Date('2026-07-01T12:00:00Z');
+let orm: MikroORM;
+
+/** Every stored column but the row id, in a fixed order. */
+async function stored(): Promise<Record<string, unknown>[]> {
+  const rows = await orm.em.fork().getConnection().execute<Record<string, unknown>[]>('select * from assessments order by span_id, harvester_profile_id, drone_profile_id');
+  return rows.map(({ id: _id, ...rest }) => rest);
+}
+
+beforeAll(async () => {
+  orm = await initORM(':memory:');
+  const em = orm.em.fork();
+  await seedDemoUsers(em);
+  await ensureAssessmentDefaults(em);
+  const surveyor = await em.findOneOrFail(User, { email: 'surveyor@roostline.test' });
+  const { bbox } = await seedScaleInventory(orm.em.fork(), { spans: 1200, seed: 7, surveyorIds: [surveyor.id] });
+  // One exclude and one caution zone over parts of the network, so zone gates and penalties are exercised.
+  const box = (x0: number, y0: number, x1: number, y1: number) => ({ type: 'Polygon' as const, coordinates: [[[x0, y0], [x1, y0], [x1, y1], [x0, y1], [x0, y0]]] });
+  const midX = (bbox.west + bbox.east) / 2;
+  const midY = (bbox.south + bbox.north) / 2;
+  em.create(Zone, { id: 'z-exclude', name: 'Substation yard', reason: 'fenced yard', severity: 'exclude', geometry: box(bbox.west, bbox.south, midX, midY), createdById: surveyor.id, version: 1, createdAt: NOW, updatedAt: NOW });
+  em.create(Zone, { id: 'z-caution', name: 'School grounds', reason: 'people below', severity: 'caution', geometry: box(midX - 0.05, midY - 0.05, bbox.east, bbox.north), createdById: surveyor.id, version: 1, createdAt: NOW, updatedAt: NOW });
+  await em.flush();
+});
+afterAll(async () => orm?.close());
+
+describe('bulk rescoring', () => {
+  it('when every span is rescored on the bulk path, then the stored rows equal the per-span path exactly', async () => {
+    await assessSpans(orm.em.fork(), undefined, { now: NOW, clearBetweenBatches: true });
+    const plain = await stored();
+    expect(plain.length).toBeGreaterThan(1200); // every span × every active pair
+    expect(new Set(plain.map((r) => r.perchable)).size).toBe(2); // both outcomes present in the sample
+    await orm.em.fork().getConnection().execute('delete from assessments');
+    let progressed = 0;
+    const n = await assessSpansBulk(orm.em.fork(), undefined, { now: NOW, clearBetweenBatches: true, onBatch: (k) => (progressed += k) });
+    expect(n).toBe(1200);
+    expect(progressed).toBe(1200); // the job's progress bar reaches its total
+    const fast = await stored();
+    expect(fast).toEqual(plain);
+    expect(JSON.stringify(fast)).toBe(JSON.stringify(plain));
+  });
+
+  it('when a random sample of spans (and one that no longer exists) is rescored on both paths, then they agree and the missing span has no rows', async () => {
+    const ids = (await orm.em.fork().getConnection().execute<{ id: string }[]>('select id from spans order by random() limit 150')).map((r) => r.id);
+    const asked = [...ids, 'sp-gone'];
+    await orm.em.fork().getConnection().execute("insert into assessments (span_id, harvester_profile_id, drone_profile_id, perchable, score, harvest_w, conductor_temp_c, ampacity_a, result, inputs, method_version, settings_version, harvester_version, drone_version, computed_at) values ('sp-gone', 'h', 'd', 0, 0, 0, 0, 0, '{}', '{}', 'm', 1, 1, 1, 0)");
+    const later = new Date(NOW.getTime() + 86_400_000);
+    await assessSpans(orm.em.fork(), asked, { now: later });
+    const plain = await stored();
+    await assessSpansBulk(orm.em.fork(), asked, { now: new Date(NOW.getTime() - 1) });
+    await assessSpansBulk(orm.em.fork(), asked, { now: later });
+    expect(await stored()).toEqual(plain);
+    expect(plain.some((r) => r.span_id === 'sp-gone')).toBe(false);
+  });
+});
+
+describe('assessment memo', () => {
+  it('when 3 000 random spans are assessed with and without the memo, then every result is identical', () => {
+    let seed = 3;
+    const rand = () => ((seed = (seed * 16807) % 2147483647) / 2147483647);
+    const memo = createAssessmentMemo();
+    for (let i = 0; i < 3000; i++) {
+      const c = thermalConductorOf(ACSR_CONDUCTORS[Math.floor(rand() * ACSR_CONDUCTORS.length)]);
+      // Few distinct loads, so the memo is hit often, plus some with bundles and local weather.
+      const typical = 100 + 50 * Math.floor(rand() * 12);
+      const input: SpanAssessmentInput = {
+        conductor: { ...c, subConductors: rand() < 0.1 ? 2 : undefined },
+        clearanceM: rand() < 0.1 ? null : 4 + rand() * 10,
+        loadCurrentA: { min: typical * 0.5, typical, peak: typical * 1.4 },
+        voltageKv: [12.47, 34.5, 69, 138][Math.floor(rand() * 4)],
+        frequencyHz: rand() < 0.2 ? 50 : 60,
+        lengthM: 50 + rand() * 500,
+        hazards: rand() < 0.2 ? [{ severity: 'high' }] : [],
+        completeness: { a: true, b: rand() < 0.5 },
+        surveyAgeDays: Math.floor(rand() * 2000),
+        zones: { inExclude: rand() < 0.05, inCautionCount: rand() < 0.1 ? 1 : 0 },
+        weather: rand() < 0.1 ? { ambientC: 25 } : undefined,
+      };
+      const settings = rand() < 0.2 ? { ...DEFAULT_SCORING_SETTINGS, ampacityMaxConductorC: 75 } : DEFAULT_SCORING_SETTINGS;
+      expect(assessSpan(input, KESTREL_CORE, SWIFT_QUAD, DEFAULT_DESIGN_WEATHER, settings, memo)).toEqual(assessSpan(input, KESTREL_CORE, SWIFT_QUAD, DEFAULT_DESIGN_WEATHER, settings));
+    }
+    expect(memo.thermal.size).toBeLessThan(3000 * 2); // repeats were served from the memo
+  });
+});
