@@ -38,7 +38,37 @@ describe('load evidence', () => {
     const status = page.getByRole('status').filter({ hasText: 'demo-flight.csv' });
     await status.waitFor({ timeout: 30_000 });
     await expect.poll(() => status.textContent()).toMatch(/1 perch\(es\), 0 hover\(s\)/);
-    expect(await page.getByRole('img', { name: 'Flight track with its stops' }).getByText('Perch 1').count()).toBe(1);
+    // The track and its stops on the app's map: the perch is drawn, and so is the span it matched.
+    await page.locator('[data-testid="flight-map"][data-map-ready="true"]').waitFor({ timeout: 30_000 });
+    const drawn = await page.waitForFunction(
+      () => {
+        const m = (window as unknown as { __roostlineFlightMap?: { queryRenderedFeatures: (o: object) => { properties: Record<string, unknown> }[]; areTilesLoaded: () => boolean } }).__roostlineFlightMap;
+        if (!m || !m.areTilesLoaded()) return null;
+        const stops = m.queryRenderedFeatures({ layers: ['flight-stops'] }).map((f) => f.properties.label);
+        const spans = m.queryRenderedFeatures({ layers: ['flight-matched-spans'] }).map((f) => f.properties.id);
+        const track = m.queryRenderedFeatures({ layers: ['flight-track'] }).length;
+        return stops.length && spans.length && track ? { stops, spans } : null;
+      },
+      undefined,
+      { timeout: 20_000 },
+    );
+    const features = (await drawn.jsonValue()) as { stops: string[]; spans: string[] };
+    expect([...new Set(features.stops)]).toEqual(['Perch 1']);
+    expect(new Set(features.spans)).toEqual(new Set([span.id]));
+    expect(await page.getByRole('list', { name: 'Flight map legend' }).getByText('Span a perch matched').count()).toBe(1);
+    // A click on the perch names its span and the distance, with a link to the span.
+    const onScreen = await page.evaluate(({ lon, lat }) => {
+      const m = (window as unknown as { __roostlineFlightMap: { project: (c: [number, number]) => { x: number; y: number }; getCanvas: () => HTMLCanvasElement } }).__roostlineFlightMap;
+      const p = m.project([lon, lat]);
+      const r = m.getCanvas().getBoundingClientRect();
+      return { x: r.left + p.x, y: r.top + p.y };
+    }, mid);
+    await page.mouse.click(onScreen.x, onScreen.y);
+    const popup = page.getByTestId('flight-stop-popup');
+    await popup.waitFor({ timeout: 10_000 });
+    expect(await popup.textContent()).toMatch(/Perch 1.*m from span .+ → .+40\.0 W measured/);
+    expect(await popup.getByRole('link').getAttribute('href')).toBe(`/spans/${span.id}`);
+    if (process.env.EVIDENCE_SCREENSHOT) await page.getByTestId('flight-map').screenshot({ path: process.env.EVIDENCE_SCREENSHOT.replace(/\.png$/, '-flight-map.png') });
     await page.getByLabel('Measured against predicted harvest').locator('.recharts-scatter-symbol').first().waitFor({ timeout: 10_000 });
     expect(await page.getByText('40.0 W').count()).toBeGreaterThan(0); // the measured harvest, formatted
     await page.getByLabel('Residuals by line').locator('.recharts-bar-rectangle').first().waitFor({ timeout: 10_000 });

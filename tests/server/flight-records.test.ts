@@ -52,6 +52,9 @@ describe('flight records', () => {
     const p = perches[0];
     expect(p.spanId).toBe(span.id);
     expect(p.spanDistanceM).toBeLessThan(2);
+    const spanView = (await planner.get(`/api/spans/${span.id}`)).body;
+    expect(p.spanLabel).toBe(`${spanView.fromStructureLabel} → ${spanView.toStructureLabel}`);
+    expect((await planner.get(`/api/flight-records/${res.body.id}`)).body.events.find((e: { kind: string }) => e.kind === 'perch').spanLabel).toBe(p.spanLabel);
     expect(p.measuredW).toBeCloseTo(20, 6);
     expect(p.predictedSource).toBe('estimate');
     expect(p.startAt).toBe('2026-06-01T10:00:50-09:00');

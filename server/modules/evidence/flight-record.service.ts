@@ -139,7 +139,16 @@ export async function uploadFlightRecord(
   }
   audit(em, { actorId: user.id, action: 'flight-record.upload', recordType: 'flight-record', recordId: record.id, before: null, after: { fileName: record.fileName, points: record.pointCount, perches: events.filter((x) => x.kind === 'perch').length } });
   await em.flush();
-  return flightRecordView(record, events);
+  return flightRecordView(record, events, await spanLabels(em, events));
+}
+
+/** "VR138-089 → VR138-090" for each matched span, so screens name the span a perch sat on. */
+async function spanLabels(em: EntityManager, events: PerchEvent[]): Promise<Map<string, string>> {
+  const ids = [...new Set(events.map((e) => e.spanId).filter((x): x is string => !!x))];
+  if (ids.length === 0) return new Map();
+  const spans = await em.find(Span, { id: { $in: ids } }, { fields: ['id', 'fromStructureId', 'toStructureId'] });
+  const structures = new Map((await em.find(Structure, { id: { $in: spans.flatMap((s) => [s.fromStructureId, s.toStructureId]) } }, { fields: ['id', 'label'] })).map((s) => [s.id, s.label]));
+  return new Map(spans.map((s) => [s.id, `${structures.get(s.fromStructureId) ?? '?'} → ${structures.get(s.toStructureId) ?? '?'}`]));
 }
 
 export function eventView(e: PerchEvent) {
@@ -147,14 +156,15 @@ export function eventView(e: PerchEvent) {
   return { ...e, ratio, lowHarvest: ratio !== null && ratio < LOW_HARVEST_RATIO };
 }
 
-export function flightRecordView(r: FlightRecord, events: PerchEvent[]) {
-  return { ...r, uploadedAt: r.uploadedAt.toISOString(), events: events.map(eventView) };
+export function flightRecordView(r: FlightRecord, events: PerchEvent[], labels = new Map<string, string>()) {
+  return { ...r, uploadedAt: r.uploadedAt.toISOString(), events: events.map((e) => ({ ...eventView(e), spanLabel: e.spanId ? (labels.get(e.spanId) ?? null) : null })) };
 }
 
 export async function getFlightRecord(em: EntityManager, id: string) {
   const r = await em.findOne(FlightRecord, { id });
   if (!r) throw AppError.notFound('Flight record');
-  return flightRecordView(r, await em.find(PerchEvent, { flightRecordId: id }, { orderBy: { startAt: 'asc' } }));
+  const events = await em.find(PerchEvent, { flightRecordId: id }, { orderBy: { startAt: 'asc' } });
+  return flightRecordView(r, events, await spanLabels(em, events));
 }
 
 export async function listFlightRecords(em: EntityManager) {

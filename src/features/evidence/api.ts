@@ -53,6 +53,8 @@ export interface PerchEventView {
   note: string | null;
   ratio: number | null;
   lowHarvest: boolean;
+  /** "VR138-089 → VR138-090" on a flight record's events; absent on the perch list. */
+  spanLabel?: string | null;
 }
 
 export interface FlightRecordSummary {

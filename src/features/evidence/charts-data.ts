@@ -62,18 +62,3 @@ export function residualsByLine(items: { lineName?: string | null; ratio: number
     return { line, medianPct: Math.round((mid - 1) * 1000) / 10, perches: s.length };
   });
 }
-
-/** Track and stops projected to an SVG box (equirectangular around the track's middle latitude). */
-export function projectTrack(track: [number, number][], stops: { lat: number; lon: number }[], width: number, height: number) {
-  const lons = track.map((p) => p[0]);
-  const lats = track.map((p) => p[1]);
-  const midLat = (Math.min(...lats) + Math.max(...lats)) / 2;
-  const k = Math.cos((midLat * Math.PI) / 180);
-  const x0 = Math.min(...lons) * k;
-  const x1 = Math.max(...lons) * k;
-  const y0 = Math.min(...lats);
-  const y1 = Math.max(...lats);
-  const scale = Math.min((width - 20) / (x1 - x0 || 1e-9), (height - 20) / (y1 - y0 || 1e-9));
-  const at = (lon: number, lat: number): [number, number] => [10 + (lon * k - x0) * scale, height - 10 - (lat - y0) * scale];
-  return { path: track.map(([lon, lat]) => at(lon, lat)), stops: stops.map((s) => at(s.lon, s.lat)) };
-}

@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { lazy, Suspense, useState } from 'react';
 import { Link } from 'react-router';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { Bar, BarChart, CartesianGrid, ReferenceLine, ResponsiveContainer, Scatter, ScatterChart, Tooltip, XAxis, YAxis } from 'recharts';
@@ -6,14 +6,19 @@ import { formatQuantity } from '#shared/units.ts';
 import { useMe } from '../../auth/queries.ts';
 import { ProgressBar } from '../../../components/progress-bar.tsx';
 import { flightApi, type FlightRecordView } from '../api.ts';
-import { projectTrack, residualsByLine } from '../charts-data.ts';
+import { residualsByLine } from '../charts-data.ts';
+import { stopLabel } from '../flight-map-data.ts';
 import { count, writtenTime } from '../format.ts';
+
+// The map library is large: the flight map loads in its own chunk when a record is shown.
+const FlightMap = lazy(() => import('./flight-map.tsx'));
 
 /** Flight records: upload one, see its stops on the track, and every perch's measured harvest against the prediction. */
 export function FlightRecordsSection({ canUpload }: { canUpload: boolean }) {
   const me = useMe();
   const qc = useQueryClient();
   const perches = useQuery({ queryKey: ['evidence', 'perches'], queryFn: () => flightApi.perches() });
+  const records = useQuery({ queryKey: ['evidence', 'flights'], queryFn: async () => (await flightApi.list()).items });
   const [progress, setProgress] = useState<number | null | undefined>(undefined);
   const [error, setError] = useState<string | null>(null);
   const [record, setRecord] = useState<FlightRecordView | null>(null);
@@ -26,6 +31,7 @@ export function FlightRecordsSection({ canUpload }: { canUpload: boolean }) {
       const r = await flightApi.upload(file, (p) => setProgress(p.fraction));
       setRecord(r);
       await qc.invalidateQueries({ queryKey: ['evidence', 'perches'] });
+      await qc.invalidateQueries({ queryKey: ['evidence', 'flights'] });
     } catch (e) {
       setError((e as Error).message);
     } finally {
@@ -51,6 +57,18 @@ export function FlightRecordsSection({ canUpload }: { canUpload: boolean }) {
       {progress !== undefined && <ProgressBar label="Uploading the flight record" value={progress} />}
       {error && <p role="alert" className="field-error">{error}</p>}
       {record && <FlightRecordResult record={record} />}
+      {(records.data?.length ?? 0) > 0 && (
+        <details className="rounded-lg border border-ink-100 p-3">
+          <summary className="cursor-pointer font-semibold">Flight records uploaded ({records.data!.length})</summary>
+          <ul className="mt-2 space-y-1 text-sm">
+            {records.data!.slice(0, 50).map((r) => (
+              <li key={r.id}>
+                <Link className="font-semibold underline" to={`/evidence/flights/${r.id}`}>{r.fileName}</Link> · {writtenTime(r.startedAt)} · {r.pointCount.toLocaleString('en-US')} points
+              </li>
+            ))}
+          </ul>
+        </details>
+      )}
       <div className="grid gap-4 lg:grid-cols-2">
         <div>
           <h3 className="font-semibold">Measured against predicted harvest</h3>
@@ -110,22 +128,15 @@ const round1 = (v: number) => Math.round(v * 10) / 10;
 
 export function FlightRecordResult({ record }: { record: FlightRecordView }) {
   const me = useMe();
-  const { path, stops } = projectTrack(record.track, record.events, 640, 240);
   return (
     <div className="space-y-2 rounded-lg border border-ink-100 p-3">
       <p role="status">
         <strong>{record.fileName}</strong>: {count(record.pointCount)} points, {writtenTime(record.startedAt)} to {writtenTime(record.endedAt)};{' '}
         {record.events.filter((e) => e.kind === 'perch').length} perch(es), {record.events.filter((e) => e.kind === 'hover').length} hover(s).
       </p>
-      <svg viewBox="0 0 640 240" className="w-full rounded bg-chalk" role="img" aria-label="Flight track with its stops">
-        <polyline points={path.map((p) => p.join(',')).join(' ')} fill="none" stroke="#3f7b83" strokeWidth={2} />
-        {stops.map(([x, y], i) => (
-          <g key={record.events[i].id}>
-            <circle cx={x} cy={y} r={7} fill={record.events[i].kind === 'perch' ? '#c98f28' : '#f7f4ee'} stroke="#12343b" strokeWidth={2} />
-            <text x={x + 10} y={y - 8} fontSize={11} fill="#12343b">{record.events[i].kind === 'perch' ? `Perch ${i + 1}` : `Hover ${i + 1}`}</text>
-          </g>
-        ))}
-      </svg>
+      <Suspense fallback={<p className="text-sm text-ink-700">Loading the map…</p>}>
+        <FlightMap record={record} system={me.unitSystem} />
+      </Suspense>
       <table className="w-full text-sm">
         <thead>
           <tr className="text-left text-ink-700"><th>Stop</th><th>From</th><th>Span</th><th className="text-right">Predicted</th><th className="text-right">Measured</th><th className="text-right">Implied current</th><th className="text-right">Metered</th></tr>
@@ -133,9 +144,9 @@ export function FlightRecordResult({ record }: { record: FlightRecordView }) {
         <tbody>
           {record.events.map((e, i) => (
             <tr key={e.id} className="border-t border-ink-100">
-              <td className="py-1">{e.kind === 'perch' ? `Perch ${i + 1}` : `Hover ${i + 1}`}{e.lowHarvest && <span className="ml-1 font-semibold text-alarm">below half</span>}</td>
+              <td className="py-1">{stopLabel(e, i)}{e.lowHarvest && <span className="ml-1 font-semibold text-alarm">below half</span>}</td>
               <td>{writtenTime(e.startAt)} · {Math.round(e.durationS / 60)} min</td>
-              <td>{e.spanId ? <Link className="underline" to={`/spans/${e.spanId}`}>{formatQuantity(e.spanDistanceM, 'length', me.unitSystem)} from the span</Link> : (e.note ?? '—')}</td>
+              <td>{e.spanId ? <>{formatQuantity(e.spanDistanceM, 'length', me.unitSystem)} from <Link className="underline" to={`/spans/${e.spanId}`}>span {e.spanLabel ?? ''}</Link></> : (e.note ?? '—')}</td>
               <td className="text-right">{formatQuantity(e.predictedW, 'power', me.unitSystem)}{e.predictedSource && <span className="block text-xs text-ink-500">{e.predictedSource === 'series' ? 'metered profile' : 'load estimate'}</span>}</td>
               <td className="text-right">{formatQuantity(e.measuredW, 'power', me.unitSystem)}</td>
               <td className="text-right">{formatQuantity(e.impliedCurrentA, 'current', me.unitSystem)}</td>
