@@ -4,6 +4,7 @@ import { Link, useParams } from 'react-router';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { formatQuantity } from '#shared/units.ts';
 import { ApiError } from '../../lib/api.ts';
+import { date } from '../../lib/format.ts';
 import { useMe } from '../auth/queries.ts';
 import { isExpired, isNotYetValid, lineApi, lineQueries, type LinePermissionInput } from './api.ts';
 
@@ -127,8 +128,9 @@ export function LinePage() {
                   <strong>{p.reference}</strong>
                   {expired && <span className="rounded-full bg-alarm px-2 text-sm font-bold text-white">Expired</span>}
                   {!expired && isNotYetValid(p) && <span className="rounded-full bg-brass-300 px-2 text-sm font-bold">Not yet valid</span>}
-                  <span className="text-sm text-ink-700">valid {p.validFrom} to {p.validTo}</span>
+                  <span className="text-sm text-ink-700">valid {date(p.validFrom)} to {date(p.validTo)}</span>
                   {p.documentUrl && <a className="ml-auto underline" href={p.documentUrl} target="_blank" rel="noreferrer">{p.documentName ?? 'Document'}</a>}
+                  {p.createdByName && <span className="w-full text-xs text-ink-700">Entered by {p.createdByName}</span>}
                 </div>
                 {p.conditions && <p className="mt-1 whitespace-pre-line text-sm">Conditions: {p.conditions}</p>}
               </li>

@@ -5,6 +5,7 @@ import { useState } from 'react';
 import { Link, useParams } from 'react-router';
 import { useQueries, useQuery } from '@tanstack/react-query';
 import { api } from '../../lib/api.ts';
+import { date } from '../../lib/format.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { MISSION_COLOURS } from './map-styles.ts';
@@ -13,6 +14,7 @@ import { ChargeChart, LegsTable, PerchTable, PlanSummary } from './plan-views.ts
 import { missionQueries } from './queries.ts';
 import { formatDistance, formatWindFrom, infeasibleText, offsetOf, routeStops, staleReasonText, svgRoute, wallClock } from './transforms.ts';
 import { formatQuantity } from '#shared/units.ts';
+import { permissionCovers } from '#shared/schemas/line-permissions.ts';
 import type { LinePermission } from './types.ts';
 
 function RouteDrawing({ svg }: { svg: NonNullable<ReturnType<typeof svgRoute>> }) {
@@ -64,6 +66,8 @@ export function MissionBriefPage() {
   const m = mission.data;
   const r = missionRequest(m);
   const offset = (r.departAt && offsetOf(r.departAt)) || '+00:00';
+  // The departure's own calendar day, as written with its offset: the day the owner's permission must cover.
+  const departDay = r.departAt && /^\d{4}-\d{2}-\d{2}/.test(r.departAt) ? r.departAt.slice(0, 10) : null;
   const drone = drones.data?.find((d) => d.id === r.droneProfileId);
   const harvester = harvesters.data?.find((h) => h.id === r.harvesterProfileId);
   const stops = plan?.feasible && r.base && r.target ? routeStops(plan, r.base, r.target, r.returnToBase) : [];
@@ -123,7 +127,7 @@ export function MissionBriefPage() {
                   {items.length === 0 ? <span className="font-semibold text-alarm"> no permission on record</span> : (
                     <ul className="list-disc pl-5">
                       {items.map((p) => (
-                        <li key={p.id}>{p.reference}, valid {p.validFrom} to {p.validTo}{p.expired ? ' — expired' : ''}{p.conditions ? `; conditions: ${p.conditions}` : ''}</li>
+                        <li key={p.id}>{p.reference}, valid {date(p.validFrom)} to {date(p.validTo)}{p.expired ? ' — expired' : ''}{departDay && permissionCovers(p, departDay) ? ' — covers the departure day' : ''}{p.conditions ? `; conditions: ${p.conditions}` : ''}</li>
                       ))}
                     </ul>
                   )}
