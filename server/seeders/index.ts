@@ -4,6 +4,7 @@ import { seedDemoUsers } from './demo-users.ts';
 import { seedDemoInventory } from './demo-inventory.ts';
 import { seedDemoLoadSeries } from './demo-load-series.ts';
 import { planDemoMission, seedDemoPermissions } from './demo-missions.ts';
+import { seedDemoDecisions } from './demo-decisions.ts';
 
 /** Seeds the demo scenario into an empty database (no users yet); returns whether it did. */
 export async function seedDemoIfEmpty(orm: MikroORM): Promise<boolean> {
@@ -18,6 +19,8 @@ export async function seedDemoIfEmpty(orm: MikroORM): Promise<boolean> {
 export async function seedDemoScenario(em: EntityManager, now = new Date()): Promise<void> {
   await seedDemoInventory(em);
   await seedDemoLoadSeries(em);
+  // Assesses the inventory (so a start finds it current) and settles approvals that fail a blocking gate.
+  await seedDemoDecisions(em);
   await seedDemoPermissions(em, now);
   await planDemoMission(em, now);
 }

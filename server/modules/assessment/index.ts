@@ -26,7 +26,7 @@ export { perchableSpanIds, perchableSql, perchStandings, freshPerchStanding, ref
 const INLINE_LIMIT = 50;
 
 /** Spans whose segment's bounding box overlaps the polygon's: the only ones a zone change can affect. */
-async function spansNear(em: EntityManager, polygons: Polygon[]): Promise<string[]> {
+export async function spansNear(em: EntityManager, polygons: Polygon[]): Promise<string[]> {
   const ids = new Set<string>();
   for (const p of polygons) {
     const [x0, y0, x1, y1] = turfBbox(p);
