@@ -254,9 +254,10 @@ export type MeasuredLine = Line & { measuredMonth?: string };
  * The lines with their load estimate replaced, for the assessment, by the metered month when the series has it:
  * P10 as the minimum, the median as typical, the highest hourly P90 as the peak, and the hourly medians as the profile.
  */
-export async function withMeasuredLoad(em: EntityManager, lines: Line[], now = new Date()): Promise<MeasuredLine[]> {
+export async function withMeasuredLoad(em: EntityManager, lines: Line[], when: Date | string = new Date()): Promise<MeasuredLine[]> {
   if (lines.length === 0) return lines;
-  const month = currentMonth(now);
+  // A month as written (YYYY-MM, e.g. a departure's local month), or the UTC month of an instant.
+  const month = typeof when === 'string' ? when : currentMonth(when);
   const profiles = await seriesProfiles(em, lines.map((l) => l.id), month);
   return lines.map((l) => {
     const hours = profiles.get(l.id);

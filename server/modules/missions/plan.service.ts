@@ -162,7 +162,8 @@ export async function perchCandidates(em: EntityManager, ctx: PlanContext, box: 
   if (rows.length === 0) return [];
   const lineIds = [...new Set(rows.map((r) => r.line_id))];
   const lines: MeasuredLine[] = [];
-  for (let i = 0; i < lineIds.length; i += 400) lines.push(...(await withMeasuredLoad(em, await em.find(Line, { id: { $in: lineIds.slice(i, i + 400) } }), new Date(ctx.departAtMs))));
+  // The departure's month as written in its own offset: series days are local days, so months are local too.
+  for (let i = 0; i < lineIds.length; i += 400) lines.push(...(await withMeasuredLoad(em, await em.find(Line, { id: { $in: lineIds.slice(i, i + 400) } }), ctx.localDate.slice(0, 7))));
   const byId = new Map(lines.map((l) => [l.id, l]));
   const lineHarvest = new Map<string, number[]>();
   const out: PerchCandidate[] = [];

@@ -3,6 +3,7 @@ import { Link } from 'react-router';
 import { CartesianGrid, Line, LineChart, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import { approachDistanceM } from '#shared/engineering/clearance.ts';
 import type { Line as PowerLine } from '#shared/schemas/inventory.ts';
+import { loadSourceLabel } from '#shared/schemas/assessment.ts';
 import { formatQuantity, type UnitSystem } from '#shared/units.ts';
 import { chargeSeries, formatCourse, formatDistance, formatDuration, formatPercent, wallClock, type ChargePoint } from './transforms.ts';
 import type { FeasiblePlan, PlanPerch } from './types.ts';
@@ -122,6 +123,11 @@ export function perchApproachM(p: PlanPerch, line: PowerLine | undefined): numbe
   return typeof kv === 'number' ? approachDistanceM(kv) : null;
 }
 
+/** "measured, June 2026" when the line's metered month fed the harvest, else "typed estimate". */
+export function perchLoadSource(p: Pick<PlanPerch, 'harvestSource' | 'loadMonth'>): string {
+  return p.harvestSource === 'series' && p.loadMonth ? loadSourceLabel({ kind: 'measured', month: p.loadMonth }) : 'typed estimate';
+}
+
 export function perchName(p: PlanPerch, i: number) {
   const span = p.spanLabel ?? (p.fromStructureLabel && p.toStructureLabel ? `${p.fromStructureLabel} → ${p.toStructureLabel}` : null);
   return { title: `Perch ${i + 1}`, span };
@@ -163,7 +169,10 @@ export function PerchTable({ plan, lines, offset, system, links = true }: { plan
                 </td>
                 <td className="text-right">{wallClock(p.arriveAt, offset)}</td>
                 <td className="text-right">{formatDuration(p.dwellS)}</td>
-                <td className="text-right">{formatQuantity(p.harvestW, 'power', system)}</td>
+                <td className="text-right">
+                  {formatQuantity(p.harvestW, 'power', system)}
+                  {p.harvestSource && <span className="block text-xs text-ink-700" data-testid="perch-load-source">load: {perchLoadSource(p)}</span>}
+                </td>
                 <td className="text-right">{formatPercent(p.socArrivePct)} → {formatPercent(p.socDepartPct)}</td>
                 <td className="text-right">{formatCourse(p.lineBearingDeg)}</td>
                 <td className="text-right">{formatQuantity(p.conductorHeightM, 'length', system, { digits: 1 })}</td>

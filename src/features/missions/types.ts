@@ -59,6 +59,9 @@ export interface PlanPerch {
   fromStructureLabel?: string;
   toStructureLabel?: string;
   approachDistanceM?: number;
+  /** Which load the harvest rests on: the line's metered month (`loadMonth`) or the typed estimate. */
+  harvestSource?: 'series' | 'estimate';
+  loadMonth?: string | null;
   /** Harvest at each hour the drone dwells, when the server lists it. */
   harvestByHour?: { hour: number; harvestW: number }[];
 }
