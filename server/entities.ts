@@ -20,5 +20,6 @@ import { FlightRecordSchema, PerchEventSchema } from './modules/evidence/flight-
 import { PendingWorkSchema } from './modules/jobs/pending-work.entity.ts';
 import { LinePermissionSchema } from './modules/line-permissions/line-permission.entity.ts';
 import { IdempotencyKeySchema } from './modules/idempotency/idempotency-key.entity.ts';
+import { MissionSchema, MissionPerchSchema } from './modules/missions/mission.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema, FlightRecordSchema, PerchEventSchema, PendingWorkSchema, IdempotencyKeySchema, LinePermissionSchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema, FlightRecordSchema, PerchEventSchema, PendingWorkSchema, IdempotencyKeySchema, LinePermissionSchema, MissionSchema, MissionPerchSchema];

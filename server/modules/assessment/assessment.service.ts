@@ -256,6 +256,26 @@ function assessBuilt(rec: SpanRecords, built: ReturnType<typeof spanInputOf>, p:
   return { ...built, result: withRecordRules(rec, p.harvester, result) };
 }
 
+/** Called after each batch of spans has new stored assessments (missions re-judge the plans that perch on them). */
+export type AssessedListener = (em: EntityManager, spanIds: string[]) => void | Promise<void>;
+const assessedListeners = new Set<AssessedListener>();
+
+export function registerAssessedListener(fn: AssessedListener): () => void {
+  assessedListeners.add(fn);
+  return () => assessedListeners.delete(fn);
+}
+
+async function notifyAssessed(em: EntityManager, spanIds: string[]) {
+  for (const fn of assessedListeners) {
+    try {
+      await fn(em, spanIds);
+    } catch (err) {
+      // A listener's failure never undoes the stored assessments; it is logged for the operator.
+      console.error('assessment listener failed', err);
+    }
+  }
+}
+
 export interface AssessOptions {
   /** Progress of a background job: called with the number of spans done in each batch. */
   onBatch?: (doneInBatch: number) => void;
@@ -295,6 +315,7 @@ export async function assessSpans(em: EntityManager, spanIds?: readonly string[]
       if (rows.length) await tx.insertMany(Assessment, rows);
     });
     assessed += records.length;
+    await notifyAssessed(em, ids);
     opts.onBatch?.(spans.length);
   };
 
@@ -360,6 +381,7 @@ export async function assessSpansBulk(em: EntityManager, spanIds?: readonly stri
     // Spans asked for that no longer exist lose their rows in the same transaction.
     await replaceAssessmentRows(em, ids, rows);
     assessed += records.length;
+    await notifyAssessed(em, [...ids]);
     opts.onBatch?.(spans.length);
     if (opts.clearBetweenBatches) em.clear();
     await new Promise((r) => setImmediate(r));

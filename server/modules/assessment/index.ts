@@ -18,7 +18,7 @@ import { spanAssessmentRouter } from './span-assessment.router.ts';
 import { assessmentReady, rescoreSpansNow, startRescore } from './rescore.ts';
 import { sql } from '../../sql/query.ts';
 
-export { assessmentForSpans, assessSpans, assessSpansBulk, defaultPairIds } from './assessment.service.ts';
+export { assessmentForSpans, assessSpans, assessSpansBulk, defaultPairIds, registerAssessedListener } from './assessment.service.ts';
 export { startRescore } from './rescore.ts';
 export { perchableSpanIds, perchableSql, perchStandings, freshPerchStanding, refusalOf, gateWord, type PerchStanding, type PerchableQuery } from './perchable.ts';
 

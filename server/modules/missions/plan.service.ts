@@ -357,6 +357,7 @@ function feasible(req: PlanRequest, ctx: PlanContext, input: SearchInput, r: Ext
     legs,
     perches: out,
     cautionZones: [...new Map(legs.flatMap((l) => l.cautionZones).map((z) => [z.id, z])).values()],
+    perchesConsidered: perches.length,
   };
   const spanIds = out.map((p) => p.spanId);
   return { result, spanIds, spanVersions: Object.fromEntries(spanIds.map((id) => [id, perches.find((p) => p.spanId === id)!.spanVersion])) };
