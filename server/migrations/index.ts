@@ -16,6 +16,7 @@ import { Migration20261203113759 } from './Migration20261203113759.ts';
 import { Migration20261203113808 } from './Migration20261203113808.ts';
 import { Migration20261203124918 } from './Migration20261203124918.ts';
 import { Migration20261203125243 } from './Migration20261203125243.ts';
+import { Migration20261203131056 } from './Migration20261203131056.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202031719', class: Migration20261202031719 },
@@ -34,4 +35,5 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203113808', class: Migration20261203113808 },
   { name: 'Migration20261203124918', class: Migration20261203124918 },
   { name: 'Migration20261203125243', class: Migration20261203125243 },
+  { name: 'Migration20261203131056', class: Migration20261203131056 },
 ];

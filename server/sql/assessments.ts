@@ -5,6 +5,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import type { Assessment } from '../modules/assessment/assessment.entity.ts';
 import { inTransaction, marks, rowsPerStatement } from './bulk.ts';
 import { changeCounter, noteAssessmentOnlyChanges } from './data-version.ts';
+import { sql } from './query.ts';
 
 const COLUMNS: [string, keyof Assessment][] = [
   ['span_id', 'spanId'],
@@ -70,4 +71,56 @@ export async function deleteOrphanAssessments(em: EntityManager): Promise<void> 
     await run('delete from `assessments` where `span_id` not in (select `id` from `spans`)', []);
     noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
   });
+}
+
+/** The stored columns a view reads (of the inputs only their load source), decoded to the entity's types; no identity map. */
+export type AssessmentSummaryRow = Omit<Assessment, 'id' | 'inputs'> & { inputs: { loadSource?: unknown } };
+
+/**
+ * Stored rows of the given spans without their inputs (the largest column), for read-only views: span lists,
+ * perch standings. Optionally only the given harvesters and drones.
+ */
+export async function readAssessmentSummaries(
+  em: EntityManager,
+  spanIds: readonly string[],
+  only: { harvesterIds?: readonly string[]; droneIds?: readonly string[] } = {},
+): Promise<AssessmentSummaryRow[]> {
+  const out: AssessmentSummaryRow[] = [];
+  const h = only.harvesterIds;
+  const d = only.droneIds;
+  if (!spanIds.length || (h && !h.length) || (d && !d.length)) return out;
+  for (let i = 0; i < spanIds.length; i += DELETE_CHUNK) {
+    const ids = spanIds.slice(i, i + DELETE_CHUNK);
+    const rows = await sql.all<Record<string, any>>(
+      em,
+      'select span_id, harvester_profile_id, drone_profile_id, perchable, score, harvest_w, charge_time_min, conductor_temp_c, ampacity_a, result, ' +
+        'method_version, settings_version, harvester_version, drone_version, computed_at, json_extract(inputs, \'$.loadSource\') as load_source from `assessments` ' +
+        `where span_id in (${marks(ids.length)})` +
+        (h ? ` and harvester_profile_id in (${marks(h.length)})` : '') +
+        (d ? ` and drone_profile_id in (${marks(d.length)})` : '') +
+        ' order by id',
+      [...ids, ...(h ?? []), ...(d ?? [])],
+    );
+    for (const r of rows) {
+      out.push({
+        spanId: r.span_id,
+        harvesterProfileId: r.harvester_profile_id,
+        droneProfileId: r.drone_profile_id,
+        perchable: !!r.perchable,
+        score: r.score,
+        harvestW: r.harvest_w,
+        chargeTimeMin: r.charge_time_min,
+        conductorTempC: r.conductor_temp_c,
+        ampacityA: r.ampacity_a,
+        result: typeof r.result === 'string' ? JSON.parse(r.result) : r.result,
+        methodVersion: r.method_version,
+        settingsVersion: r.settings_version,
+        harvesterVersion: r.harvester_version,
+        droneVersion: r.drone_version,
+        inputs: r.load_source === null || r.load_source === undefined ? {} : { loadSource: r.load_source },
+        computedAt: new Date(typeof r.computed_at === 'string' && !/^\d+$/.test(r.computed_at) ? r.computed_at : Number(r.computed_at)),
+      });
+    }
+  }
+  return out;
 }

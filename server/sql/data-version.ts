@@ -3,6 +3,7 @@
 // holds one connection), and PRAGMA data_version changes when another connection commits. Both are O(1).
 // Another database implements these functions its own way (e.g. a counter bumped by statement-level triggers).
 import type { EntityManager } from '@mikro-orm/core';
+import { sql } from './query.ts';
 
 interface VersionState {
   /** Rows changed by writers that touch only stored assessments (the bulk rescorer): the inventory's version skips them. */
@@ -25,7 +26,7 @@ export type VersionScope = 'all' | 'inventory';
  * assessment-only writers (so totals that do not depend on assessments stay cached during a full rescore).
  */
 export async function dataVersion(em: EntityManager, scope: VersionScope = 'all'): Promise<string> {
-  const [row] = await em.getConnection().execute<{ c: number; d: number }[]>('select total_changes() as c, (select data_version from pragma_data_version) as d');
+  const row = (await sql.get<{ c: number; d: number }>(em, 'select total_changes() as c, (select data_version from pragma_data_version) as d'))!;
   const changes = Number(row.c) - (scope === 'inventory' ? stateOf(em).assessmentOnly : 0);
   return `${row.d}:${changes}`;
 }

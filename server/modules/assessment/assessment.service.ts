@@ -28,7 +28,7 @@ import { Assessment } from './assessment.entity.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneModel, harvesterModel } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
-import { replaceAssessmentRows, deleteOrphanAssessments } from '../../sql/assessments.ts';
+import { replaceAssessmentRows, deleteOrphanAssessments, readAssessmentSummaries } from '../../sql/assessments.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
 import { sql } from '../../sql/query.ts';
 
@@ -413,7 +413,7 @@ export async function forgetSpan(em: EntityManager, spanId: string) {
   await em.nativeDelete(Assessment, { spanId });
 }
 
-export function assessmentView(row: Assessment): SpanAssessmentView {
+export function assessmentView(row: Omit<Assessment, 'id' | 'inputs'> & { inputs: unknown }): SpanAssessmentView {
   const r = row.result as SpanAssessment & { chargeTimeMin: number | null };
   return {
     perchable: row.perchable,
@@ -448,10 +448,8 @@ export async function assessmentForSpans(em: EntityManager, spanIds: readonly st
   if (spanIds.length === 0) return out;
   const pair = await defaultPair(em);
   if (!pair) return out;
-  for (let i = 0; i < spanIds.length; i += BATCH) {
-    const rows = await em.find(Assessment, { spanId: { $in: spanIds.slice(i, i + BATCH) }, harvesterProfileId: pair.harvester.id, droneProfileId: pair.drone.id });
-    for (const row of rows) out.set(row.spanId, assessmentView(row));
-  }
+  // Read without the inputs column and without the identity map: the views need neither.
+  for (const row of await readAssessmentSummaries(em, spanIds, { harvesterIds: [pair.harvester.id], droneIds: [pair.drone.id] })) out.set(row.spanId, assessmentView(row));
   return out;
 }
 

@@ -8,6 +8,7 @@ import { Assessment } from './assessment.entity.ts';
 import { assessSpans } from './assessment.service.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { sql } from '../../sql/query.ts';
+import { readAssessmentSummaries } from '../../sql/assessments.ts';
 
 /** The gate names a person reads (messages, the review desk); the ampacity flag is listed but never blocks. */
 export const GATE_WORDS: Record<string, string> = {
@@ -135,13 +136,8 @@ export async function perchStandings(em: EntityManager, spanIds: readonly string
   const { harvesterIds, droneIds, names } = await activePairs(em);
   const bySpan = new Map<string, Row[]>();
   if (harvesterIds.length && droneIds.length) {
-    for (let i = 0; i < spanIds.length; i += 400) {
-      const rows = await em.find(
-        Assessment,
-        { spanId: { $in: spanIds.slice(i, i + 400) }, harvesterProfileId: { $in: harvesterIds }, droneProfileId: { $in: droneIds } },
-      );
-      for (const r of rows) bySpan.set(r.spanId, [...(bySpan.get(r.spanId) ?? []), r]);
-    }
+    // Only the columns a standing reads (no inputs), without the identity map.
+    for (const r of await readAssessmentSummaries(em, spanIds, { harvesterIds, droneIds })) bySpan.set(r.spanId, [...(bySpan.get(r.spanId) ?? []), r]);
   }
   for (const id of spanIds) {
     const rows = bySpan.get(id);

@@ -44,7 +44,8 @@ export class Span {
 export const SpanSchema = new EntitySchema<Span>({
   class: Span,
   tableName: 'spans',
-  indexes: [{ properties: ['status'] }, { properties: ['updatedAt'] }, { properties: ['fromStructureId'] }, { properties: ['toStructureId'] }],
+  // (status, updatedAt) and (status, createdAt) serve the table's status filter with its date sorts (and page by index order).
+  indexes: [{ properties: ['status'] }, { properties: ['updatedAt'] }, { properties: ['status', 'updatedAt'] }, { properties: ['status', 'createdAt'] }, { properties: ['status', 'lengthM'] }, { properties: ['fromStructureId'] }, { properties: ['toStructureId'] }],
   uniques: [{ properties: ['lineId', 'fromStructureId', 'toStructureId'] }],
   properties: {
     id: { type: 'string', primary: true },

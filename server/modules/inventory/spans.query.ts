@@ -7,6 +7,7 @@ import { Span } from './span.entity.ts';
 import { perchableSql } from '../assessment/perchable.ts';
 import { defaultAssessmentPair, spanViews } from './inventory.service.ts';
 import { sql as bound } from '../../sql/query.ts';
+import { dataVersion, type VersionScope } from '../../sql/data-version.ts';
 
 export interface SpanFilter {
   status?: string[];
@@ -40,16 +41,23 @@ function likeEscape(q: string) {
   return `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 }
 
-/** Builds the FROM/WHERE part shared by the page and the count. */
-async function buildQuery(em: EntityManager, f: SpanFilter) {
+/**
+ * Builds the FROM/WHERE part shared by the page and the count. `forCount` leaves out the joins that cannot change
+ * the number of rows: structures and the default pair's assessment are left joins on a unique key (at most one
+ * row each), and every span has its line (foreign key); they are joined only when a filter reads them.
+ */
+async function buildQuery(em: EntityManager, f: SpanFilter, forCount = false) {
   const params: unknown[] = [];
-  let from =
-    'from spans s join lines l on l.id = s.line_id ' +
-    'left join structures fs on fs.id = s.from_structure_id ' +
-    'left join structures ts on ts.id = s.to_structure_id ';
+  const needsLabels = !forCount || !!f.q;
+  const needsAssessment = !forCount || f.minHarvestW !== undefined || f.minScore !== undefined;
+  let from = needsLabels
+    ? 'from spans s join lines l on l.id = s.line_id ' +
+      'left join structures fs on fs.id = s.from_structure_id ' +
+      'left join structures ts on ts.id = s.to_structure_id '
+    : 'from spans s ';
   const pair = await defaultAssessmentPair(em);
   const hasAssessment = !!pair;
-  if (hasAssessment) {
+  if (hasAssessment && needsAssessment) {
     from += 'left join assessments a on a.span_id = s.id and a.harvester_profile_id = ? and a.drone_profile_id = ? ';
     params.push(pair!.harvesterProfileId, pair!.droneProfileId);
   }
@@ -85,8 +93,13 @@ async function buildQuery(em: EntityManager, f: SpanFilter) {
       params.push(f.minScore);
     } else where.push('0 = 1');
   }
-  return { sql: from + (where.length ? `where ${where.join(' and ')} ` : ''), params, hasAssessment };
+  // Totals that read assessments change with every rescore; the others only with the inventory.
+  const scope: VersionScope = needsAssessment && hasAssessment ? 'all' : f.perchable !== undefined ? 'all' : 'inventory';
+  return { sql: from + (where.length ? `where ${where.join(' and ')} ` : ''), params, hasAssessment, scope };
 }
+
+/** Sort columns that are never null: their order needs no "nulls last" term, so an index can serve it. */
+const NOT_NULL_SORTS = new Set<SpanSortKey>(['lengthM', 'updatedAt', 'createdAt', 'status', 'line']);
 
 function orderBy(sort: string | undefined, hasAssessment: boolean) {
   const desc = !!sort?.startsWith('-');
@@ -95,12 +108,36 @@ function orderBy(sort: string | undefined, hasAssessment: boolean) {
   if (!hasAssessment && (key === 'harvestW' || key === 'score')) expr = 'null';
   const dir = desc || (!sort && key === 'updatedAt') ? 'desc' : 'asc';
   const tail = key === 'line' ? `, fs.label ${dir}, s.id` : ', l.name, fs.label, s.id';
+  if (NOT_NULL_SORTS.has(key) && SORT_SQL[key] === expr) return `order by ${expr} ${dir}${tail}`;
   return `order by ${expr} is null, ${expr} ${dir}${tail}`;
+}
+
+/** Exact totals per filter, kept while the data version they were counted at is current (bounded, least recent out). */
+const MAX_TOTALS = 500;
+const totals = new WeakMap<object, Map<string, number>>();
+
+async function totalOf(em: EntityManager, f: SpanFilter): Promise<number> {
+  const { sql, params, scope } = await buildQuery(em, f, true);
+  const conn = em.getConnection();
+  let cache = totals.get(conn);
+  if (!cache) totals.set(conn, (cache = new Map()));
+  // The version is read before counting: a write in between makes the next request miss, never serve an old total.
+  const key = `${await dataVersion(em, scope)}\u0000${sql}\u0000${JSON.stringify(params)}`;
+  const hit = cache.get(key);
+  if (hit !== undefined) {
+    cache.delete(key);
+    cache.set(key, hit);
+    return hit;
+  }
+  const [{ n }] = await bound.all<{ n: number }>(em, `select count(*) as n ${sql}`, params);
+  if (cache.size >= MAX_TOTALS) cache.delete(cache.keys().next().value!);
+  cache.set(key, Number(n));
+  return Number(n);
 }
 
 export async function listSpans(em: EntityManager, f: SpanFilter): Promise<Page<SpanView>> {
   const { sql, params, hasAssessment } = await buildQuery(em, f);
-  const [{ n }] = await bound.all<{ n: number }>(em, `select count(*) as n ${sql}`, params);
+  const n = await totalOf(em, f);
   const rows = await bound.all<{ id: string }>(em, `select s.id as id ${sql}${orderBy(f.sort, hasAssessment)} limit ? offset ?`, [...params, f.pageSize, (f.page - 1) * f.pageSize]);
   const ids = rows.map((r) => r.id);
   const spans = ids.length ? await em.find(Span, { id: { $in: ids } }) : [];

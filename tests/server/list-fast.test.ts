@@ -1,0 +1,86 @@
+// The span list's fast paths against the plain queries on the same data: cached totals equal a fresh count (also
+// right after an edit and during a rescore), the index-friendly order equals the full order, and the views read
+// without the identity map equal the entity-based ones.
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { makeTestApp, type Client, type TestApp } from './helpers.ts';
+import { seedScaleInventory } from '../../server/seeders/scale-inventory.ts';
+import { ensureAssessmentDefaults, defaultPair } from '../../server/modules/assessment/profiles.service.ts';
+import { assessmentForSpans, assessmentView, assessSpansBulk } from '../../server/modules/assessment/assessment.service.ts';
+import { Assessment } from '../../server/modules/assessment/assessment.entity.ts';
+import { sql } from '../../server/sql/query.ts';
+
+let t: TestApp;
+let planner: Client;
+const PAIR = "left join assessments a on a.span_id = s.id and a.harvester_profile_id = ? and a.drone_profile_id = ? ";
+const FROM = 'from spans s join lines l on l.id = s.line_id left join structures fs on fs.id = s.from_structure_id left join structures ts on ts.id = s.to_structure_id ' + PAIR;
+let pair: [string, string];
+
+/** The plain count with every join, as the list made it before. */
+async function plainCount(where: string, params: unknown[] = []) {
+  const row = await sql.get<{ n: number }>(t.orm.em.fork(), `select count(*) as n ${FROM}${where ? `where ${where}` : ''}`, [...pair, ...params]);
+  return Number(row!.n);
+}
+
+beforeAll(async () => {
+  // Seeded before the app starts, so its own start-up work finds everything in place.
+  t = await makeTestApp({}, {
+    seed: async (orm) => {
+      await ensureAssessmentDefaults(orm.em.fork());
+      await seedScaleInventory(orm.em.fork(), { spans: 600, seed: 11 });
+      await assessSpansBulk(orm.em.fork());
+    },
+  });
+  const p = (await defaultPair(t.orm.em.fork()))!;
+  pair = [p.harvester.id, p.drone.id];
+  planner = await t.as('planner');
+}, 120_000);
+afterAll(async () => t?.close());
+
+describe('span list totals', () => {
+  it('when the same filters are asked twice and after edits and a rescore, then every total equals a fresh full count', async () => {
+    const cases: [string, string, unknown[]][] = [
+      ['status=approved', "s.status = 'approved'", []],
+      ['status=submitted,returned', "s.status in ('submitted','returned')", []],
+      ['q=C00002', "(fs.label like '%C00002%' or ts.label like '%C00002%' or l.name like '%C00002%' or s.conductor_code_word like '%C00002%' or s.id = 'C00002')", []],
+      ['minHarvestW=5', 'a.harvest_w >= 5', []],
+      ['', '', []],
+    ];
+    const check = async () => {
+      for (const [query, where, params] of cases) {
+        const res = await planner.get(`/api/spans?${query}&pageSize=5`);
+        expect(res.status).toBe(200);
+        expect(res.body.total).toBe(await plainCount(where, params));
+      }
+    };
+    await check();
+    await check(); // served from the cache, same answers
+    // An edit that moves spans between statuses: the cached totals must not be served.
+    await sql.run(t.orm.em.fork(), "update spans set status = 'approved' where id in (select id from spans where status = 'submitted' order by id limit 7)");
+    await check();
+    // A rescore with a higher useful minimum changes the harvest filter's total, not the status totals.
+    await sql.run(t.orm.em.fork(), 'update assessments set harvest_w = harvest_w / 10 where id % 3 = 0');
+    await check();
+    await assessSpansBulk(t.orm.em.fork());
+    await check();
+  }, 120_000);
+
+  it('when pages are listed with the date and length sorts, then the order equals the full order with its nulls-last terms', async () => {
+    for (const [sort, expr] of [['-updatedAt', 's.updated_at desc'], ['createdAt', 's.created_at asc'], ['lengthM', 's.length_m asc'], ['-lengthM', 's.length_m desc']] as const) {
+      const col = expr.split(' ')[0];
+      const full = await sql.all<{ id: string }>(t.orm.em.fork(), `select s.id as id ${FROM}where s.status = 'approved' order by ${col} is null, ${expr}, l.name, fs.label, s.id limit 40 offset 20`, pair);
+      const res = await planner.get(`/api/spans?status=approved&sort=${sort}&page=2&pageSize=20`);
+      expect(res.body.items.map((s: { id: string }) => s.id)).toEqual(full.slice(0, 20).map((r) => r.id));
+    }
+  });
+});
+
+describe('span views', () => {
+  it('when the default assessments are read without the identity map, then they equal the entity-based views', async () => {
+    const em = t.orm.em.fork();
+    const ids = (await sql.all<{ id: string }>(em, 'select id from spans order by random() limit 80')).map((r) => r.id);
+    const rows = await em.find(Assessment, { spanId: { $in: ids }, harvesterProfileId: pair[0], droneProfileId: pair[1] });
+    const expected = new Map(ids.map((id) => [id, null as unknown]));
+    for (const r of rows) expected.set(r.spanId, assessmentView(r));
+    expect(await assessmentForSpans(t.orm.em.fork(), ids)).toEqual(expected);
+  });
+});
