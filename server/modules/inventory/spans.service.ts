@@ -319,7 +319,8 @@ export type TransitionName = 'submit' | 'approve' | 'return' | 'suspend' | 'rein
 export const TRANSITIONS: Record<TransitionName, { from: readonly SpanStatus[]; to: SpanStatus; label: string }> = {
   submit: { from: ['draft', 'returned'], to: 'submitted', label: 'submitted for review' },
   approve: { from: ['submitted'], to: 'approved', label: 'approved' },
-  return: { from: ['submitted'], to: 'returned', label: 'sent back to the surveyor' },
+  // From approved only when the span needs a decision (it no longer passes its gates): see transitionSpan.
+  return: { from: ['submitted', 'approved'], to: 'returned', label: 'sent back to the surveyor' },
   suspend: { from: ['approved'], to: 'suspended', label: 'suspended' },
   reinstate: { from: ['suspended'], to: 'approved', label: 'reinstated' },
 };
@@ -361,6 +362,14 @@ export async function transitionSpan(em: EntityManager, user: User, spanId: stri
       throw AppError.conflict(zones.length ? `${refusal.message} ${zones.map((z) => z.message).join('; ')}.` : refusal.message, [...zones, ...refusal.issues]);
     }
   }
+  if (name === 'return' && span.status === 'approved') {
+    // An approved span goes back to the surveyor only when it needs a decision; one that passes is suspended instead.
+    const standing = await freshPerchStanding(em, span.id);
+    if (standing.perchable)
+      throw AppError.conflict('This approved span still passes its gates, so it is not returned to the surveyor; suspend it with a reason if it is no longer safe', [
+        { path: 'status', message: 'The span is approved and passes every blocking gate' },
+      ]);
+  }
   const hazards = await em.find(Hazard, { spanId: span.id });
   const before = spanSnapshot(span, hazards);
   const now = new Date();
@@ -374,6 +383,8 @@ export async function transitionSpan(em: EntityManager, user: User, spanId: stri
     span.suspendReason = null;
   } else if (name === 'return') {
     span.returnReason = input.reason!;
+    span.approvedAt = null;
+    span.approvedById = null;
   } else if (name === 'suspend') {
     span.suspendReason = input.reason!;
   }

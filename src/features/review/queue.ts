@@ -1,12 +1,21 @@
 import type { Span, SpanStatus } from '#shared/schemas/inventory.ts';
 
-export type QueueKind = 'submitted' | 'approved' | 'suspended';
+export type QueueKind = 'submitted' | 'decision' | 'approved' | 'suspended';
 
 export const QUEUES: { kind: QueueKind; label: string; hint: string }[] = [
   { kind: 'submitted', label: 'Waiting for review', hint: 'oldest first' },
+  { kind: 'decision', label: 'Needs a decision', hint: 'approved, now failing a gate: suspend or return' },
   { kind: 'approved', label: 'Approved', hint: 'suspend one that is no longer safe' },
   { kind: 'suspended', label: 'Suspended', hint: 'reinstate when cleared' },
 ];
+
+/** What a queue lists: "needs a decision" is the approved spans that no longer pass their gates. */
+export function queueFilter(kind: QueueKind): { status: SpanStatus; perchable?: boolean } {
+  return kind === 'decision' ? { status: 'approved', perchable: false } : { status: kind };
+}
+
+/** The status of the spans a queue lists. */
+export const queueStatus = (kind: QueueKind): SpanStatus => queueFilter(kind).status;
 
 /** When a span entered the queue it is in: submission for the review queue, the last change otherwise. */
 export function queuedSince(span: Pick<Span, 'submittedAt' | 'approvedAt' | 'updatedAt'>, status: SpanStatus): string {

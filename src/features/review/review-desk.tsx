@@ -14,7 +14,7 @@ import { SpanAssessmentSlot } from '../spans/components/span-assessment-slot.tsx
 import { PhotoGallery } from '../photos/photo-gallery.tsx';
 import { ZoneConflicts } from './components/zone-conflicts.tsx';
 import { SpanHistory } from './components/span-history.tsx';
-import { commandForKey, orderQueue, QUEUES, queuedSince, waitingFor, type QueueKind } from './queue.ts';
+import { commandForKey, orderQueue, QUEUES, queuedSince, queueFilter, queueStatus, waitingFor, type QueueKind } from './queue.ts';
 
 type ReasonMode = 'return' | 'suspend';
 
@@ -24,8 +24,12 @@ const isTyping = (el: EventTarget | null) =>
 /** The safety officer's desk: a queue on the left, the selected span with everything needed to decide on the right. */
 export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => ReactNode } = {}) {
   const [kind, setKind] = useState<QueueKind>('submitted');
-  const list = useQuery(spanQueries.list({ status: kind, sort: 'updatedAt', pageSize: 200 }));
-  const spans = orderQueue(list.data?.items ?? [], kind);
+  const list = useQuery(spanQueries.list({ ...queueFilter(kind), sort: 'updatedAt', pageSize: 200 }));
+  const status = queueStatus(kind);
+  const spans = orderQueue(list.data?.items ?? [], status);
+  // How many approved spans need a decision, shown on their tab whichever queue is open.
+  const decisions = useQuery(spanQueries.list({ ...queueFilter('decision'), pageSize: 1 }));
+  const decisionCount = decisions.data?.total ?? 0;
   const [selectedId, setSelectedId] = useState<string | null>(null);
   const lastIndex = useRef(0);
   let index = spans.findIndex((s) => s.id === selectedId);
@@ -65,7 +69,7 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
     if (cmd === 'previous') return select(index - 1);
     if (!current || decide.isPending) return;
     if (cmd === 'approve' && current.status === 'submitted' && !(current.failingGates?.length)) decide.mutate({ action: 'approve', span: fresh(current) });
-    if (cmd === 'return' && current.status === 'submitted') setMode('return');
+    if (cmd === 'return' && (current.status === 'submitted' || current.needsDecision)) setMode('return');
     if (cmd === 'suspend' && current.status === 'approved') setMode('suspend');
     if (cmd === 'reinstate' && current.status === 'suspended') decide.mutate({ action: 'reinstate', span: fresh(current) });
   };
@@ -94,6 +98,9 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
               }}
             >
               {q.label}
+              {q.kind === 'decision' && decisionCount > 0 && (
+                <span className="ml-1.5 rounded-full bg-alarm px-2 py-0.5 text-xs font-bold text-white" aria-label={`${decisionCount} waiting`}>{decisionCount}</span>
+              )}
             </button>
           ))}
         </div>
@@ -110,7 +117,9 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
           {list.isPending ? (
             <p className="p-4">Loading…</p>
           ) : spans.length === 0 ? (
-            <p className="p-4 text-ink-700">{kind === 'submitted' ? 'Nothing waiting. The queue is clear.' : 'No spans here.'}</p>
+            <p className="p-4 text-ink-700">
+              {kind === 'submitted' ? 'Nothing waiting. The queue is clear.' : kind === 'decision' ? 'Every approved span still passes its gates.' : 'No spans here.'}
+            </p>
           ) : (
             <ol ref={listRef} aria-label="Spans in the queue" className="max-h-[70vh] divide-y divide-ink-100 overflow-y-auto">
               {spans.map((s, i) => (
@@ -125,9 +134,12 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
                     <span className="block font-semibold">{s.fromStructureLabel} → {s.toStructureLabel}</span>
                     <span className="block text-sm text-ink-700">{s.lineName}</span>
                     <span className="block text-sm">
-                      <span className="font-semibold">{kind === 'submitted' ? 'waiting' : 'since'} {waitingFor(queuedSince(s, kind))}</span>
+                      <span className="font-semibold">{kind === 'submitted' ? 'waiting' : 'since'} {waitingFor(queuedSince(s, status))}</span>
                       {s.assessment && <span className="text-ink-700"> · score {Math.round(s.assessment.score)}{s.assessment.perchable ? '' : ' · not perchable'}</span>}
                     </span>
+                    {s.needsDecision && (s.failingGates?.length ?? 0) > 0 && (
+                      <span className="block text-sm font-semibold text-alarm">Now fails {listWords(s.failingGates!.map((g) => g.label))}</span>
+                    )}
                   </button>
                 </li>
               ))}
@@ -135,7 +147,7 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
           )}
           {list.data && list.data.total > spans.length && (
             <p className="border-t border-ink-100 px-4 py-2 text-sm text-ink-700">
-              Showing the {spans.length} longest-waiting of {list.data.total}; the <Link to={`/spans?status=${kind}`} className="underline">spans table</Link> has them all.
+              Showing the {spans.length} longest-waiting of {list.data.total}; the <Link to={`/spans?status=${status}`} className="underline">spans table</Link> has them all.
             </p>
           )}
         </section>
@@ -155,6 +167,7 @@ function Shortcuts({ kind }: { kind: QueueKind }) {
     ['k / ↑', 'previous'],
     ...(kind === 'submitted' ? ([['a', 'approve'], ['r', 'return with a reason']] as [string, string][]) : []),
     ...(kind === 'approved' ? ([['s', 'suspend with a reason']] as [string, string][]) : []),
+    ...(kind === 'decision' ? ([['s', 'suspend with a reason'], ['r', 'return to the surveyor']] as [string, string][]) : []),
     ...(kind === 'suspended' ? ([['u', 'reinstate']] as [string, string][]) : []),
     ['Esc', 'cancel'],
   ];
@@ -326,6 +339,7 @@ function DecisionPanel({ span, mode, setMode, decide }: { span: Span; mode: Reas
             ))}
           </ul>
           {span.status === 'submitted' && <p className="mt-1">Return it to the surveyor with what to fix.</p>}
+          {span.status === 'approved' && <p className="mt-1">It is no longer offered to planners. Suspend it, or return it to the surveyor with what to change.</p>}
         </div>
       )}
       <div className="flex flex-wrap gap-2">
@@ -344,6 +358,11 @@ function DecisionPanel({ span, mode, setMode, decide }: { span: Span; mode: Reas
         {span.status === 'approved' && (
           <button type="button" className="btn-danger" aria-expanded={mode === 'suspend'} onClick={() => setMode(mode === 'suspend' ? null : 'suspend')}>
             Suspend with a reason <kbd className="text-xs opacity-70">s</kbd>
+          </button>
+        )}
+        {span.status === 'approved' && span.needsDecision && (
+          <button type="button" className="btn-ghost" aria-expanded={mode === 'return'} onClick={() => setMode(mode === 'return' ? null : 'return')}>
+            Return to surveyor <kbd className="text-xs opacity-70">r</kbd>
           </button>
         )}
         {span.status === 'suspended' && (
@@ -397,4 +416,9 @@ function DecisionPanel({ span, mode, setMode, decide }: { span: Span; mode: Reas
       )}
     </section>
   );
+}
+
+/** "a", "a and b", "a, b and c". */
+function listWords(words: string[]): string {
+  return words.length > 1 ? `${words.slice(0, -1).join(', ')} and ${words[words.length - 1]}` : (words[0] ?? '');
 }
