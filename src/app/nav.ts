@@ -1,4 +1,4 @@
-import type { Role } from '#shared/roles.ts';
+import { homeFor, type Role } from '#shared/roles.ts';
 
 export interface NavItem {
   to: string;
@@ -24,9 +24,16 @@ export const NAV_ITEMS: NavItem[] = [
   { to: '/admin/scoring', label: 'Scoring', roles: ['admin'] },
   { to: '/evidence', label: 'Load evidence', roles: ['admin', 'safety', 'planner'] },
   { to: '/calculators', label: 'Calculators' },
-  { to: '/account', label: 'Account' },
 ];
 
+/** How many entries stay in the bar at tablet width (820 px) and on a wide screen (≥ 1280 px); the rest go under "More". */
+export const INLINE_TABLET = 4;
+export const INLINE_WIDE = 8;
+
+/** The role's places, its own home first, then Spans and Map, then the rest in list order. */
 export function navFor(roles: readonly Role[]) {
-  return NAV_ITEMS.filter((i) => !i.roles || i.roles.some((r) => roles.includes(r)));
+  const mine = NAV_ITEMS.filter((i) => !i.roles || i.roles.some((r) => roles.includes(r)));
+  const home = homeFor(roles);
+  const rank = (i: NavItem) => (i.to === home ? 0 : i.to === '/spans' ? 1 : i.to === '/map' ? 2 : 3);
+  return mine.map((item, index) => ({ item, index })).sort((a, b) => rank(a.item) - rank(b.item) || a.index - b.index).map((x) => x.item);
 }

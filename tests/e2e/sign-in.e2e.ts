@@ -27,6 +27,7 @@ describe('sign-in journeys', () => {
     for (const other of HOMES.filter((x) => x.role !== role)) {
       expect(nav).not.toContain(other.heading === 'Field queue' ? 'My spans' : other.heading);
     }
+    await page.getByTestId('who').click();
     await page.getByRole('button', { name: 'Sign out' }).click();
     await page.waitForURL((u) => u.pathname === '/sign-in');
     await context.close();

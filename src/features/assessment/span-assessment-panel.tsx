@@ -6,7 +6,7 @@ import { formatQuantity } from '#shared/units.ts';
 import { loadSourceLabel } from '#shared/schemas/assessment.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
-import { dateTime, duration, gateDetail, number, percent, score } from '../../lib/format.ts';
+import { codeWords, dateTime, duration, gateDetail, number, percent, score } from '../../lib/format.ts';
 import { DailyPowerChart, FactorContributionChart, PowerVsCurrentChart } from './charts.tsx';
 import { assessmentQueries, FACTOR_LABELS, GATE_LABELS } from './queries.ts';
 
@@ -53,7 +53,7 @@ export function SpanAssessmentPanel({ spanId }: { spanId: string }) {
           </select>
         </label>
         <p className="text-sm text-ink-700">
-          Method {a.methodVersion}, settings v{a.settingsVersion}, harvester v{a.harvesterVersion}, drone v{a.droneVersion}; computed {dateTime(a.computedAt)}
+          {codeWords(a.methodVersion.split('/')[0])} method {a.methodVersion.split('/')[1] ?? ''}, settings v{a.settingsVersion}, harvester v{a.harvesterVersion}, drone v{a.droneVersion}; computed {dateTime(a.computedAt)}
         </p>
       </div>
 

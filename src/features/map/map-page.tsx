@@ -174,7 +174,7 @@ export function MapPage() {
         </Link>
       </div>
       <Caution compact />
-      <div className="grid gap-3 lg:grid-cols-[20rem_1fr]">
+      <div className="grid gap-3 md:grid-cols-[17rem_1fr] lg:grid-cols-[20rem_1fr]">
         <aside className="space-y-3" aria-label="Map controls">
           <section className="card space-y-3 p-3" aria-label="Filters">
             <div>
@@ -278,7 +278,7 @@ export function MapPage() {
           )}
           <MapLegend colourBy={filters.colourBy} />
         </aside>
-        <div className="relative h-[70vh] min-h-[420px] overflow-hidden rounded-xl border border-ink-200 lg:h-[calc(100vh-13rem)]" data-testid="map" data-map-ready={ready ? 'true' : 'false'}>
+        <div className="relative h-[70vh] min-h-[420px] overflow-hidden rounded-xl border border-ink-200 md:sticky md:top-2 md:h-[calc(100vh-13rem)]" data-testid="map" data-map-ready={ready ? 'true' : 'false'}>
           <MapView
             ref={mapRef}
             mapStyle={`${location.origin}/map/style.json`}

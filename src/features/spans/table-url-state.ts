@@ -24,20 +24,23 @@ export const DEFAULT_SORTING: SortingState = [{ id: 'updatedAt', desc: true }];
 
 /** Columns the table can show; `defaultVisible` ones show when the URL names none. */
 export const SPAN_COLUMNS = [
+  // Harvest and score right after the status: on a tablet they are what a reader looks for first.
   { id: 'label', title: 'Span', defaultVisible: true, sortable: false },
   { id: 'status', title: 'Status', defaultVisible: true, sortable: true },
-  { id: 'line', title: 'Line', defaultVisible: true, sortable: true },
-  { id: 'lengthM', title: 'Length', defaultVisible: true, sortable: true },
-  { id: 'conductor', title: 'Conductor', defaultVisible: true, sortable: false },
+  { id: 'harvestW', title: 'Harvest', defaultVisible: true, sortable: true },
+  { id: 'score', title: 'Score', defaultVisible: true, sortable: true },
   { id: 'clearanceM', title: 'Clearance', defaultVisible: true, sortable: true },
+  { id: 'lengthM', title: 'Length', defaultVisible: true, sortable: true },
+  { id: 'line', title: 'Line', defaultVisible: true, sortable: true },
+  { id: 'conductor', title: 'Conductor', defaultVisible: true, sortable: false },
   { id: 'loadCurrentA', title: 'Load', defaultVisible: false, sortable: true },
   { id: 'terrain', title: 'Terrain', defaultVisible: false, sortable: false },
   { id: 'hazards', title: 'Hazards', defaultVisible: false, sortable: false },
-  { id: 'harvestW', title: 'Harvest', defaultVisible: true, sortable: true },
-  { id: 'score', title: 'Score', defaultVisible: true, sortable: true },
   { id: 'surveyDate', title: 'Surveyed', defaultVisible: false, sortable: true },
   { id: 'updatedAt', title: 'Updated', defaultVisible: true, sortable: true },
 ] as const;
+/** Default columns left out below 1024 px (the 820 px tablet) unless the reader chose columns: the line is in the filters, the conductor and update time on the span page. */
+export const WIDE_ONLY_COLUMNS: ReadonlySet<string> = new Set(['line', 'conductor', 'updatedAt']);
 export type SpanColumnId = (typeof SPAN_COLUMNS)[number]['id'];
 const COLUMN_IDS = new Set<string>(SPAN_COLUMNS.map((c) => c.id));
 const SORTABLE_IDS = new Set<string>(SPAN_COLUMNS.filter((c) => c.sortable).map((c) => c.id));

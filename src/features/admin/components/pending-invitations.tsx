@@ -1,3 +1,4 @@
+import { useEffect, useState } from 'react';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { ROLE_LABELS } from '#shared/roles.ts';
 import { adminApi } from '../api.ts';
@@ -8,8 +9,16 @@ export function PendingInvitations() {
   const queryClient = useQueryClient();
   const { data, isPending } = useQuery(adminQueries.invitations());
   const done = () => queryClient.invalidateQueries({ queryKey: adminQueries.all });
-  const resend = useMutation({ mutationFn: adminApi.resendInvitation, onSuccess: done });
-  const revoke = useMutation({ mutationFn: adminApi.revokeInvitation, onSuccess: done });
+  const [said, setSaid] = useState<string | null>(null);
+  // Withdrawing asks once more in the same place: the button turns into its own confirmation for a few seconds.
+  const [confirming, setConfirming] = useState<string | null>(null);
+  useEffect(() => {
+    if (!confirming) return;
+    const t = setTimeout(() => setConfirming(null), 6000);
+    return () => clearTimeout(t);
+  }, [confirming]);
+  const resend = useMutation({ mutationFn: adminApi.resendInvitation, onSuccess: async (_r, id) => { await done(); setSaid(`A new link went to ${data?.items.find((i) => i.id === id)?.email ?? 'the invitee'}.`); } });
+  const revoke = useMutation({ mutationFn: adminApi.revokeInvitation, onSuccess: async (_r, id) => { const email = data?.items.find((i) => i.id === id)?.email; await done(); setSaid(`The invitation to ${email ?? 'the invitee'} is withdrawn; its link no longer works.`); } });
   const items = data?.items ?? [];
   return (
     <section aria-labelledby="pending-title" className="card">
@@ -29,13 +38,21 @@ export function PendingInvitations() {
                   {inv.invitedByName && ` · invited by ${inv.invitedByName}`}
                 </p>
               </div>
-              <button type="button" className="btn-ghost" disabled={resend.isPending} onClick={() => resend.mutate(inv.id)}>Send again</button>
-              <button type="button" className="btn-ghost" disabled={revoke.isPending} onClick={() => window.confirm(`Withdraw the invitation to ${inv.email}?`) && revoke.mutate(inv.id)}>Withdraw</button>
+              <button type="button" className="btn-ghost w-28" disabled={resend.isPending} onClick={() => resend.mutate(inv.id)}>Send again</button>
+              <button
+                type="button"
+                className={`w-28 ${confirming === inv.id ? 'btn-danger' : 'btn-ghost'}`}
+                disabled={revoke.isPending}
+                onClick={() => (confirming === inv.id ? (setConfirming(null), revoke.mutate(inv.id)) : setConfirming(inv.id))}
+              >
+                {confirming === inv.id ? 'Withdraw it?' : 'Withdraw'}
+              </button>
             </li>
           ))}
         </ul>
       )}
       {(resend.error || revoke.error) && <p role="alert" className="field-error">{(resend.error ?? revoke.error)!.message}</p>}
+      <p role="status" className="min-h-5 text-sm text-ink-700">{said}</p>
     </section>
   );
 }

@@ -24,12 +24,13 @@ import {
   searchFromTableState,
   SPAN_COLUMNS,
   tableStateFromSearch,
+  WIDE_ONLY_COLUMNS,
   withFilters,
   type SpanFilters,
   type SpansTableState,
 } from '../table-url-state.ts';
 import { StatusBadge } from './status-badge.tsx';
-import { count, dateTime } from '../../../lib/format.ts';
+import { count, date, dateTime, score } from '../../../lib/format.ts';
 
 const col = createColumnHelper<Span>();
 
@@ -53,17 +54,6 @@ function buildColumns(system: UnitSystem) {
       ),
     }),
     col.accessor('status', { header: title('status'), cell: (c) => <StatusBadge status={c.getValue()} /> }),
-    col.accessor('lineName', { id: 'line', header: title('line') }),
-    col.accessor('lengthM', { header: title('lengthM'), cell: (c) => formatQuantity(c.getValue(), 'length', system), meta: { numeric: true } }),
-    col.display({ id: 'conductor', header: title('conductor'), cell: ({ row }) => conductorText(row.original, system) }),
-    col.accessor('clearanceM', { header: title('clearanceM'), cell: (c) => formatQuantity(c.getValue(), 'length', system), meta: { numeric: true } }),
-    col.accessor('loadCurrentA', {
-      header: title('loadCurrentA'),
-      cell: (c) => `${formatQuantity(c.getValue(), 'current', system)}${c.row.original.loadCurrentSource === 'line' ? ' (line)' : ''}`,
-      meta: { numeric: true },
-    }),
-    col.accessor('terrain', { header: title('terrain'), cell: (c) => (c.getValue() ? TERRAIN_LABELS[c.getValue()!] : '—') }),
-    col.display({ id: 'hazards', header: title('hazards'), cell: ({ row }) => row.original.hazards.length, meta: { numeric: true } }),
     col.accessor((s) => s.assessment?.harvestW ?? null, { id: 'harvestW', header: title('harvestW'), cell: (c) => formatQuantity(c.getValue(), 'power', system), meta: { numeric: true } }),
     col.accessor((s) => s.assessment?.score ?? null, {
       id: 'score',
@@ -73,14 +63,25 @@ function buildColumns(system: UnitSystem) {
         if (!a) return '—';
         return (
           <span title={a.perchable ? 'Passes every gate' : 'Fails a gate: not perchable'}>
-            {Math.round(a.score)}
+            {score(a.score)}
             {!a.perchable && <span className="ml-1 text-alarm" aria-label="not perchable">✕</span>}
           </span>
         );
       },
       meta: { numeric: true },
     }),
-    col.accessor('surveyDate', { header: title('surveyDate'), cell: (c) => c.getValue() ?? '—' }),
+    col.accessor('clearanceM', { header: title('clearanceM'), cell: (c) => formatQuantity(c.getValue(), 'length', system), meta: { numeric: true } }),
+    col.accessor('lengthM', { header: title('lengthM'), cell: (c) => formatQuantity(c.getValue(), 'length', system), meta: { numeric: true } }),
+    col.accessor('lineName', { id: 'line', header: title('line') }),
+    col.display({ id: 'conductor', header: title('conductor'), cell: ({ row }) => conductorText(row.original, system) }),
+    col.accessor('loadCurrentA', {
+      header: title('loadCurrentA'),
+      cell: (c) => `${formatQuantity(c.getValue(), 'current', system)}${c.row.original.loadCurrentSource === 'line' ? ' (line)' : ''}`,
+      meta: { numeric: true },
+    }),
+    col.accessor('terrain', { header: title('terrain'), cell: (c) => (c.getValue() ? TERRAIN_LABELS[c.getValue()!] : '—') }),
+    col.display({ id: 'hazards', header: title('hazards'), cell: ({ row }) => row.original.hazards.length, meta: { numeric: true } }),
+    col.accessor('surveyDate', { header: title('surveyDate'), cell: (c) => date(c.getValue()) }),
     col.accessor('updatedAt', { header: title('updatedAt'), cell: (c) => dateTime(c.getValue()) }),
   ];
 }
@@ -131,6 +132,9 @@ export function SpansTablePage() {
     onPaginationChange,
     onColumnVisibilityChange,
   });
+  // Columns the reader did not choose: below 1024 px the wide-only ones step aside so harvest and score fit.
+  const chosen = params.has('cols');
+  const narrowHidden = (id: string) => (!chosen && WIDE_ONLY_COLUMNS.has(id) ? 'hidden lg:table-cell' : '');
   const sortable = new Set<string>(SPAN_COLUMNS.filter((c) => c.sortable).map((c) => c.id));
   const setFilters = (patch: Partial<SpanFilters>) => setState((s) => withFilters(s, patch));
 
@@ -173,7 +177,7 @@ export function SpansTablePage() {
                       key={h.id}
                       scope="col"
                       aria-sort={sorted === 'asc' ? 'ascending' : sorted === 'desc' ? 'descending' : undefined}
-                      className={`border-b border-ink-200 px-3 py-2 font-semibold ${numeric ? 'text-right' : ''}`}
+                      className={`border-b border-ink-200 px-3 py-2 font-semibold ${numeric ? 'text-right' : ''} ${narrowHidden(h.column.id)}`}
                     >
                       {sortable.has(h.column.id) ? (
                         <button type="button" className="inline-flex min-h-11 items-center gap-1 hover:underline" onClick={h.column.getToggleSortingHandler()}>
@@ -195,7 +199,7 @@ export function SpansTablePage() {
                 {row.getVisibleCells().map((cell) => {
                   const numeric = (cell.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
                   return (
-                    <td key={cell.id} className={`whitespace-nowrap px-3 py-2 ${numeric ? 'text-right tabular-nums' : ''}`}>
+                    <td key={cell.id} className={`whitespace-nowrap px-3 py-2 ${numeric ? 'text-right tabular-nums' : ''} ${narrowHidden(cell.column.id)}`}>
                       {flexRender(cell.column.columnDef.cell, cell.getContext())}
                     </td>
                   );
