@@ -127,6 +127,17 @@ async function measure(spans: number): Promise<Record<string, string>> {
     out.list = `p50 ${f1(pct(times, 50))} / p95 ${f1(pct(times, 95))} ms`;
     out['list baseline'] = `p50 ${f1(pct(bare, 50))} / p95 ${f1(pct(bare, 95))} ms bare SQL`;
     out['RSS idle'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process)`;
+    // Reads while a full rescore runs (one client, one page after another, until the rescore ends).
+    let rescoring = true;
+    const during: number[] = [];
+    const again = assessSpansBulk(orm.em.fork(), undefined, { clearBetweenBatches: true }).finally(() => (rescoring = false));
+    while (rescoring) {
+      const s0 = performance.now();
+      await fetch(`${base}/api/spans?status=approved&sort=-updatedAt&pageSize=50&page=${pages[during.length % pages.length]}`, { headers: { cookie } }).then((r) => r.json());
+      during.push(performance.now() - s0);
+    }
+    await again;
+    out['list during rescore'] = `p50 ${f1(pct(during, 50))} / p95 ${f1(pct(during, 95))} ms (${during.length} pages answered)`;
     server.close();
     await close();
 

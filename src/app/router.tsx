@@ -1,33 +1,20 @@
 import { createBrowserRouter } from 'react-router';
 import { AppLayout } from './layout.tsx';
 import { homeRedirect, requireSession, RoleGate, RouteErrorBoundary, signInLoader } from './route-guards.tsx';
+import type { ReactNode } from 'react';
 import { SignInPage } from '../features/auth/sign-in-page.tsx';
-import { AccountPage } from '../features/account/account-page.tsx';
 import { RoleHome } from '../features/home/role-home.tsx';
-import { PlanningHome } from '../features/planning/planning-home.tsx';
 import { StatusPage } from '../components/status-page.tsx';
-import { MySpansQueue } from '../features/field/components/my-spans-queue.tsx';
-import { SpanFormPage } from '../features/field/span-form-page.tsx';
-import { SpansTablePage } from '../features/spans/components/spans-table-page.tsx';
-import { SpanDetailPage } from '../features/spans/components/span-detail-page.tsx';
-import { spanDetailPhotosSlot, spanFormPhotoSlot } from '../features/photos/slots.tsx';
-import { ImportPage } from '../features/import/components/import-page.tsx';
-import { CalculatorsPage } from '../features/calculators/calculators-page.tsx';
-import { ProfilesPage } from '../features/profiles/profiles-page.tsx';
-import { ScoringSettingsPage } from '../features/profiles/scoring-page.tsx';
-import { AdminHome } from '../features/admin/admin-home.tsx';
-import { OutboxPage } from '../features/admin/outbox-page.tsx';
-import { AuditLogPage } from '../features/admin/audit-log-page.tsx';
-import { AcceptInvitationPage } from '../features/auth/accept-invitation-page.tsx';
-import { ResetPasswordPage } from '../features/auth/reset-password-page.tsx';
-import { ForgotPasswordPage } from '../features/auth/forgot-password-page.tsx';
-import { ReviewDesk } from '../features/review/review-desk.tsx';
-import { EvidenceLinesPage } from '../features/evidence/components/evidence-lines-page.tsx';
-import { LineEvidencePage } from '../features/evidence/components/line-evidence-page.tsx';
-import { FlightRecordPage } from '../features/evidence/components/flight-record-page.tsx';
-import { spanEvidenceSlot } from '../features/evidence/slots.tsx';
-import { MissionsListPage } from '../features/missions/missions-list-page.tsx';
-import { LinePage, LinesPage } from '../features/lines/line-page.tsx';
+
+/**
+ * Route-level code splitting: each page (with what only it uses) is its own chunk, loaded when the route is first
+ * opened, so the first screen downloads the shell and the sign-in page only.
+ */
+function page<M>(load: () => Promise<M>, render: (m: M) => ReactNode) {
+  return async () => ({ element: render(await load()) });
+}
+const field = () => Promise.all([import('../features/field/span-form-page.tsx'), import('../features/photos/slots.tsx')]);
+const evidenceSlot = () => import('../features/evidence/slots.tsx');
 
 function Loading() {
   return <p className="p-8 text-center text-ink-700">Loading…</p>;
@@ -39,9 +26,9 @@ export const router = createBrowserRouter([
     ErrorBoundary: RouteErrorBoundary,
     children: [
       { path: '/sign-in', loader: signInLoader, Component: SignInPage },
-      { path: '/accept-invitation', Component: AcceptInvitationPage },
-      { path: '/reset-password', Component: ResetPasswordPage },
-      { path: '/forgot-password', Component: ForgotPasswordPage },
+      { path: '/accept-invitation', lazy: page(() => import('../features/auth/accept-invitation-page.tsx'), (m) => <m.AcceptInvitationPage />) },
+      { path: '/reset-password', lazy: page(() => import('../features/auth/reset-password-page.tsx'), (m) => <m.ResetPasswordPage />) },
+      { path: '/forgot-password', lazy: page(() => import('../features/auth/forgot-password-page.tsx'), (m) => <m.ForgotPasswordPage />) },
       {
         path: '/',
         loader: requireSession,
@@ -49,32 +36,32 @@ export const router = createBrowserRouter([
         ErrorBoundary: RouteErrorBoundary,
         children: [
           { index: true, loader: homeRedirect },
-          { path: 'field', element: <RoleGate roles={['surveyor']}><RoleHome role="surveyor"><MySpansQueue /></RoleHome></RoleGate> },
-          { path: 'field/spans/new', element: <RoleGate roles={['surveyor']}><SpanFormPage photoSlot={spanFormPhotoSlot} /></RoleGate> },
-          { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><SpanFormPage photoSlot={spanFormPhotoSlot} /></RoleGate> },
-          { path: 'spans', Component: SpansTablePage },
+          { path: 'field', lazy: page(() => import('../features/field/components/my-spans-queue.tsx'), (m) => <RoleGate roles={['surveyor']}><RoleHome role="surveyor"><m.MySpansQueue /></RoleHome></RoleGate>) },
+          { path: 'field/spans/new', lazy: page(field, ([f, p]) => <RoleGate roles={['surveyor']}><f.SpanFormPage photoSlot={p.spanFormPhotoSlot} /></RoleGate>) },
+          { path: 'field/spans/:id/edit', lazy: page(field, ([f, p]) => <RoleGate roles={['surveyor']}><f.SpanFormPage photoSlot={p.spanFormPhotoSlot} /></RoleGate>) },
+          { path: 'spans', lazy: page(() => import('../features/spans/components/spans-table-page.tsx'), (m) => <m.SpansTablePage />) },
           { path: 'map', lazy: () => import('../features/map/map-page.tsx') },
-          { path: 'spans/:id', element: <SpanDetailPage photosSlot={spanDetailPhotosSlot} evidenceSlot={spanEvidenceSlot} /> },
-          { path: 'import', element: <RoleGate roles={['surveyor', 'admin']}><ImportPage /></RoleGate> },
-          { path: 'review', element: <RoleGate roles={['safety']}><RoleHome role="safety"><ReviewDesk evidenceSlot={spanEvidenceSlot} /></RoleHome></RoleGate> },
-          { path: 'planning', element: <RoleGate roles={['planner']}><RoleHome role="planner"><PlanningHome /></RoleHome></RoleGate> },
-          { path: 'lines', Component: LinesPage },
-          { path: 'lines/:id', Component: LinePage },
-          { path: 'missions', Component: MissionsListPage },
+          { path: 'spans/:id', lazy: page(() => Promise.all([import('../features/spans/components/span-detail-page.tsx'), import('../features/photos/slots.tsx'), evidenceSlot()]), ([d, p, e]) => <d.SpanDetailPage photosSlot={p.spanDetailPhotosSlot} evidenceSlot={e.spanEvidenceSlot} />) },
+          { path: 'import', lazy: page(() => import('../features/import/components/import-page.tsx'), (m) => <RoleGate roles={['surveyor', 'admin']}><m.ImportPage /></RoleGate>) },
+          { path: 'review', lazy: page(() => Promise.all([import('../features/review/review-desk.tsx'), evidenceSlot()]), ([r, e]) => <RoleGate roles={['safety']}><RoleHome role="safety"><r.ReviewDesk evidenceSlot={e.spanEvidenceSlot} /></RoleHome></RoleGate>) },
+          { path: 'planning', lazy: page(() => import('../features/planning/planning-home.tsx'), (m) => <RoleGate roles={['planner']}><RoleHome role="planner"><m.PlanningHome /></RoleHome></RoleGate>) },
+          { path: 'lines', lazy: page(() => import('../features/lines/line-page.tsx'), (m) => <m.LinesPage />) },
+          { path: 'lines/:id', lazy: page(() => import('../features/lines/line-page.tsx'), (m) => <m.LinePage />) },
+          { path: 'missions', lazy: page(() => import('../features/missions/missions-list-page.tsx'), (m) => <m.MissionsListPage />) },
           // The plan screen carries the map library: its own lazy chunk.
           { path: 'missions/new', lazy: async () => { const m = await import('../features/missions/plan-page.tsx'); return { element: <RoleGate roles={['planner']}><m.PlanPage /></RoleGate> }; } },
           { path: 'missions/:id', lazy: () => import('../features/missions/plan-page.tsx') },
           { path: 'missions/:id/brief', lazy: () => import('../features/missions/mission-brief-page.tsx') },
-          { path: 'admin', element: <RoleGate roles={['admin']}><RoleHome role="admin"><AdminHome /></RoleHome></RoleGate> },
-          { path: 'admin/outbox', element: <RoleGate roles={['admin']}><OutboxPage /></RoleGate> },
-          { path: 'admin/profiles', element: <RoleGate roles={['admin']}><ProfilesPage /></RoleGate> },
-          { path: 'admin/scoring', element: <RoleGate roles={['admin']}><ScoringSettingsPage /></RoleGate> },
-          { path: 'calculators', Component: CalculatorsPage },
-          { path: 'evidence', Component: EvidenceLinesPage },
-          { path: 'evidence/lines/:id', Component: LineEvidencePage },
-          { path: 'evidence/flights/:id', Component: FlightRecordPage },
-          { path: 'admin/audit', element: <RoleGate roles={['admin', 'safety']}><AuditLogPage /></RoleGate> },
-          { path: 'account', Component: AccountPage },
+          { path: 'admin', lazy: page(() => import('../features/admin/admin-home.tsx'), (m) => <RoleGate roles={['admin']}><RoleHome role="admin"><m.AdminHome /></RoleHome></RoleGate>) },
+          { path: 'admin/outbox', lazy: page(() => import('../features/admin/outbox-page.tsx'), (m) => <RoleGate roles={['admin']}><m.OutboxPage /></RoleGate>) },
+          { path: 'admin/profiles', lazy: page(() => import('../features/profiles/profiles-page.tsx'), (m) => <RoleGate roles={['admin']}><m.ProfilesPage /></RoleGate>) },
+          { path: 'admin/scoring', lazy: page(() => import('../features/profiles/scoring-page.tsx'), (m) => <RoleGate roles={['admin']}><m.ScoringSettingsPage /></RoleGate>) },
+          { path: 'calculators', lazy: page(() => import('../features/calculators/calculators-page.tsx'), (m) => <m.CalculatorsPage />) },
+          { path: 'evidence', lazy: page(() => import('../features/evidence/components/evidence-lines-page.tsx'), (m) => <m.EvidenceLinesPage />) },
+          { path: 'evidence/lines/:id', lazy: page(() => import('../features/evidence/components/line-evidence-page.tsx'), (m) => <m.LineEvidencePage />) },
+          { path: 'evidence/flights/:id', lazy: page(() => import('../features/evidence/components/flight-record-page.tsx'), (m) => <m.FlightRecordPage />) },
+          { path: 'admin/audit', lazy: page(() => import('../features/admin/audit-log-page.tsx'), (m) => <RoleGate roles={['admin', 'safety']}><m.AuditLogPage /></RoleGate>) },
+          { path: 'account', lazy: page(() => import('../features/account/account-page.tsx'), (m) => <m.AccountPage />) },
           { path: '*', element: <StatusPage code={404} title="Nothing here" message="That page does not exist." /> },
         ],
       },

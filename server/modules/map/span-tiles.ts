@@ -5,6 +5,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import type { MikroORM } from '@mikro-orm/sqlite';
 import vtpbf from 'vt-pbf';
 import { defaultAssessmentPair, tableExists } from '../inventory/inventory.service.ts';
+import { dataVersion } from '../../sql/data-version.ts';
 import { marks, sql } from '../../sql/query.ts';
 
 export const TILE_EXTENT = 4096;
@@ -21,6 +22,8 @@ const GRID_DEG = 0.01;
 /** The database fingerprint (catches changes made without a listener, e.g. background rescoring) is read this often, in the background. */
 const FINGERPRINT_EVERY_MS = 2000;
 const MAX_CACHED_TILES = 4000;
+/** And at most this many bytes of them (low-zoom tiles of a dense network are large); least recently used out. */
+const MAX_CACHED_BYTES = 64 * 1024 * 1024;
 
 /** The filters the map shares with the spans table (same names as its URL parameters). */
 export interface SpanMapFilters {
@@ -107,6 +110,9 @@ export class SpanTileService {
   private version = 1;
   private snapshots = new Map<string, Promise<Snapshot>>();
   private cache = new Map<string, Buffer>();
+  private cacheBytes = 0;
+  /** The database's data version at the last sync: an unchanged version needs no fingerprint (its counts scan tables). */
+  private seenVersion: string | null = null;
   private syncing: Promise<void> = Promise.resolve();
   private watcher: NodeJS.Timeout | null = null;
   private closed = false;
@@ -119,7 +125,8 @@ export class SpanTileService {
   invalidate() {
     this.version += 1;
     this.snapshots.clear();
-    this.cache.clear();
+    this.clearCache();
+    this.seenVersion = null;
     this.defaultPair = null;
   }
 
@@ -151,7 +158,11 @@ export class SpanTileService {
   private async sync() {
     if (this.closed || this.snapshots.size === 0) return;
     const em = this.orm.em.fork();
+    // Read before the fingerprint: a write after it moves the version again, so the next sync looks.
+    const version = await dataVersion(em);
+    if (version === this.seenVersion) return;
     const next = await this.readFingerprint(em);
+    this.seenVersion = version;
     let changed = false;
     for (const [key, promise] of [...this.snapshots]) {
       const snap = await promise.catch(() => null);
@@ -162,9 +173,14 @@ export class SpanTileService {
     }
     if (changed) {
       this.version += 1;
-      this.cache.clear();
+      this.clearCache();
       this.defaultPair = null;
     }
+  }
+
+  private clearCache() {
+    this.cache.clear();
+    this.cacheBytes = 0;
   }
 
   /** Patches one snapshot from `snap.fp` up to `next`; false when it must be re-read whole instead. */
@@ -323,14 +339,24 @@ export class SpanTileService {
     const hit = this.cache.get(key);
     if (hit) {
       this.stats.hits += 1;
+      // Least recently used goes first: a hit moves to the end.
+      this.cache.delete(key);
+      this.cache.set(key, hit);
       return hit;
     }
     const snap = await this.loadSnapshot(resolved);
     const bytes = Buffer.from(buildTile(snap, z, x, y, filters));
     this.stats.builds += 1;
     if (version === this.version) {
-      if (this.cache.size >= MAX_CACHED_TILES) this.cache.delete(this.cache.keys().next().value!);
+      while (this.cache.size && (this.cache.size >= MAX_CACHED_TILES || this.cacheBytes + bytes.length > MAX_CACHED_BYTES)) {
+        const [oldest, old] = this.cache.entries().next().value!;
+        this.cache.delete(oldest);
+        this.cacheBytes -= old.length;
+      }
+      const prev = this.cache.get(key);
+      if (prev) this.cacheBytes -= prev.length;
       this.cache.set(key, bytes);
+      this.cacheBytes += bytes.length;
     }
     return bytes;
   }
