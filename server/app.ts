@@ -23,6 +23,7 @@ import { photosRouter } from './modules/photos/photo.router.ts';
 import { assessmentRouters } from './modules/assessment/index.ts';
 import { evidenceRouter } from './modules/evidence/evidence.router.ts';
 import { missionsRouter } from './modules/missions/missions.router.ts';
+import { missionExportsRouter } from './modules/missions/export.router.ts';
 import { linePermissionsRouter } from './modules/line-permissions/line-permissions.router.ts';
 
 export interface CreateAppOptions {
@@ -77,7 +78,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist') }: Cre
   app.use('/api/photos', photosRouter(ctx));
   app.use(assessmentRouters(ctx));
   app.use(evidenceRouter(ctx));
-  app.use('/api/missions', missionsRouter(ctx));
+  app.use('/api/missions', missionsRouter(ctx), missionExportsRouter(ctx));
   app.use(mapRouter(ctx));
   app.use('/api', notFoundHandler);
 

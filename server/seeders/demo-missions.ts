@@ -6,9 +6,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import { generateIdFromEntropySize } from 'lucia';
 import { DEMO_TOWNS } from '#shared/demo-region.ts';
 import { KESTREL_CORE, SWIFT_QUAD } from '#shared/engineering/demo-profiles.ts';
-import { ensureAssessmentDefaults } from '../modules/assessment/profiles.service.ts';
-import { assessSpans } from '../modules/assessment/assessment.service.ts';
-import { planContext, planMission } from '../modules/missions/plan.service.ts';
+import { authoriseMission, createMission } from '../modules/missions/missions.service.ts';
 import { User } from '../modules/auth/user.entity.ts';
 import { Line } from '../modules/inventory/line.entity.ts';
 import { LinePermission } from '../modules/line-permissions/line-permission.entity.ts';
@@ -86,14 +84,18 @@ export async function seedDemoPermissions(em: EntityManager, now = new Date()): 
 }
 
 /**
- * Assesses the demo spans (so the planner has perches from the first request, instead of waiting for the start-up
- * rescore) and plans the demo mission with the server's own planner. Returns the plan result.
+ * Saves the demo mission as the demo planner, planned by the server's own planner over the assessed demo spans, and
+ * has the demo safety officer authorise it. Returns the mission, or null (with a warning) when the demo data leaves
+ * no route. Runs after the spans are assessed (seedDemoDecisions).
  */
-export async function planDemoMission(em: EntityManager, now = new Date()) {
-  await ensureAssessmentDefaults(em);
-  await assessSpans(em);
-  const request = { ...DEMO_MISSION, departAt: demoDepartAt(now) };
-  const ctx = await planContext(em, request);
-  const outcome = await planMission(em, request, ctx);
-  return { request, outcome };
+export async function seedDemoMission(em: EntityManager, now = new Date()) {
+  const [planner, safety] = await Promise.all([em.findOne(User, { email: 'planner@roostline.test' }), em.findOne(User, { email: 'safety@roostline.test' })]);
+  if (!planner || !safety) return null;
+  try {
+    const saved = await createMission(em, planner, { ...DEMO_MISSION, departAt: demoDepartAt(now) });
+    return await authoriseMission(em, safety, saved.id, saved.version);
+  } catch (err) {
+    console.warn(`The demo mission was not seeded: ${err instanceof Error ? err.message : String(err)}`);
+    return null;
+  }
 }

@@ -3,7 +3,7 @@ import { User } from '../modules/auth/user.entity.ts';
 import { seedDemoUsers } from './demo-users.ts';
 import { seedDemoInventory } from './demo-inventory.ts';
 import { seedDemoLoadSeries } from './demo-load-series.ts';
-import { planDemoMission, seedDemoPermissions } from './demo-missions.ts';
+import { seedDemoMission, seedDemoPermissions } from './demo-missions.ts';
 import { seedDemoDecisions } from './demo-decisions.ts';
 
 /** Seeds the demo scenario into an empty database (no users yet); returns whether it did. */
@@ -22,5 +22,5 @@ export async function seedDemoScenario(em: EntityManager, now = new Date()): Pro
   // Assesses the inventory (so a start finds it current) and settles approvals that fail a blocking gate.
   await seedDemoDecisions(em);
   await seedDemoPermissions(em, now);
-  await planDemoMission(em, now);
+  await seedDemoMission(em, now);
 }

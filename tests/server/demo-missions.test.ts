@@ -51,4 +51,23 @@ describe('demo missions', () => {
     expect(feeder[0].expired).toBe(true);
     expect(feeder[0].conditions).not.toBe('');
   });
+
+  it('when a newcomer opens the missions, then the demo mission is saved, authorised by safety, holds, and perches at least twice', async () => {
+    const list = (await planner.get('/api/missions')).body.items as { id: string; name: string }[];
+    const demo = list.find((m) => m.name === DEMO_MISSION.name);
+    expect(demo).toBeDefined();
+    const m = (await planner.get(`/api/missions/${demo!.id}`)).body;
+    expect(m.stale).toBe(false);
+    expect(m.status).toBe('authorised');
+    expect(m.authorisedByName).toBe('Bram Okonkwo-Reyes');
+    expect(m.plannerName).toBe('Sunniva Marsh');
+    expect(m.plan.feasible).toBe(true);
+    expect(m.plan.perches.length).toBeGreaterThanOrEqual(2);
+    expect(m.departAt).toBe(demoDepartAt(now));
+    // Its exports open: one route point per base, perch and job site.
+    const gpx = await planner.get(`/api/missions/${demo!.id}/export.gpx`);
+    expect(gpx.status).toBe(200);
+    expect(gpx.text.match(/<rtept /g)).toHaveLength(m.plan.perches.length + 2);
+  });
 });
+

@@ -180,3 +180,49 @@ describe('KML export', () => {
     if (haveXmllint) expect(spawnSync('xmllint', ['--noout', '-'], { input: text }).status).toBe(0);
   });
 });
+
+describe('export routes', () => {
+  let id: string;
+  const text = (res: { text?: string; body: unknown }) => res.text ?? String(res.body);
+  beforeAll(async () => {
+    const saved = await planner.post('/api/missions', { ...request(), name: 'Ridge run, north–east' });
+    expect(saved.status, JSON.stringify(saved.body)).toBe(201);
+    id = saved.body.id;
+  });
+
+  it.each([
+    ['gpx', 'application/gpx+xml'],
+    ['geojson', 'application/geo+json'],
+    ['kml', 'application/vnd.google-earth.kml+xml'],
+  ])('when any role asks for export.%s, then it downloads as a file of its own type named after the mission', async (ext, type) => {
+    for (const role of ['planner', 'safety', 'surveyor', 'admin'] as const) {
+      const c = role === 'planner' ? planner : await t.as(role);
+      const res = await c.get(`/api/missions/${id}/export.${ext}`).buffer(true);
+      expect(res.status).toBe(200);
+      expect(res.headers['content-type']).toBe(`${type}; charset=utf-8`);
+      expect(res.headers['content-disposition']).toBe(`attachment; filename="ridge-run-north-east.${ext}"`);
+    }
+  });
+
+  it.skipIf(!haveXmllint)('when the saved mission is exported as GPX, then the file validates against GPX 1.1 and has a point per stop', async () => {
+    const res = await planner.get(`/api/missions/${id}/export.gpx`).buffer(true);
+    const r = validateText(text(res), 'route.gpx');
+    expect(r.ok, r.out).toBe(true);
+    const mission = (await planner.get(`/api/missions/${id}`)).body;
+    expect(text(res).match(/<rtept /g)).toHaveLength(mission.plan.perches.length + 2);
+  });
+
+  it('when exported as GeoJSON, then the perch Points carry the saved plan’s figures', async () => {
+    const res = await planner.get(`/api/missions/${id}/export.geojson`).buffer(true);
+    const fc = JSON.parse(text(res));
+    const mission = (await planner.get(`/api/missions/${id}`)).body;
+    const perches = fc.features.filter((f: { properties: { kind: string } }) => f.properties.kind === 'perch');
+    expect(perches.map((f: { properties: { spanId: string } }) => f.properties.spanId)).toEqual(mission.plan.perches.map((p: { spanId: string }) => p.spanId));
+  });
+
+  it('when the mission does not exist, then 404; without a session, 401', async () => {
+    expect((await planner.get('/api/missions/nope/export.gpx')).status).toBe(404);
+    expect((await t.client().get(`/api/missions/${id}/export.kml`)).status).toBe(401);
+  });
+});
+
