@@ -7,7 +7,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { assessSpan, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS, type SpanAssessmentInput } from '../shared/engineering/assessment.ts';
 import { findConductor, thermalConductorOf } from '../shared/engineering/conductors.ts';
-import { KESTREL_CORE, SWIFT_QUAD } from '../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import { initORM } from '../server/db.ts';
 import { Line } from '../server/modules/inventory/line.entity.ts';
 import { Structure } from '../server/modules/inventory/structure.entity.ts';
@@ -56,7 +56,7 @@ function pureRun(): BenchRow {
       surveyAgeDays: i % 2000,
       zones: { inExclude: i % 97 === 0, inCautionCount: i % 31 === 0 ? 1 : 0 },
     };
-    if (assessSpan(input, KESTREL_CORE, SWIFT_QUAD, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS).perchable) perchable++;
+    if (assessSpan(input, CLAMP_S, LIGHT_QUAD, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS).perchable) perchable++;
   }
   const s = (performance.now() - started) / 1000;
   const peak = stop();
@@ -104,10 +104,10 @@ async function dbRun(): Promise<BenchRow[]> {
     for (const pairs of PAIRS) {
       // 1 pair: only the default harvester and drone active; 4: the two demo harvesters × two demo drones.
       await em.nativeUpdate(HarvesterProfile, {}, { active: pairs === 4 });
-      await em.nativeUpdate(HarvesterProfile, { id: 'kestrel-core' }, { active: true });
-      await em.nativeUpdate(HarvesterProfile, { id: 'kestrel-core-open' }, { active: false });
+      await em.nativeUpdate(HarvesterProfile, { id: 'clamp-s' }, { active: true });
+      await em.nativeUpdate(HarvesterProfile, { id: 'clamp-s-open' }, { active: false });
       await em.nativeUpdate(DroneProfile, {}, { active: pairs === 4 });
-      await em.nativeUpdate(DroneProfile, { id: 'swift-quad' }, { active: true });
+      await em.nativeUpdate(DroneProfile, { id: 'light-quad' }, { active: true });
       const work = orm.em.fork();
       const stop = peakSampler();
       const started = performance.now();

@@ -17,7 +17,7 @@ import { SpanTileService } from '../server/modules/map/span-tiles.ts';
 import { User } from '../server/modules/auth/user.entity.ts';
 import { assessSpan, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS } from '../shared/engineering/assessment.ts';
 import { findConductor, thermalConductorOf } from '../shared/engineering/conductors.ts';
-import { KESTREL_CORE, SWIFT_QUAD } from '../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import type { BenchRow } from './run.ts';
 
 const asked = Number(process.env.BENCH_SCALE_SPANS ?? 10_000);
@@ -66,8 +66,8 @@ function pureRate(n: number) {
         surveyAgeDays: i % 2000,
         zones: { inExclude: false, inCautionCount: 0 },
       },
-      KESTREL_CORE,
-      SWIFT_QUAD,
+      CLAMP_S,
+      LIGHT_QUAD,
       DEFAULT_DESIGN_WEATHER,
       DEFAULT_SCORING_SETTINGS,
     );

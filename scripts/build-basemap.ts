@@ -94,13 +94,13 @@ export function generateRegion(seed = 6061): Record<(typeof BASEMAP_LAYERS)[numb
   // Lakes and the rivers that feed and drain them.
   const lakes = [
     { name: 'Tallow Mere', at: pt(-130.52, -30.225), r: 1.5 },
-    { name: 'Fenwick Water', at: pt(-130.215, -30.125), r: 1.1 },
-    { name: 'Corran Pool', at: pt(-130.4, -30.3), r: 0.6 },
+    { name: 'Quarnock Water', at: pt(-130.215, -30.125), r: 1.1 },
+    { name: 'Ostle Pool', at: pt(-130.4, -30.3), r: 0.6 },
   ];
   const water: Feature[] = lakes.map((l) => feature({ type: 'Polygon', coordinates: [blob(rand, l.at, l.r, 36, 0.35)] }, { class: 'lake', name: l.name }));
   const rivers = [
     { name: 'Harrow Water', class: 'river', path: [pt(-130.44, north + 0.02), pt(-130.36, -30.12), pt(-130.31, -30.215), pt(-130.24, -30.3), pt(-130.19, south - 0.02)] },
-    { name: 'Quen Brook', class: 'stream', path: [lakes[1].at, pt(-130.15, -30.2), pt(-130.09, -30.27), pt(east + 0.02, -30.34)] },
+    { name: 'Pellow Brook', class: 'stream', path: [lakes[1].at, pt(-130.15, -30.2), pt(-130.09, -30.27), pt(east + 0.02, -30.34)] },
     { name: 'Tallow Beck', class: 'stream', path: [pt(west - 0.02, -30.16), lakes[0].at, pt(-130.43, -30.26), pt(-130.36, -30.25), pt(-130.31, -30.215)] },
   ];
   const waterway: Feature[] = rivers.map((r) => {

@@ -20,10 +20,10 @@ export interface DemoTown {
 
 /** Invented towns of Harrow Vale. */
 export const DEMO_TOWNS: DemoTown[] = [
-  { id: 'harrow-cross', name: 'Harrow Cross', lon: -130.3, lat: -30.19, kind: 'town' },
-  { id: 'millbrook-end', name: 'Millbrook End', lon: -130.5, lat: -30.08, kind: 'town' },
-  { id: 'quenby', name: 'Quenby', lon: -130.11, lat: -30.31, kind: 'town' },
-  { id: 'ashcombe', name: 'Ashcombe', lon: -130.46, lat: -30.33, kind: 'village' },
-  { id: 'tarrow-green', name: 'Tarrow Green', lon: -130.16, lat: -30.07, kind: 'village' },
-  { id: 'fenwick-halt', name: 'Fenwick Halt', lon: -130.33, lat: -30.36, kind: 'village' },
+  { id: 'wendlecross', name: 'Wendlecross', lon: -130.3, lat: -30.19, kind: 'town' },
+  { id: 'skelloway-end', name: 'Skelloway End', lon: -130.5, lat: -30.08, kind: 'town' },
+  { id: 'pellowby', name: 'Pellowby', lon: -130.11, lat: -30.31, kind: 'town' },
+  { id: 'ostlemere', name: 'Ostlemere', lon: -130.46, lat: -30.33, kind: 'village' },
+  { id: 'thrumbeck-green', name: 'Thrumbeck Green', lon: -130.16, lat: -30.07, kind: 'village' },
+  { id: 'quarnock-halt', name: 'Quarnock Halt', lon: -130.33, lat: -30.36, kind: 'village' },
 ];

@@ -39,7 +39,7 @@ export const DEMO_LINES: DemoLineSpec[] = [
     name: 'Vale Ridge 138 kV',
     labelPrefix: 'VR138',
     voltageKv: 138,
-    via: ['millbrook-end', 'harrow-cross', 'quenby'],
+    via: ['skelloway-end', 'wendlecross', 'pellowby'],
     spanM: 320,
     structureKind: 'tower',
     attachmentHeightM: [24, 30],
@@ -48,10 +48,10 @@ export const DEMO_LINES: DemoLineSpec[] = [
     clearanceM: [9.5, 15],
   },
   {
-    name: 'Ashcombe–Tarrow 69 kV',
-    labelPrefix: 'AT69',
+    name: 'Ostlemere–Thrumbeck 69 kV',
+    labelPrefix: 'OT69',
     voltageKv: 69,
-    via: ['ashcombe', 'harrow-cross', 'tarrow-green'],
+    via: ['ostlemere', 'wendlecross', 'thrumbeck-green'],
     spanM: 230,
     structureKind: 'h-frame',
     attachmentHeightM: [15, 19],
@@ -60,10 +60,10 @@ export const DEMO_LINES: DemoLineSpec[] = [
     clearanceM: [7.5, 11.5],
   },
   {
-    name: 'Harrow Cross Feeder 4',
-    labelPrefix: 'HX4',
+    name: 'Wendlecross Feeder 4',
+    labelPrefix: 'WX4',
     voltageKv: 12.47,
-    via: ['harrow-cross', 'fenwick-halt'],
+    via: ['wendlecross', 'quarnock-halt'],
     spanM: 95,
     structureKind: 'pole',
     attachmentHeightM: [10.5, 12.5],
@@ -72,10 +72,10 @@ export const DEMO_LINES: DemoLineSpec[] = [
     clearanceM: [6.0, 8.2],
   },
   {
-    name: 'Millbrook End Feeder 1',
-    labelPrefix: 'ME1',
+    name: 'Skelloway End Feeder 1',
+    labelPrefix: 'SE1',
     voltageKv: 12.47,
-    via: ['millbrook-end', 'tarrow-green'],
+    via: ['skelloway-end', 'thrumbeck-green'],
     spanM: 110,
     structureKind: 'pole',
     attachmentHeightM: [10, 12],
@@ -86,7 +86,7 @@ export const DEMO_LINES: DemoLineSpec[] = [
 ];
 
 /** Only the first part of the longer routes is surveyed so far; this caps each line's span count. */
-const MAX_SPANS_PER_LINE: Record<string, number> = { VR138: 110, AT69: 120, HX4: 120, ME1: 60 };
+const MAX_SPANS_PER_LINE: Record<string, number> = { VR138: 110, OT69: 120, WX4: 120, SE1: 60 };
 
 /** Hourly shape 0..1 (00:00 … 23:00) of each load kind: invented, typical-looking daily curves. */
 function loadShape(kind: DemoLineSpec['load']['shape'], h: number): number {

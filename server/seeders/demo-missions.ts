@@ -1,11 +1,11 @@
 // The demo's mission side: the owner's permissions on the demo lines (one long expired, for show) and, once the
-// spans are assessed, one saved and authorised mission from the Millbrook End depot to the Harrow Cross yard that
+// spans are assessed, one saved and authorised mission from the Skelloway End depot to the Wendlecross yard that
 // needs two perches on Vale Ridge 138 kV with the demo quad. Dates follow the day the demo is seeded, so a newcomer
 // always finds a permission in force and a mission about to fly.
 import type { EntityManager } from '@mikro-orm/core';
 import { generateIdFromEntropySize } from 'lucia';
 import { DEMO_TOWNS } from '#shared/demo-region.ts';
-import { KESTREL_CORE, SWIFT_QUAD } from '#shared/engineering/demo-profiles.ts';
+import { CLAMP_S, LIGHT_QUAD } from '#shared/engineering/demo-profiles.ts';
 import { authoriseMission, createMission } from '../modules/missions/missions.service.ts';
 import { User } from '../modules/auth/user.entity.ts';
 import { Line } from '../modules/inventory/line.entity.ts';
@@ -20,11 +20,11 @@ const town = (id: string) => {
 
 /** The demo mission's inputs (departure set at seeding). */
 export const DEMO_MISSION = {
-  name: 'Millbrook End depot to Harrow Cross yard',
-  droneProfileId: SWIFT_QUAD.id,
-  harvesterProfileId: KESTREL_CORE.id,
-  base: town('millbrook-end'),
-  target: town('harrow-cross'),
+  name: 'Skelloway End depot to Wendlecross yard',
+  droneProfileId: LIGHT_QUAD.id,
+  harvesterProfileId: CLAMP_S.id,
+  base: town('skelloway-end'),
+  target: town('wendlecross'),
   objective: 'time' as const,
   returnToBase: false,
 };

@@ -25,9 +25,9 @@ export interface DroneProfile {
 }
 
 /** Grain-oriented Si-steel split core: B_sat 1.8 T design limit (datasheet value), lapped faces ≈ 25 µm each. */
-export const KESTREL_CORE: HarvesterProfile = {
-  id: 'kestrel-core',
-  name: 'Kestrel core',
+export const CLAMP_S: HarvesterProfile = {
+  id: 'clamp-s',
+  name: 'Roost clamp S',
   coreMaterial: 'si-steel',
   turns: 480,
   coreAreaMm2: 260,
@@ -45,9 +45,9 @@ export const KESTREL_CORE: HarvesterProfile = {
 };
 
 /** Nanocrystalline split core: B_sat 1.2 T (datasheet value), so a larger section for the same power. */
-export const MERLIN_CORE: HarvesterProfile = {
-  id: 'merlin-core',
-  name: 'Merlin core',
+export const CLAMP_R: HarvesterProfile = {
+  id: 'clamp-r',
+  name: 'Roost clamp R',
   coreMaterial: 'nanocrystalline',
   turns: 420,
   coreAreaMm2: 520,
@@ -72,12 +72,12 @@ export function openCoreVariant(profile: HarvesterProfile, gapMm = OPEN_CORE_GAP
   return { ...profile, id: `${profile.id}-open`, name: `${profile.name} (open)`, airGapMm: gapMm };
 }
 
-/** The Kestrel coil with its core left open: the demonstration of why the loop must close. */
-export const KESTREL_OPEN_CORE: HarvesterProfile = openCoreVariant(KESTREL_CORE);
+/** The Roost clamp S coil with its core left open: the demonstration of why the loop must close. */
+export const CLAMP_S_OPEN: HarvesterProfile = openCoreVariant(CLAMP_S);
 
-export const SWIFT_QUAD: DroneProfile = {
-  id: 'swift-quad',
-  name: 'Swift quad',
+export const LIGHT_QUAD: DroneProfile = {
+  id: 'light-quad',
+  name: 'Light quad',
   batteryWh: 100,
   reservePercent: 20,
   cruiseSpeedMps: 12,
@@ -91,9 +91,9 @@ export const SWIFT_QUAD: DroneProfile = {
   chargeToPercent: 100,
 };
 
-export const HERON_HEX: DroneProfile = {
-  id: 'heron-hex',
-  name: 'Heron hex',
+export const HEAVY_HEX: DroneProfile = {
+  id: 'heavy-hex',
+  name: 'Heavy hex',
   batteryWh: 160,
   reservePercent: 25,
   cruiseSpeedMps: 14,
@@ -106,5 +106,5 @@ export const HERON_HEX: DroneProfile = {
   chargeToPercent: 95,
 };
 
-export const DEMO_HARVESTERS: readonly HarvesterProfile[] = [KESTREL_CORE, MERLIN_CORE, KESTREL_OPEN_CORE];
-export const DEMO_DRONES: readonly DroneProfile[] = [SWIFT_QUAD, HERON_HEX];
+export const DEMO_HARVESTERS: readonly HarvesterProfile[] = [CLAMP_S, CLAMP_R, CLAMP_S_OPEN];
+export const DEMO_DRONES: readonly DroneProfile[] = [LIGHT_QUAD, HEAVY_HEX];

@@ -9,7 +9,7 @@ afterEach(cleanup);
 
 const perch = (over: Partial<PlanPerch>): PlanPerch => ({
   spanId: 'S1', lineId: 'L1', arriveAt: '2026-06-10T09:40:00+02:00', departAt: '2026-06-10T10:40:00+02:00', dwellS: 3600, harvestW: 41.2,
-  socArrivePct: 22, socDepartPct: 100, lineBearingDeg: 90, conductorHeightM: 15, spanLabel: 'AT69-014 → AT69-015', lineName: 'Ashcombe 69 kV', voltageKv: 69, ...over,
+  socArrivePct: 22, socDepartPct: 100, lineBearingDeg: 90, conductorHeightM: 15, spanLabel: 'OT69-014 → OT69-015', lineName: 'Ostlemere 69 kV', voltageKv: 69, ...over,
 });
 
 describe('perch load source', () => {

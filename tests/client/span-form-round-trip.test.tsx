@@ -16,7 +16,7 @@ afterEach(() => {
 const stored: Span = {
   id: 'SP1',
   lineId: 'L1',
-  lineName: 'Kestrel Row 69 kV',
+  lineName: 'Wendle Row 69 kV',
   fromStructureId: 'S1',
   toStructureId: 'S2',
   fromStructureLabel: 'KR-001',
@@ -46,7 +46,7 @@ const stored: Span = {
   updatedAt: '2026-11-02T09:00:00Z',
 };
 const me = { id: 'U1', email: 'surveyor@roostline.test', name: 'Ada Surveyor', roles: ['surveyor'], unitSystem: 'metric' };
-const line = { id: 'L1', name: 'Kestrel Row 69 kV', owner: 'Harrow Vale Power Cooperative', voltageKv: 69, frequencyHz: 60, phases: 3, loadTypicalA: 320, loadMinA: 100, loadPeakA: 500, loadProfileA: null, version: 1 };
+const line = { id: 'L1', name: 'Wendle Row 69 kV', owner: 'Harrow Vale Power Cooperative', voltageKv: 69, frequencyHz: 60, phases: 3, loadTypicalA: 320, loadMinA: 100, loadPeakA: 500, loadProfileA: null, version: 1 };
 const structures = [
   { id: 'S1', lineId: 'L1', lat: -30, lon: -130, kind: 'pole', label: 'KR-001', attachmentHeightM: 14, version: 1, createdAt: '', updatedAt: '' },
   { id: 'S2', lineId: 'L1', lat: -30, lon: -129.998, kind: 'pole', label: 'KR-002', attachmentHeightM: 14, version: 1, createdAt: '', updatedAt: '' },
@@ -114,7 +114,7 @@ describe('span form round trip', () => {
     await waitFor(() => expect(selected(screen.getByLabelText('Code word'))).toBe('Hawk — 477 kcmil 26/7'));
     expect(selected(screen.getByLabelText('Kind'))).toBe('Road crossing');
 
-    expect(screen.getByTestId('line-fixed').textContent).toBe('Kestrel Row 69 kV (69 kV)');
+    expect(screen.getByTestId('line-fixed').textContent).toBe('Wendle Row 69 kV (69 kV)');
     await waitFor(() => expect(selected(screen.getByLabelText('From structure'))).toBe('KR-001 · Pole'));
     expect(selected(screen.getByLabelText('To structure'))).toBe('KR-002 · Pole');
     expect((screen.getByLabelText('Phase / position (optional)') as HTMLInputElement).value).toBe('B (middle)');

@@ -4,7 +4,7 @@ import { makeLine, makeSpan, waitForJob } from './assessment-helpers.ts';
 import { Assessment } from '../../server/modules/assessment/assessment.entity.ts';
 import { AuditEntry } from '../../server/modules/audit/audit.entity.ts';
 import { harvest } from '../../shared/engineering/ct-harvester.ts';
-import { KESTREL_CORE, MERLIN_CORE } from '../../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, CLAMP_R } from '../../shared/engineering/demo-profiles.ts';
 
 let t: TestApp;
 let admin: Client;
@@ -39,11 +39,11 @@ describe('harvester and drone profiles', () => {
   it('when a non-admin creates, edits or deletes a profile, then 403; every role reads them', async () => {
     expect((await surveyor.post('/api/profiles/harvesters', newHarvester)).status).toBe(403);
     expect((await planner.post('/api/profiles/drones', newDrone)).status).toBe(403);
-    expect((await planner.patch('/api/profiles/harvesters/kestrel-core', { version: 1, turns: 10 })).status).toBe(403);
-    expect((await surveyor.delete('/api/profiles/drones/swift-quad')).status).toBe(403);
+    expect((await planner.patch('/api/profiles/harvesters/clamp-s', { version: 1, turns: 10 })).status).toBe(403);
+    expect((await surveyor.delete('/api/profiles/drones/light-quad')).status).toBe(403);
     expect((await t.client().get('/api/profiles/harvesters')).status).toBe(401);
     for (const c of [surveyor, planner, admin]) {
-      expect((await c.get('/api/profiles/harvesters/kestrel-core')).status).toBe(200);
+      expect((await c.get('/api/profiles/harvesters/clamp-s')).status).toBe(200);
       expect((await c.get('/api/profiles/drones')).body.items.length).toBeGreaterThanOrEqual(2);
     }
   });
@@ -104,51 +104,51 @@ describe('harvester and drone profiles', () => {
 
 describe('bench tests', () => {
   it('when an admin records a bench test, then it shows ≈702 A, ≈84 W and its deviation from the model', async () => {
-    const res = await admin.post('/api/profiles/harvesters/kestrel-core/bench-tests', { fixtureTurns: 60, fixtureCurrentA: 11.7, loadVoltageRmsV: 58, loadOhm: 40, frequencyHz: 60, note: 'first fixture run' });
+    const res = await admin.post('/api/profiles/harvesters/clamp-s/bench-tests', { fixtureTurns: 60, fixtureCurrentA: 11.7, loadVoltageRmsV: 58, loadOhm: 40, frequencyHz: 60, note: 'first fixture run' });
     expect(res.status).toBe(201);
     expect(res.body.equivalentLineCurrentA).toBeCloseTo(702, 9); // Ampère's law: 60 turns × 11.7 A (common practice)
     expect(res.body.powerW).toBeCloseTo(84.1, 9); // Joule's law: 58² / 40 (common practice)
-    const model = harvest({ currentA: 702, frequencyHz: 60, loadOhm: 40, harvester: KESTREL_CORE }).powerW;
+    const model = harvest({ currentA: 702, frequencyHz: 60, loadOhm: 40, harvester: CLAMP_S }).powerW;
     expect(res.body.modelPowerW).toBeCloseTo(model, 9);
     expect(res.body.deviationW).toBeCloseTo(84.1 - model, 9);
-    const list = await planner.get('/api/profiles/harvesters/kestrel-core/bench-tests');
+    const list = await planner.get('/api/profiles/harvesters/clamp-s/bench-tests');
     expect(list.body.items).toHaveLength(1);
-    expect((await surveyor.post('/api/profiles/harvesters/kestrel-core/bench-tests', { fixtureTurns: 60, fixtureCurrentA: 11.7, loadVoltageRmsV: 58, loadOhm: 40 })).status).toBe(403);
-    const bad = await admin.post('/api/profiles/harvesters/kestrel-core/bench-tests', { fixtureTurns: 0.5, fixtureCurrentA: 1, loadVoltageRmsV: 1, loadOhm: 0 });
+    expect((await surveyor.post('/api/profiles/harvesters/clamp-s/bench-tests', { fixtureTurns: 60, fixtureCurrentA: 11.7, loadVoltageRmsV: 58, loadOhm: 40 })).status).toBe(403);
+    const bad = await admin.post('/api/profiles/harvesters/clamp-s/bench-tests', { fixtureTurns: 0.5, fixtureCurrentA: 1, loadVoltageRmsV: 1, loadOhm: 0 });
     expect(bad.status).toBe(400);
-    expect((await admin.delete(`/api/profiles/harvesters/kestrel-core/bench-tests/${res.body.id}`)).status).toBe(204);
-    expect((await planner.get('/api/profiles/harvesters/kestrel-core/bench-tests')).body.items).toHaveLength(0);
+    expect((await admin.delete(`/api/profiles/harvesters/clamp-s/bench-tests/${res.body.id}`)).status).toBe(204);
+    expect((await planner.get('/api/profiles/harvesters/clamp-s/bench-tests')).body.items).toHaveLength(0);
   });
 
   it('when bench points come from a core with a wider gap, then fit-gap recovers that gap and applying it makes a new version', async () => {
     const trueGapMm = 0.12;
-    const trueCore = { ...MERLIN_CORE, airGapMm: trueGapMm };
+    const trueCore = { ...CLAMP_R, airGapMm: trueGapMm };
     for (const [turns, amps, loadOhm] of [[50, 4, 30], [50, 8, 30], [60, 11.7, 40], [40, 5, 60]] as const) {
       const current = turns * amps;
       const v = harvest({ currentA: current, frequencyHz: 60, loadOhm, harvester: trueCore }).loadVoltageRmsV;
-      const r = await admin.post('/api/profiles/harvesters/merlin-core/bench-tests', { fixtureTurns: turns, fixtureCurrentA: amps, loadVoltageRmsV: v, loadOhm, frequencyHz: 60 });
+      const r = await admin.post('/api/profiles/harvesters/clamp-r/bench-tests', { fixtureTurns: turns, fixtureCurrentA: amps, loadVoltageRmsV: v, loadOhm, frequencyHz: 60 });
       expect(r.status).toBe(201);
     }
-    const dry = await admin.post('/api/profiles/harvesters/merlin-core/fit-gap', {});
+    const dry = await admin.post('/api/profiles/harvesters/clamp-r/fit-gap', {});
     expect(dry.status).toBe(200);
     // Least squares on the CT model: synthetic points from the model itself are fitted back to their gap.
     expect(Math.abs(dry.body.airGapMm - trueGapMm) / trueGapMm).toBeLessThan(0.01);
     expect(dry.body.rmsErrorW).toBeLessThan(dry.body.previousRmsErrorW);
-    expect(dry.body).toMatchObject({ applied: false, previousAirGapMm: MERLIN_CORE.airGapMm, points: 4 });
+    expect(dry.body).toMatchObject({ applied: false, previousAirGapMm: CLAMP_R.airGapMm, points: 4 });
     expect(dry.body.profile.version).toBe(1);
 
-    const applied = await admin.post('/api/profiles/harvesters/merlin-core/fit-gap', { apply: true, version: 1 });
+    const applied = await admin.post('/api/profiles/harvesters/clamp-r/fit-gap', { apply: true, version: 1 });
     expect(applied.status).toBe(200);
     expect(applied.body.profile.version).toBe(2);
     expect(applied.body.profile.airGapMm).toBeCloseTo(dry.body.airGapMm, 9);
     expect(applied.body.rescoreJobId).toEqual(expect.any(String));
     await waitForJob(admin, applied.body.rescoreJobId);
-    const again = await admin.post('/api/profiles/harvesters/merlin-core/fit-gap', { apply: true, version: 1 });
+    const again = await admin.post('/api/profiles/harvesters/clamp-r/fit-gap', { apply: true, version: 1 });
     expect(again.status).toBe(409);
   });
 
   it('when a harvester has no bench tests, then fitting its gap is a 400', async () => {
-    const res = await admin.post('/api/profiles/harvesters/kestrel-core-open/fit-gap', { apply: true });
+    const res = await admin.post('/api/profiles/harvesters/clamp-s-open/fit-gap', { apply: true });
     expect(res.status).toBe(400);
   });
 });

@@ -7,7 +7,7 @@ import { Line } from '../../server/modules/inventory/line.entity.ts';
 import { notifySpanChanged } from '../../server/modules/inventory/inventory.service.ts';
 import { DEFAULT_SCORING_SETTINGS, METHOD_VERSION } from '../../shared/engineering/assessment.ts';
 import { harvest } from '../../shared/engineering/ct-harvester.ts';
-import { DEMO_DRONES, KESTREL_CORE } from '../../shared/engineering/demo-profiles.ts';
+import { DEMO_DRONES, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
 import { codeGroundClearanceM } from '../../shared/engineering/clearance.ts';
 
 let t: TestApp;
@@ -27,7 +27,7 @@ describe('default profiles and settings', () => {
   it('when the app starts on an empty database, then the demo profiles and default settings exist', async () => {
     const h = await planner.get('/api/profiles/harvesters');
     expect(h.status).toBe(200);
-    expect(h.body.items.map((p: { id: string }) => p.id)).toEqual(['kestrel-core', 'merlin-core', 'kestrel-core-open']);
+    expect(h.body.items.map((p: { id: string }) => p.id)).toEqual(['clamp-s', 'clamp-r', 'clamp-s-open']);
     expect(h.body.items.map((p: { active: boolean }) => p.active)).toEqual([true, true, false]);
     const d = await planner.get('/api/profiles/drones');
     expect(d.body.items.map((p: { id: string }) => p.id)).toEqual(DEMO_DRONES.map((p) => p.id));
@@ -52,7 +52,7 @@ describe('recompute on span change', () => {
     const res = await planner.get(`/api/spans/${span.id}/assessments`);
     expect(res.status).toBe(200);
     const first = res.body.items[0];
-    expect(first).toMatchObject({ harvesterProfileId: 'kestrel-core', droneProfileId: 'swift-quad', perchable: true, methodVersion: METHOD_VERSION });
+    expect(first).toMatchObject({ harvesterProfileId: 'clamp-s', droneProfileId: 'light-quad', perchable: true, methodVersion: METHOD_VERSION });
     // Common practice, no published source: a closed drone-portable core yields > 60 W at ~700 A, about an hour's recharge.
     expect(first.harvestW).toBeGreaterThan(60);
     expect(first.chargeTimeMin).toBeGreaterThan(30);
@@ -65,7 +65,7 @@ describe('recompute on span change', () => {
     expect(first.score).toBeGreaterThan(0);
     expect(first.score).toBeLessThanOrEqual(100);
     // The stored figure matches the pure CT model × converter efficiency (engineering.md §2).
-    const expected = harvest({ currentA: 700, frequencyHz: 60, harvester: KESTREL_CORE }).powerW * KESTREL_CORE.converterEfficiency;
+    const expected = harvest({ currentA: 700, frequencyHz: 60, harvester: CLAMP_S }).powerW * CLAMP_S.converterEfficiency;
     expect(first.harvestW).toBeCloseTo(expected, 9);
   });
 
@@ -89,7 +89,7 @@ describe('recompute on span change', () => {
   it("when a line's load changes, then its spans are rescored by a background job", async () => {
     const line = await makeLine(t.orm);
     const spans = [await makeSpan(t.orm, line), await makeSpan(t.orm, line)];
-    const before = (await rowsOf(spans[0].id)).find((r) => r.harvesterProfileId === 'kestrel-core' && r.droneProfileId === 'swift-quad')!;
+    const before = (await rowsOf(spans[0].id)).find((r) => r.harvesterProfileId === 'clamp-s' && r.droneProfileId === 'light-quad')!;
     const em = t.orm.em.fork();
     const l = await em.findOneOrFail(Line, { id: line.id });
     l.loadTypicalA = 350;
@@ -98,7 +98,7 @@ describe('recompute on span change', () => {
     await notifySpanChanged(em, { action: 'line-update', spanIds: spans.map((s) => s.id) });
     const jobs = await waitForAllJobs(planner);
     expect(jobs[0]).toMatchObject({ kind: 'rescore-spans', state: 'done', done: 2, total: 2 });
-    const after = (await rowsOf(spans[0].id)).find((r) => r.harvesterProfileId === 'kestrel-core' && r.droneProfileId === 'swift-quad')!;
+    const after = (await rowsOf(spans[0].id)).find((r) => r.harvesterProfileId === 'clamp-s' && r.droneProfileId === 'light-quad')!;
     expect(after.harvestW).toBeLessThan(before.harvestW);
   });
 });
@@ -168,7 +168,7 @@ describe('gates', () => {
     // IEEE Std 738-2012 heat balance: 4/0 ACSR at 1400 A is far above its rating in the design weather.
     expect(gate(a, 'ampacity')).toMatchObject({ passed: false, blocking: false });
     expect(gate(a, 'contact-temperature').passed).toBe(false);
-    expect(a.conductorTempC).toBeGreaterThan(KESTREL_CORE.contactTempLimitC);
+    expect(a.conductorTempC).toBeGreaterThan(CLAMP_S.contactTempLimitC);
     expect(a.ampacityA).toBeLessThan(1400);
   });
 
@@ -225,7 +225,7 @@ describe('harvest curve', () => {
   it('when asked for a span, then power vs current marks saturation and the daily curve follows the line profile', async () => {
     const line = await makeLine(t.orm);
     const span = await makeSpan(t.orm, line);
-    const res = await planner.get(`/api/spans/${span.id}/harvest-curve?harvesterId=kestrel-core`);
+    const res = await planner.get(`/api/spans/${span.id}/harvest-curve?harvesterId=clamp-s`);
     expect(res.status).toBe(200);
     const { points, saturationOnsetA, daily } = res.body;
     expect(saturationOnsetA).toBeGreaterThan(0);

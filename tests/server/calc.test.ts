@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type Client, type TestApp } from './helpers.ts';
-import { KESTREL_CORE, KESTREL_OPEN_CORE } from '../../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, CLAMP_S_OPEN } from '../../shared/engineering/demo-profiles.ts';
 
 let t: TestApp;
 let planner: Client;
@@ -13,7 +13,7 @@ afterAll(() => t.close());
 const within = (actual: number, expected: number, relTol: number) => expect(Math.abs(actual - expected) / Math.abs(expected)).toBeLessThanOrEqual(relTol);
 const paths = (res: { body: { error: { issues?: { path: string }[] } } }) => (res.body.error.issues ?? []).map((i) => i.path);
 
-const coreOf = (p: typeof KESTREL_CORE) => ({
+const coreOf = (p: typeof CLAMP_S) => ({
   turns: p.turns,
   coreAreaMm2: p.coreAreaMm2,
   pathLengthMm: p.pathLengthMm,
@@ -31,18 +31,18 @@ const drakeSample = {
 
 describe('POST /api/calc/harvest', () => {
   it('when the closed demo core sits on a ~700 A line, then it yields over 60 W with the api.md fields', async () => {
-    const res = await planner.post('/api/calc/harvest', { currentA: 700, frequencyHz: 60, harvester: coreOf(KESTREL_CORE) });
+    const res = await planner.post('/api/calc/harvest', { currentA: 700, frequencyHz: 60, harvester: coreOf(CLAMP_S) });
     expect(res.status).toBe(200);
     expect(Object.keys(res.body).sort()).toEqual(['loadVoltageRmsV', 'optimalLoadOhm', 'peakFluxDensityT', 'powerW', 'saturated']);
     // Common practice, no published source: a drone-portable closed core yields > 60 W at ~700 A.
     expect(res.body.powerW).toBeGreaterThan(60);
-    expect(res.body.peakFluxDensityT).toBeLessThanOrEqual(KESTREL_CORE.saturationT * 1.000001);
+    expect(res.body.peakFluxDensityT).toBeLessThanOrEqual(CLAMP_S.saturationT * 1.000001);
     // Joule's law at the reported load: P = V²/R.
     within(res.body.loadVoltageRmsV ** 2 / res.body.optimalLoadOhm, res.body.powerW, 1e-9);
   });
 
   it('when the same coil is left open, then it yields under 0.5 W', async () => {
-    const res = await planner.post('/api/calc/harvest', { currentA: 700, frequencyHz: 60, harvester: coreOf(KESTREL_OPEN_CORE) });
+    const res = await planner.post('/api/calc/harvest', { currentA: 700, frequencyHz: 60, harvester: coreOf(CLAMP_S_OPEN) });
     expect(res.status).toBe(200);
     // Common practice, no published source: without a closed magnetic loop the coil yields < 0.5 W.
     expect(res.body.powerW).toBeLessThan(0.5);
@@ -51,7 +51,7 @@ describe('POST /api/calc/harvest', () => {
 
   it('when the current is low and R_w = 0, then P = Iₚ²·ω·μ0·Aₑ/(2·(lₑ/μᵣ + l_g)) and P is independent of N', async () => {
     // CT harvester magnetic-circuit model (engineering.md §2; Roscoe & Judd 2013 — bibliographic details from memory).
-    const core = { ...coreOf(KESTREL_CORE), windingResistanceOhm: 0 };
+    const core = { ...coreOf(CLAMP_S), windingResistanceOhm: 0 };
     const a = await planner.post('/api/calc/harvest', { currentA: 50, frequencyHz: 60, harvester: core });
     const b = await planner.post('/api/calc/harvest', { currentA: 50, frequencyHz: 60, harvester: { ...core, turns: core.turns * 2 } });
     const lEff = core.pathLengthMm / 1000 / core.relativePermeability + core.airGapMm / 1000;
@@ -62,7 +62,7 @@ describe('POST /api/calc/harvest', () => {
   });
 
   it('when a load resistance is given, then power is computed at that load', async () => {
-    const res = await planner.post('/api/calc/harvest', { currentA: 100, frequencyHz: 50, harvester: coreOf(KESTREL_CORE), loadOhm: 10 });
+    const res = await planner.post('/api/calc/harvest', { currentA: 100, frequencyHz: 50, harvester: coreOf(CLAMP_S), loadOhm: 10 });
     expect(res.status).toBe(200);
     within(res.body.loadVoltageRmsV ** 2 / 10, res.body.powerW, 1e-9);
   });
@@ -71,7 +71,7 @@ describe('POST /api/calc/harvest', () => {
     const res = await planner.post('/api/calc/harvest', {
       currentA: -5,
       frequencyHz: 0,
-      harvester: { ...coreOf(KESTREL_CORE), turns: 2.5, coreAreaMm2: -1 },
+      harvester: { ...coreOf(CLAMP_S), turns: 2.5, coreAreaMm2: -1 },
       loadOhm: 0,
     });
     expect(res.status).toBe(400);
@@ -79,13 +79,13 @@ describe('POST /api/calc/harvest', () => {
     const missing = await planner.post('/api/calc/harvest', { currentA: 'lots' });
     expect(missing.status).toBe(400);
     expect(paths(missing)).toEqual(expect.arrayContaining(['currentA', 'frequencyHz', 'harvester']));
-    const turnsZero = await planner.post('/api/calc/harvest', { currentA: 10, frequencyHz: 60, harvester: { ...coreOf(KESTREL_CORE), turns: 0 } });
+    const turnsZero = await planner.post('/api/calc/harvest', { currentA: 10, frequencyHz: 60, harvester: { ...coreOf(CLAMP_S), turns: 0 } });
     expect(turnsZero.status).toBe(400);
     expect(paths(turnsZero)).toEqual(['harvester.turns']);
   });
 
   it('when nobody is signed in, then 401', async () => {
-    const res = await t.client().post('/api/calc/harvest', { currentA: 700, frequencyHz: 60, harvester: coreOf(KESTREL_CORE) });
+    const res = await t.client().post('/api/calc/harvest', { currentA: 700, frequencyHz: 60, harvester: coreOf(CLAMP_S) });
     expect(res.status).toBe(401);
   });
 });

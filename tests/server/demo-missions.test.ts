@@ -7,7 +7,7 @@ import { DEMO_MISSION, demoDepartAt } from '../../server/seeders/demo-missions.t
 import { DEMO_LINES } from '../../server/seeders/demo-inventory.ts';
 import { linesLackingPermission } from '../../server/modules/line-permissions/line-permissions.service.ts';
 import { geodesicInverse } from '../../shared/engineering/geodesic.ts';
-import { SWIFT_QUAD } from '../../shared/engineering/demo-profiles.ts';
+import { LIGHT_QUAD } from '../../shared/engineering/demo-profiles.ts';
 
 let t: TestApp;
 let planner: Client;
@@ -36,7 +36,7 @@ describe('demo missions', () => {
     expect(res.body.feasible, JSON.stringify(res.body).slice(0, 400)).toBe(true);
     expect(res.body.perches.length).toBeGreaterThanOrEqual(2);
     expect(res.body.legs[0].socStartPct).toBe(100);
-    for (const leg of res.body.legs) expect(leg.socEndPct).toBeGreaterThanOrEqual(SWIFT_QUAD.reservePercent - 1e-9);
+    for (const leg of res.body.legs) expect(leg.socEndPct).toBeGreaterThanOrEqual(LIGHT_QUAD.reservePercent - 1e-9);
     const lineIds = res.body.perches.map((p: { lineId: string }) => p.lineId);
     expect(await linesLackingPermission(t.orm.em.fork(), lineIds, departAt.slice(0, 10))).toEqual([]);
   });

@@ -137,7 +137,7 @@ describe('listing the demo inventory', () => {
     expect(byLabel.body.items.every((s: any) => s.fromStructureLabel === 'VR138-010' || s.toStructureLabel === 'VR138-010')).toBe(true);
     const byName = await planner.get('/api/spans?q=feeder 4&pageSize=1');
     expect(byName.body.total).toBeGreaterThan(50);
-    expect(byName.body.items[0].lineName).toBe('Harrow Cross Feeder 4');
+    expect(byName.body.items[0].lineName).toBe('Wendlecross Feeder 4');
     const byCode = await planner.get('/api/spans?q=drake&pageSize=1');
     expect(byCode.body.items[0].conductor.codeWord).toBe('Drake');
     const none = await planner.get('/api/spans?q=%25_nothing');

@@ -9,7 +9,7 @@ import { XMLParser } from 'fast-xml-parser';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type Client, type TestApp } from './helpers.ts';
 import { lonFor, makeLine, spansAlong } from './missions-fixtures.ts';
-import { SWIFT_QUAD, KESTREL_CORE } from '../../shared/engineering/demo-profiles.ts';
+import { LIGHT_QUAD, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
 import { MISSION_COLOURS } from '../../shared/mission-colours.ts';
 import { MISSION_CAUTION, missionToGeoJson, missionToGpx, missionToKml, type ExportMission } from '../../server/modules/missions/export.ts';
 
@@ -34,8 +34,8 @@ let planner: Client;
 const LAT = -30.2;
 const LON0 = -130.5;
 const request = (over: Record<string, unknown> = {}) => ({
-  droneProfileId: SWIFT_QUAD.id,
-  harvesterProfileId: KESTREL_CORE.id,
+  droneProfileId: LIGHT_QUAD.id,
+  harvesterProfileId: CLAMP_S.id,
   base: { lat: LAT, lon: LON0 },
   target: { lat: LAT, lon: LON0 + lonFor(24_000, LAT) },
   departAt: '2026-06-01T09:00:00+02:00',

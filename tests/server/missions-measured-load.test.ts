@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type Client, type TestApp } from './helpers.ts';
 import { lonFor, makeLine, spansAlong } from './missions-fixtures.ts';
-import { SWIFT_QUAD, KESTREL_CORE } from '../../shared/engineering/demo-profiles.ts';
+import { LIGHT_QUAD, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
 import { harvestPowerW } from '../../shared/engineering/ct-harvester.ts';
 import { DAILY_PROFILE_A } from './assessment-helpers.ts';
 
@@ -15,8 +15,8 @@ const METERED_A = 520;
 
 const plan = (departAt: string) =>
   planner.post('/api/missions/plan', {
-    droneProfileId: SWIFT_QUAD.id,
-    harvesterProfileId: KESTREL_CORE.id,
+    droneProfileId: LIGHT_QUAD.id,
+    harvesterProfileId: CLAMP_S.id,
     base: { lat: LAT, lon: LON0 },
     target: { lat: LAT, lon: LON0 + lonFor(16_000, LAT) },
     departAt,
@@ -54,7 +54,7 @@ describe('the planner on measured load', () => {
     expect(res.body.feasible).toBe(true);
     expect(res.body.perches.length).toBeGreaterThan(0);
     // harvestW is the power after the converter at that hour (api.md "Missions"), here at the flat metered current.
-    const expected = harvestPowerW(KESTREL_CORE, METERED_A, 60);
+    const expected = harvestPowerW(CLAMP_S, METERED_A, 60);
     for (const p of res.body.perches) {
       expect(p.harvestSource).toBe('series');
       expect(p.loadMonth).toBe('2026-06');
@@ -71,7 +71,7 @@ describe('the planner on measured load', () => {
       expect(p.loadMonth).toBeNull();
       // The line's typed 24-hour profile at the arrival's local hour.
       const hour = Number(p.arriveAt.slice(11, 13));
-      expect(p.harvestW).toBeCloseTo(harvestPowerW(KESTREL_CORE, DAILY_PROFILE_A[hour], 60), 6);
+      expect(p.harvestW).toBeCloseTo(harvestPowerW(CLAMP_S, DAILY_PROFILE_A[hour], 60), 6);
     }
   });
 

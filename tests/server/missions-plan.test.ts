@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type Client, type TestApp } from './helpers.ts';
 import { lonFor, makeLine, spansAlong } from './missions-fixtures.ts';
 import { geodesicInverse } from '../../shared/engineering/geodesic.ts';
-import { SWIFT_QUAD, KESTREL_CORE } from '../../shared/engineering/demo-profiles.ts';
+import { LIGHT_QUAD, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
 
 // POST /api/missions/plan (api.md "Missions"). Each scenario sits on its own latitude band so they never share perches.
 let t: TestApp;
@@ -14,8 +14,8 @@ const LON0 = -130.5;
 const base = (lat: number) => ({ lat, lon: LON0 });
 const east = (lat: number, m: number) => ({ lat, lon: LON0 + lonFor(m, lat) });
 const request = (lat: number, targetEastM: number, over: Record<string, unknown> = {}) => ({
-  droneProfileId: SWIFT_QUAD.id,
-  harvesterProfileId: KESTREL_CORE.id,
+  droneProfileId: LIGHT_QUAD.id,
+  harvesterProfileId: CLAMP_S.id,
   base: base(lat),
   target: east(lat, targetEastM),
   departAt: '2026-06-01T09:00:00+02:00',
@@ -23,7 +23,7 @@ const request = (lat: number, targetEastM: number, over: Record<string, unknown>
 });
 const dist = (a: { lat: number; lon: number }, b: { lat: number; lon: number }) => geodesicInverse({ latDeg: a.lat, lonDeg: a.lon }, { latDeg: b.lat, lonDeg: b.lon }).lengthM;
 
-// Swift quad (demo profile): 100 Wh, 20 % reserve, 12 m/s, 300 W → 80 Wh usable, 11.52 km calm reach (engineering.md §10 worked example).
+// Light quad (demo profile): 100 Wh, 20 % reserve, 12 m/s, 300 W → 80 Wh usable, 11.52 km calm reach (engineering.md §10 worked example).
 const CALM_REACH_M = 11_520;
 
 beforeAll(async () => {
@@ -52,22 +52,22 @@ describe('a feasible plan', () => {
     // The drone leaves at 100 % (api.md); E = P_cruise·d/GS (+ the perch manoeuvre on a perch leg), GS = airspeed in calm air (engineering.md §10).
     expect(plan.legs[0].socStartPct).toBe(100);
     for (const leg of plan.legs) {
-      expect(leg.groundSpeedMps).toBeCloseTo(SWIFT_QUAD.cruiseSpeedMps, 9);
-      expect(leg.durationS).toBeCloseTo(leg.distanceM / SWIFT_QUAD.cruiseSpeedMps, 6);
-      const manoeuvre = leg.toSpanId ? SWIFT_QUAD.perchManoeuvreWh : 0;
-      expect(leg.energyWh).toBeCloseTo((SWIFT_QUAD.cruisePowerW * leg.durationS) / 3600 + manoeuvre, 6);
-      expect(leg.socEndPct).toBeCloseTo(leg.socStartPct - (100 * leg.energyWh) / SWIFT_QUAD.batteryWh, 6);
+      expect(leg.groundSpeedMps).toBeCloseTo(LIGHT_QUAD.cruiseSpeedMps, 9);
+      expect(leg.durationS).toBeCloseTo(leg.distanceM / LIGHT_QUAD.cruiseSpeedMps, 6);
+      const manoeuvre = leg.toSpanId ? LIGHT_QUAD.perchManoeuvreWh : 0;
+      expect(leg.energyWh).toBeCloseTo((LIGHT_QUAD.cruisePowerW * leg.durationS) / 3600 + manoeuvre, 6);
+      expect(leg.socEndPct).toBeCloseTo(leg.socStartPct - (100 * leg.energyWh) / LIGHT_QUAD.batteryWh, 6);
       // A leg may use at most the energy above the reserve (api.md).
-      expect(leg.socEndPct).toBeGreaterThanOrEqual(SWIFT_QUAD.reservePercent - 1e-9);
+      expect(leg.socEndPct).toBeGreaterThanOrEqual(LIGHT_QUAD.reservePercent - 1e-9);
     }
     const legSum = plan.legs.reduce((s: number, l: { distanceM: number }) => s + l.distanceM, 0);
     expect(plan.totalDistanceM).toBeCloseTo(legSum, 6);
     // Dwell: the battery gains harvestW × η_batt over the hours it sits there, up to the charge-to level (engineering.md §10).
     for (const p of plan.perches) {
-      expect(p.socDepartPct).toBe(SWIFT_QUAD.chargeToPercent);
+      expect(p.socDepartPct).toBe(LIGHT_QUAD.chargeToPercent);
       expect(p.harvestW).toBeGreaterThan(0);
-      const stored = p.harvestByHour.reduce((s: number, h: { harvestW: number; seconds: number }) => s + (h.harvestW * SWIFT_QUAD.chargeEfficiency * h.seconds) / 3600, 0);
-      expect(stored).toBeCloseTo(((p.socDepartPct - p.socArrivePct) / 100) * SWIFT_QUAD.batteryWh, 3);
+      const stored = p.harvestByHour.reduce((s: number, h: { harvestW: number; seconds: number }) => s + (h.harvestW * LIGHT_QUAD.chargeEfficiency * h.seconds) / 3600, 0);
+      expect(stored).toBeCloseTo(((p.socDepartPct - p.socArrivePct) / 100) * LIGHT_QUAD.batteryWh, 3);
       expect(Date.parse(p.departAt) - Date.parse(p.arriveAt)).toBeCloseTo(p.dwellS * 1000, -3);
       expect(p.arriveAt.endsWith('+02:00')).toBe(true);
       expect(p.harvestSource).toBe('estimate');
@@ -99,7 +99,7 @@ describe('a feasible plan', () => {
     expect(legs[legs.length - 1].to.kind).toBe('base');
     expect(legs.some((l: { to: { kind: string } }) => l.to.kind === 'target')).toBe(true);
     expect(res.body.perches.length).toBeGreaterThanOrEqual(3);
-    for (const l of legs) expect(l.socEndPct).toBeGreaterThanOrEqual(SWIFT_QUAD.reservePercent - 1e-9);
+    for (const l of legs) expect(l.socEndPct).toBeGreaterThanOrEqual(LIGHT_QUAD.reservePercent - 1e-9);
   });
 });
 
@@ -120,7 +120,7 @@ describe('no route, and why', () => {
   });
 
   it('when the wind is above the drone limit, then the reason is the wind in words', async () => {
-    const res = await planner.post('/api/missions/plan', request(-30.2, 5_000, { wind: { speedMps: SWIFT_QUAD.windLimitMps + 1, fromDeg: 90 } }));
+    const res = await planner.post('/api/missions/plan', request(-30.2, 5_000, { wind: { speedMps: LIGHT_QUAD.windLimitMps + 1, fromDeg: 90 } }));
     expect(res.status).toBe(200);
     expect(res.body.feasible).toBe(false);
     expect(res.body.reason).toBe('wind');

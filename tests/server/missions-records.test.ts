@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type Client, type TestApp } from './helpers.ts';
 import { lonFor, makeLine, spansAlong } from './missions-fixtures.ts';
 import { waitForAllJobs } from './assessment-helpers.ts';
-import { SWIFT_QUAD, KESTREL_CORE } from '../../shared/engineering/demo-profiles.ts';
+import { LIGHT_QUAD, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
 import { User } from '../../server/modules/auth/user.entity.ts';
 import type { Line } from '../../server/modules/inventory/line.entity.ts';
 import type { Span } from '../../server/modules/inventory/span.entity.ts';
@@ -19,8 +19,8 @@ const LON0 = -130.5;
 const DEPART = '2026-06-01T09:00:00+02:00';
 const request = (lat: number, over: Record<string, unknown> = {}) => ({
   name: `Mission at ${lat}`,
-  droneProfileId: SWIFT_QUAD.id,
-  harvesterProfileId: KESTREL_CORE.id,
+  droneProfileId: LIGHT_QUAD.id,
+  harvesterProfileId: CLAMP_S.id,
   base: { lat, lon: LON0 },
   // 24 km east: beyond one battery (11.5 km calm reach, engineering.md §10), two perches at 8 and 16 km.
   target: { lat, lon: LON0 + lonFor(24_000, lat) },
@@ -233,8 +233,8 @@ describe('needs a new plan', () => {
     await network(lat, own);
     const m = await save(lat, { name: 'Rescored perch' });
     // A 20 °C contact limit is below any loaded conductor's temperature in the design weather (IEEE Std 738 heat balance).
-    const profile = (await admin.get('/api/profiles/harvesters')).body.items.find((h: { id: string }) => h.id === KESTREL_CORE.id);
-    const res = await admin.patch(`/api/profiles/harvesters/${KESTREL_CORE.id}`, { version: profile.version, contactTempLimitC: 20 });
+    const profile = (await admin.get('/api/profiles/harvesters')).body.items.find((h: { id: string }) => h.id === CLAMP_S.id);
+    const res = await admin.patch(`/api/profiles/harvesters/${CLAMP_S.id}`, { version: profile.version, contactTempLimitC: 20 });
     expect(res.status).toBe(200);
     await waitForAllJobs(admin);
     const got = (await planner.get(`/api/missions/${m.id}`)).body;

@@ -49,7 +49,7 @@ describe('needs a decision', () => {
   it('when a new exclude zone covers an approved span, then the desk queue lists it flagged with the zone gate in words, and planners never see it', async () => {
     const { id, lat } = await approvedSpan();
     expect((await decisionQueue()).map((s) => s.id)).not.toContain(id);
-    await excludeZoneAt(lat, 'Kestrel nest');
+    await excludeZoneAt(lat, 'Owl nest');
     const listed = (await decisionQueue()).find((s) => s.id === id);
     expect(listed).toBeDefined();
     expect(listed!.needsDecision).toBe(true);

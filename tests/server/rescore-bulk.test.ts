@@ -11,7 +11,7 @@ import { Zone } from '../../server/modules/zones/zone.entity.ts';
 import { User } from '../../server/modules/auth/user.entity.ts';
 import { assessSpan, createAssessmentMemo, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS, type SpanAssessmentInput } from '../../shared/engineering/assessment.ts';
 import { ACSR_CONDUCTORS, thermalConductorOf } from '../../shared/engineering/conductors.ts';
-import { KESTREL_CORE, SWIFT_QUAD } from '../../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, LIGHT_QUAD } from '../../shared/engineering/demo-profiles.ts';
 
 const NOW = new Date('2026-07-01T12:00:00Z');
 let orm: MikroORM;
@@ -92,7 +92,7 @@ describe('assessment memo', () => {
         weather: rand() < 0.1 ? { ambientC: 25 } : undefined,
       };
       const settings = rand() < 0.2 ? { ...DEFAULT_SCORING_SETTINGS, ampacityMaxConductorC: 75 } : DEFAULT_SCORING_SETTINGS;
-      expect(assessSpan(input, KESTREL_CORE, SWIFT_QUAD, DEFAULT_DESIGN_WEATHER, settings, memo)).toEqual(assessSpan(input, KESTREL_CORE, SWIFT_QUAD, DEFAULT_DESIGN_WEATHER, settings));
+      expect(assessSpan(input, CLAMP_S, LIGHT_QUAD, DEFAULT_DESIGN_WEATHER, settings, memo)).toEqual(assessSpan(input, CLAMP_S, LIGHT_QUAD, DEFAULT_DESIGN_WEATHER, settings));
     }
     expect(memo.thermal.size).toBeLessThan(3000 * 2); // repeats were served from the memo
   }, 60_000);

@@ -1,6 +1,6 @@
 // Equipment profiles, bench tests and scoring settings: defaults, views and the lookups the assessment needs.
 import type { EntityManager } from '@mikro-orm/core';
-import { DEMO_DRONES, DEMO_HARVESTERS, KESTREL_OPEN_CORE } from '#shared/engineering/demo-profiles.ts';
+import { DEMO_DRONES, DEMO_HARVESTERS, CLAMP_S_OPEN } from '#shared/engineering/demo-profiles.ts';
 import { DEFAULT_SCORING_SETTINGS, type ScoringSettings } from '#shared/engineering/assessment.ts';
 import { harvest } from '#shared/engineering/ct-harvester.ts';
 import { benchTest as benchArithmetic } from '#shared/engineering/bench-test.ts';
@@ -35,7 +35,7 @@ export async function ensureAssessmentDefaults(em: EntityManager): Promise<void>
         gripperMaxDiameterMm: h.gripperMaxDiameterMm,
         contactTempLimitC: h.contactTempLimitC,
         usefulMinHarvestW: h.usefulMinHarvestW,
-        active: h.id !== KESTREL_OPEN_CORE.id,
+        active: h.id !== CLAMP_S_OPEN.id,
         sortOrder: i,
         version: 1,
         createdAt: now,

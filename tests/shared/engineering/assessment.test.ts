@@ -7,7 +7,7 @@ import {
   type SpanAssessmentInput,
   type GateId,
 } from '../../../shared/engineering/assessment.ts';
-import { KESTREL_CORE, SWIFT_QUAD } from '../../../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, LIGHT_QUAD } from '../../../shared/engineering/demo-profiles.ts';
 import { codeGroundClearanceM, approachDistanceM } from '../../../shared/engineering/clearance.ts';
 import { ampacityA, conductorTempC } from '../../../shared/engineering/ieee738.ts';
 
@@ -36,7 +36,7 @@ const thermal = (s: SpanAssessmentInput) => ({ ...s.conductor, emissivity: 0.5, 
 
 describe('perch assessment', () => {
   it('when every condition is good, then the span is perchable with all six gates passed', () => {
-    const r = assessSpan(goodSpan(), KESTREL_CORE, SWIFT_QUAD);
+    const r = assessSpan(goodSpan(), CLAMP_S, LIGHT_QUAD);
     expect(r.gates.map((g) => g.id).sort()).toEqual(
       ['ampacity', 'clearance', 'contact-temperature', 'gripper-fit', 'no-perch-zone', 'useful-harvest'].sort(),
     );
@@ -52,7 +52,7 @@ describe('perch assessment', () => {
 
   it('reports code clearance, approach distance and the thermal results from the underlying methods', () => {
     const s = goodSpan();
-    const r = assessSpan(s, KESTREL_CORE, SWIFT_QUAD);
+    const r = assessSpan(s, CLAMP_S, LIGHT_QUAD);
     expect(r.codeClearanceM).toBeCloseTo(codeGroundClearanceM(138), 9); // NESC (ANSI C2) Table 232-1
     expect(r.approachDistanceM).toBeCloseTo(3.3528, 4); // OSHA 29 CFR 1910.333(c)(3): 79.7 kV to ground → 11 ft
     expect(r.approachDistanceM).toBe(approachDistanceM(138));
@@ -67,7 +67,7 @@ describe('perch assessment', () => {
   it('when the conductor is too thick for the gripper, then gripper-fit fails and the span is not perchable', () => {
     const s = goodSpan();
     s.conductor.diameterMm = 40;
-    const r = assessSpan(s, KESTREL_CORE, SWIFT_QUAD);
+    const r = assessSpan(s, CLAMP_S, LIGHT_QUAD);
     expect(gate(r, 'gripper-fit').passed).toBe(false);
     expect(r.perchable).toBe(false);
   });
@@ -75,14 +75,14 @@ describe('perch assessment', () => {
   it('when the conductor is too thin for the gripper, then gripper-fit fails', () => {
     const s = goodSpan();
     s.conductor.diameterMm = 10;
-    expect(gate(assessSpan(s, KESTREL_CORE, SWIFT_QUAD), 'gripper-fit').passed).toBe(false);
+    expect(gate(assessSpan(s, CLAMP_S, LIGHT_QUAD), 'gripper-fit').passed).toBe(false);
   });
 
   it('when the peak load heats the conductor past the contact limit, then contact-temperature fails', () => {
     const s = goodSpan();
     s.loadCurrentA.peak = 1300;
-    const r = assessSpan(s, KESTREL_CORE, SWIFT_QUAD);
-    expect(r.conductorTempC).toBeGreaterThan(KESTREL_CORE.contactTempLimitC);
+    const r = assessSpan(s, CLAMP_S, LIGHT_QUAD);
+    expect(r.conductorTempC).toBeGreaterThan(CLAMP_S.contactTempLimitC);
     expect(gate(r, 'contact-temperature').passed).toBe(false);
     expect(r.perchable).toBe(false);
   });
@@ -90,7 +90,7 @@ describe('perch assessment', () => {
   it('when the span is below the code clearance, then clearance fails', () => {
     const s = goodSpan();
     s.clearanceM = codeGroundClearanceM(138) - 0.1;
-    const r = assessSpan(s, KESTREL_CORE, SWIFT_QUAD);
+    const r = assessSpan(s, CLAMP_S, LIGHT_QUAD);
     expect(gate(r, 'clearance').passed).toBe(false);
     expect(r.perchable).toBe(false);
   });
@@ -99,30 +99,30 @@ describe('perch assessment', () => {
     const s = goodSpan();
     s.voltageKv = 12.47;
     s.clearanceM = 7;
-    expect(gate(assessSpan(s, KESTREL_CORE, SWIFT_QUAD), 'clearance').passed).toBe(true);
-    expect(gate(assessSpan(s, KESTREL_CORE, { ...SWIFT_QUAD, approachClearanceM: 8 }), 'clearance').passed).toBe(false);
+    expect(gate(assessSpan(s, CLAMP_S, LIGHT_QUAD), 'clearance').passed).toBe(true);
+    expect(gate(assessSpan(s, CLAMP_S, { ...LIGHT_QUAD, approachClearanceM: 8 }), 'clearance').passed).toBe(false);
   });
 
   it('when clearance was never surveyed, then clearance fails', () => {
     const s = goodSpan();
     s.clearanceM = null;
-    expect(gate(assessSpan(s, KESTREL_CORE, SWIFT_QUAD), 'clearance').passed).toBe(false);
+    expect(gate(assessSpan(s, CLAMP_S, LIGHT_QUAD), 'clearance').passed).toBe(false);
   });
 
   it('when the span lies in an active exclude zone, then no-perch-zone fails', () => {
     const s = goodSpan();
     s.zones.inExclude = true;
-    const r = assessSpan(s, KESTREL_CORE, SWIFT_QUAD);
+    const r = assessSpan(s, CLAMP_S, LIGHT_QUAD);
     expect(gate(r, 'no-perch-zone').passed).toBe(false);
     expect(r.perchable).toBe(false);
   });
 
   it('when the load estimate exceeds the ampacity, then the ampacity flag fails, data quality drops, but it does not block', () => {
-    const hotHarvester = { ...KESTREL_CORE, contactTempLimitC: 250 };
-    const good = assessSpan(goodSpan(), hotHarvester, SWIFT_QUAD);
+    const hotHarvester = { ...CLAMP_S, contactTempLimitC: 250 };
+    const good = assessSpan(goodSpan(), hotHarvester, LIGHT_QUAD);
     const s = goodSpan();
     s.loadCurrentA.peak = 1400;
-    const r = assessSpan(s, hotHarvester, SWIFT_QUAD);
+    const r = assessSpan(s, hotHarvester, LIGHT_QUAD);
     expect(r.ampacityA).toBeLessThan(1400);
     expect(gate(r, 'ampacity').passed).toBe(false);
     expect(gate(r, 'ampacity').blocking).toBe(false);
@@ -134,8 +134,8 @@ describe('perch assessment', () => {
   it('when the typical load is too light, then useful-harvest fails', () => {
     const s = goodSpan();
     s.loadCurrentA = { min: 10, typical: 30, peak: 60 };
-    const r = assessSpan(s, KESTREL_CORE, SWIFT_QUAD);
-    expect(r.harvestW).toBeLessThan(KESTREL_CORE.usefulMinHarvestW);
+    const r = assessSpan(s, CLAMP_S, LIGHT_QUAD);
+    expect(r.harvestW).toBeLessThan(CLAMP_S.usefulMinHarvestW);
     expect(gate(r, 'useful-harvest').passed).toBe(false);
     expect(r.perchable).toBe(false);
   });
@@ -144,8 +144,8 @@ describe('perch assessment', () => {
     const s = goodSpan();
     s.conductor.subConductors = 2;
     s.loadCurrentA = { min: 600, typical: 1400, peak: 1700 };
-    const single = assessSpan(goodSpan(), KESTREL_CORE, SWIFT_QUAD);
-    expect(assessSpan(s, KESTREL_CORE, SWIFT_QUAD).harvestW).toBeCloseTo(single.harvestW, 9); // Ampère's law (core encloses I/n)
+    const single = assessSpan(goodSpan(), CLAMP_S, LIGHT_QUAD);
+    expect(assessSpan(s, CLAMP_S, LIGHT_QUAD).harvestW).toBeCloseTo(single.harvestW, 9); // Ampère's law (core encloses I/n)
   });
 });
 
@@ -162,7 +162,7 @@ describe('perch score', () => {
     bad.loadCurrentA = { min: 0, typical: 0, peak: 0 };
     variants.push(bad);
     for (const s of variants) {
-      const r = assessSpan(s, KESTREL_CORE, SWIFT_QUAD);
+      const r = assessSpan(s, CLAMP_S, LIGHT_QUAD);
       expect(r.score).toBeGreaterThanOrEqual(0);
       expect(r.score).toBeLessThanOrEqual(100);
       const sum = r.factors.reduce((a, f) => a + f.contribution, 0);
@@ -174,45 +174,45 @@ describe('perch score', () => {
         expect(f.contribution).toBeCloseTo((100 * f.value * f.weight) / totalWeight, 9);
       }
     }
-    expect(assessSpan(bad, KESTREL_CORE, SWIFT_QUAD).score).toBe(0);
+    expect(assessSpan(bad, CLAMP_S, LIGHT_QUAD).score).toBe(0);
   });
 
   it('names five kebab-case factors', () => {
-    const ids = assessSpan(goodSpan(), KESTREL_CORE, SWIFT_QUAD).factors.map((f) => f.id);
+    const ids = assessSpan(goodSpan(), CLAMP_S, LIGHT_QUAD).factors.map((f) => f.id);
     expect(ids).toEqual(['power-margin', 'clearance-margin', 'hazards', 'span-exposure', 'data-quality']);
     for (const id of ids) expect(id).toMatch(/^[a-z]+(-[a-z]+)*$/);
   });
 
   it('when hazards or caution zones are added, then the score falls', () => {
-    const base = assessSpan(goodSpan(), KESTREL_CORE, SWIFT_QUAD).score;
+    const base = assessSpan(goodSpan(), CLAMP_S, LIGHT_QUAD).score;
     const low = goodSpan();
     low.hazards = [{ severity: 'low' }];
     const high = goodSpan();
     high.hazards = [{ severity: 'high' }];
     const caution = goodSpan();
     caution.zones.inCautionCount = 1;
-    const sLow = assessSpan(low, KESTREL_CORE, SWIFT_QUAD).score;
-    const sHigh = assessSpan(high, KESTREL_CORE, SWIFT_QUAD).score;
+    const sLow = assessSpan(low, CLAMP_S, LIGHT_QUAD).score;
+    const sHigh = assessSpan(high, CLAMP_S, LIGHT_QUAD).score;
     expect(sLow).toBeLessThan(base);
     expect(sHigh).toBeLessThan(sLow);
-    expect(assessSpan(caution, KESTREL_CORE, SWIFT_QUAD).score).toBeLessThan(base);
+    expect(assessSpan(caution, CLAMP_S, LIGHT_QUAD).score).toBeLessThan(base);
   });
 
   it('when the survey is stale or incomplete, then the score falls', () => {
-    const base = assessSpan(goodSpan(), KESTREL_CORE, SWIFT_QUAD).score;
+    const base = assessSpan(goodSpan(), CLAMP_S, LIGHT_QUAD).score;
     const old = goodSpan();
     old.surveyAgeDays = 1000;
     const partial = goodSpan();
     partial.completeness = { ...partial.completeness, photos: false };
-    expect(assessSpan(old, KESTREL_CORE, SWIFT_QUAD).score).toBeLessThan(base);
-    expect(assessSpan(partial, KESTREL_CORE, SWIFT_QUAD).score).toBeLessThan(base);
+    expect(assessSpan(old, CLAMP_S, LIGHT_QUAD).score).toBeLessThan(base);
+    expect(assessSpan(partial, CLAMP_S, LIGHT_QUAD).score).toBeLessThan(base);
   });
 
   it('when the span is very short or very long, then span exposure scores less', () => {
     const exposure = (lengthM: number) => {
       const s = goodSpan();
       s.lengthM = lengthM;
-      return assessSpan(s, KESTREL_CORE, SWIFT_QUAD).factors.find((f) => f.id === 'span-exposure')!.value;
+      return assessSpan(s, CLAMP_S, LIGHT_QUAD).factors.find((f) => f.id === 'span-exposure')!.value;
     };
     expect(exposure(40)).toBeLessThan(exposure(300));
     expect(exposure(900)).toBeLessThan(exposure(300));
@@ -220,7 +220,7 @@ describe('perch score', () => {
 
   it('when weights change, then contributions follow them', () => {
     const settings = { ...DEFAULT_SCORING_SETTINGS, weights: { 'power-margin': 1, 'clearance-margin': 0, hazards: 0, 'span-exposure': 0, 'data-quality': 0 } };
-    const r = assessSpan(goodSpan(), KESTREL_CORE, SWIFT_QUAD, DEFAULT_DESIGN_WEATHER, settings);
+    const r = assessSpan(goodSpan(), CLAMP_S, LIGHT_QUAD, DEFAULT_DESIGN_WEATHER, settings);
     const power = r.factors.find((f) => f.id === 'power-margin')!;
     expect(r.score).toBeCloseTo(100 * power.value, 9);
     expect(r.factors.filter((f) => f.id !== 'power-margin').every((f) => f.contribution === 0)).toBe(true);

@@ -1,7 +1,7 @@
 // Gate details carry their figures as SI quantities, so a US-units screen reads ft, in, °F; the metric words stay as before.
 import { describe, expect, it } from 'vitest';
 import { assessSpan, detailText, type GateId, type SpanAssessmentInput } from '../../../shared/engineering/assessment.ts';
-import { KESTREL_CORE, SWIFT_QUAD } from '../../../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, LIGHT_QUAD } from '../../../shared/engineering/demo-profiles.ts';
 import { codeGroundClearanceM } from '../../../shared/engineering/clearance.ts';
 
 const span = (over: Partial<SpanAssessmentInput> = {}): SpanAssessmentInput => ({
@@ -18,11 +18,11 @@ const span = (over: Partial<SpanAssessmentInput> = {}): SpanAssessmentInput => (
   ...over,
 });
 
-const gate = (id: GateId, s = span()) => assessSpan(s, KESTREL_CORE, SWIFT_QUAD).gates.find((g) => g.id === id)!;
+const gate = (id: GateId, s = span()) => assessSpan(s, CLAMP_S, LIGHT_QUAD).gates.find((g) => g.id === id)!;
 
 describe('gate details in the user units', () => {
   it('when read in metric, then the parts read exactly as the detail words', () => {
-    for (const g of assessSpan(span(), KESTREL_CORE, SWIFT_QUAD).gates) expect(detailText(g.parts, 'metric')).toBe(g.detail);
+    for (const g of assessSpan(span(), CLAMP_S, LIGHT_QUAD).gates) expect(detailText(g.parts, 'metric')).toBe(g.detail);
   });
 
   it('when read in US units, then the clearance figures are in feet', () => {
@@ -30,7 +30,7 @@ describe('gate details in the user units', () => {
     const code = codeGroundClearanceM(138); // NESC (ANSI C2) Table 232-1
     // 1 ft = 0.3048 m exactly (international foot, 1959).
     const ft = (m: number) => `${(m / 0.3048).toFixed(1)} ft`;
-    expect(detailText(g.parts, 'us')).toBe(`clearance ${ft(12)}; code ${ft(code)}, drone ${ft(SWIFT_QUAD.approachClearanceM)}`);
+    expect(detailText(g.parts, 'us')).toBe(`clearance ${ft(12)}; code ${ft(code)}, drone ${ft(LIGHT_QUAD.approachClearanceM)}`);
     expect(detailText(g.parts, 'us')).not.toMatch(/ m\b/);
   });
 
