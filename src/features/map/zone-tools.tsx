@@ -6,6 +6,7 @@ import type { Polygon } from 'geojson';
 import { TerraDraw, TerraDrawPolygonMode, TerraDrawSelectMode } from 'terra-draw';
 import { TerraDrawMapLibreGLAdapter } from 'terra-draw-maplibre-gl-adapter';
 import { ApiError } from '../../lib/api.ts';
+import { date } from '../../lib/format.ts';
 import { Caution } from '../../components/caution.tsx';
 import { mapApi, type ZoneProperties } from './api.ts';
 import { ZONE_COLOURS } from './map-styles.ts';
@@ -62,7 +63,7 @@ function ZoneDetails({ zone }: { zone: ZoneProperties }) {
       <dd>{zone.reason}</dd>
       <dt className="text-ink-700">Valid</dt>
       <dd>
-        {zone.validFrom ?? 'always'} → {zone.validTo ?? 'open-ended'} {zone.active ? '' : '(not in force today)'}
+        {zone.validFrom ? date(zone.validFrom) : 'always'} → {zone.validTo ? date(zone.validTo) : 'open-ended'} {zone.active ? '' : '(not in force today)'}
       </dd>
     </dl>
   );

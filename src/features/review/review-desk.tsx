@@ -4,7 +4,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Span } from '#shared/schemas/inventory.ts';
 import { formatQuantity } from '#shared/units.ts';
 import { ApiError } from '../../lib/api.ts';
-import { gateDetail } from '../../lib/format.ts';
+import { date, gateDetail } from '../../lib/format.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { spanApi } from '../spans/api.ts';
@@ -239,7 +239,7 @@ function SpanReview({
           <Link to={`/spans/${span.id}`} className="ml-auto text-sm font-semibold underline">Full record</Link>
         </div>
         <p className="text-ink-700">
-          {span.lineName} · surveyed {span.surveyDate ?? '—'}
+          {span.lineName} · surveyed {date(span.surveyDate)}
           {span.status === 'submitted' && ` · waiting ${waitingFor(queuedSince(span, 'submitted'))}`}
         </p>
         <dl className="grid grid-cols-2 gap-3 sm:grid-cols-4">

@@ -7,6 +7,7 @@ import { useMe } from '../../auth/queries.ts';
 import { fieldQueries } from '../queries.ts';
 import { StatusBadge } from '../../spans/components/status-badge.tsx';
 import { groupQueue } from '../queue.ts';
+import { date } from '../../../lib/format.ts';
 
 export function MySpansQueue() {
   const me = useMe();
@@ -51,7 +52,7 @@ export function MySpansQueue() {
                     </span>
                     <span className="text-sm text-ink-700">
                       {s.lineName} · {formatQuantity(s.lengthM, 'length', me.unitSystem)}
-                      {s.terrain ? ` · ${TERRAIN_LABELS[s.terrain]}` : ''} · {s.surveyDate ?? 'no survey date'}
+                      {s.terrain ? ` · ${TERRAIN_LABELS[s.terrain]}` : ''} · {s.surveyDate ? date(s.surveyDate) : 'no survey date'}
                     </span>
                     {s.status === 'returned' && s.returnReason && (
                       <span className="mt-1 rounded-lg bg-red-50 p-2 text-ink-900">
