@@ -14,6 +14,8 @@ import { ApiError, isNetworkError } from '../lib/api.ts';
  * With no signal and no copy, nobody (sign-in says it needs a connection).
  */
 let askedServer = false;
+/** The device kept a user but the server says nobody: the session ended while the app was closed. */
+let endedWhileAway = false;
 export async function currentUser() {
   await cacheRestored;
   const kept = queryClient.getQueryData(authQueries.me().queryKey) ?? null;
@@ -22,6 +24,7 @@ export async function currentUser() {
     if (!askedServer && onlineManager.isOnline()) {
       const me = await queryClient.fetchQuery({ ...authQueries.me(), staleTime: 0 });
       askedServer = true;
+      endedWhileAway = !!kept && !me;
       return me;
     }
     return await queryClient.ensureQueryData(authQueries.me());
@@ -35,9 +38,14 @@ export async function requireSession({ request }: LoaderFunctionArgs) {
   const me = await currentUser();
   if (!me) {
     const url = new URL(request.url);
-    throw redirect(`/sign-in?next=${encodeURIComponent(url.pathname + url.search)}`);
+    throw redirect(signInUrl(url.pathname + url.search, endedWhileAway));
   }
   return null;
+}
+
+/** The sign-in page, coming back to `next` afterwards; `ended` makes it say the session ended. */
+export function signInUrl(next: string, ended = false) {
+  return `/sign-in?${ended ? 'ended=1&' : ''}next=${encodeURIComponent(next)}`;
 }
 
 export async function homeRedirect() {
@@ -45,7 +53,9 @@ export async function homeRedirect() {
   return redirect(me ? homeFor(me.roles) : '/sign-in');
 }
 
-export async function signInLoader() {
+export async function signInLoader({ request }: LoaderFunctionArgs) {
+  // Sent here because the server ended the session: the page is shown whatever the device still remembers.
+  if (new URL(request.url).searchParams.has('ended')) return null;
   const me = await currentUser();
   return me ? redirect(homeFor(me.roles)) : null;
 }

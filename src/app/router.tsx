@@ -1,5 +1,6 @@
 import { createBrowserRouter } from 'react-router';
 import { AppLayout } from './layout.tsx';
+import { handleEndedSessions } from './session.ts';
 import { homeRedirect, requireSession, RoleGate, RouteErrorBoundary, signInLoader } from './route-guards.tsx';
 import type { ReactNode } from 'react';
 import { SignInPage } from '../features/auth/sign-in-page.tsx';
@@ -68,3 +69,6 @@ export const router = createBrowserRouter([
     ],
   },
 ]);
+
+// Any 401 from the API while the app is open brings the sign-in page, then back to the same page.
+handleEndedSessions(router);

@@ -16,6 +16,21 @@ export class ApiError extends Error {
   }
 }
 
+let sessionEnded: (() => void) | null = null;
+
+/** What the app does when the server says the session has ended (src/app/session.ts sends the user to sign-in). */
+export function onSessionEnded(handler: () => void) {
+  sessionEnded = handler;
+}
+
+/**
+ * Every answer passes here: a 401 from anything but the sign-in calls themselves (`/api/auth/…`, whose 401 means
+ * a wrong password) means the session expired or was ended elsewhere.
+ */
+export function noteAnswer(url: string, status: number) {
+  if (status === 401 && !new URL(url, 'http://app').pathname.startsWith('/api/auth/')) sessionEnded?.();
+}
+
 async function request<T>(method: string, url: string, body?: unknown, headers: Record<string, string> = {}): Promise<T> {
   let res: Response;
   try {
@@ -32,6 +47,7 @@ async function request<T>(method: string, url: string, body?: unknown, headers: 
   if (res.status === 204) return undefined as T;
   const data = await res.json().catch(() => null);
   if (!res.ok) {
+    noteAnswer(url, res.status);
     const err = (data as ApiErrorBody | null)?.error;
     throw new ApiError(res.status, err?.code ?? 'unknown', err?.message ?? `Request failed (${res.status})`, err?.issues, data);
   }

@@ -1,6 +1,6 @@
 // File upload with progress: fetch() cannot report upload progress, XMLHttpRequest can.
 import type { ApiErrorBody } from '#shared/api-error.ts';
-import { ApiError } from './api.ts';
+import { ApiError, noteAnswer } from './api.ts';
 
 export interface UploadProgress {
   loaded: number;
@@ -25,6 +25,7 @@ export function uploadWithProgress<T>(url: string, body: FormData | Blob, onProg
         data = null;
       }
       if (xhr.status >= 200 && xhr.status < 300) return resolve(data as T);
+      noteAnswer(url, xhr.status);
       const err = (data as ApiErrorBody | null)?.error;
       reject(new ApiError(xhr.status, err?.code ?? 'unknown', err?.message ?? `Upload failed (${xhr.status})`, err?.issues, data));
     };

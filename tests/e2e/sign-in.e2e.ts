@@ -57,6 +57,71 @@ describe('sign-in journeys', () => {
   });
 });
 
+describe('a session that ends while the app is open', () => {
+  it('when the session is ended from elsewhere and the user acts, then the sign-in page says so, and signing in returns to the same page', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
+    const consoleErrors: string[] = [];
+    let watching = false;
+    page.on('console', (m) => {
+      if (watching && m.type() === 'error') consoleErrors.push(m.text());
+    });
+    page.on('pageerror', (e) => {
+      if (watching) consoleErrors.push(e.message);
+    });
+    await h.signIn(page, 'safety');
+    await page.waitForURL((u) => u.pathname === '/review');
+    await page.goto('/spans?status=approved&sort=-harvestW');
+    await page.getByRole('table', { name: 'Spans' }).waitFor();
+
+    // Ended from another place with the same cookie (as signing out on another tab or device does).
+    const cookie = (await context.cookies()).map((c) => `${c.name}=${c.value}`).join('; ');
+    const out = await fetch(`${h.baseUrl}/api/auth/sign-out`, { method: 'POST', headers: { Cookie: cookie, Origin: h.baseUrl, 'Content-Type': 'application/json' }, body: '{}' });
+    expect(out.status).toBe(204);
+
+    // The next action asks the server, which answers 401.
+    await page.locator('#f-status').selectOption('submitted');
+    await page.waitForURL((u) => u.pathname === '/sign-in', { timeout: 20_000 });
+    const next = new URL(page.url()).searchParams.get('next')!;
+    expect(next.startsWith('/spans?')).toBe(true);
+    expect(new URLSearchParams(next.split('?')[1]).get('status')).toBe('submitted');
+    expect(new URLSearchParams(next.split('?')[1]).get('sort')).toBe('-harvestW');
+    const notice = page.getByTestId('session-ended');
+    await notice.waitFor();
+    expect(await notice.innerText()).toContain('Your session ended — sign in again');
+
+    // A fresh load of the sign-in page logs nothing in the console (its "who is signed in?" probe answers 200).
+    watching = true;
+    await page.reload();
+    await page.getByTestId('session-ended').waitFor();
+    await page.getByLabel('E-mail').fill('safety@roostline.test');
+    await page.getByLabel('Password').fill('roostline-demo');
+    await page.getByRole('button', { name: 'Sign in' }).click();
+    await page.waitForURL((u) => u.pathname + u.search === next, { timeout: 20_000 });
+    watching = false;
+    await page.getByRole('table', { name: 'Spans' }).waitFor();
+    expect(await page.locator('#f-status').inputValue()).toBe('submitted');
+    expect(consoleErrors).toEqual([]);
+    await context.close();
+  });
+
+  it('when a visitor opens the sign-in page without a session, then the console shows no error', async () => {
+    const { context, page } = await h.newPage();
+    const errors: string[] = [];
+    page.on('console', (m) => {
+      if (m.type() === 'error') errors.push(m.text());
+    });
+    page.on('pageerror', (e) => errors.push(e.message));
+    await page.goto('/sign-in');
+    await page.getByRole('button', { name: 'Sign in' }).waitFor();
+    await page.goto('/');
+    await page.waitForURL((u) => u.pathname === '/sign-in');
+    await page.getByRole('button', { name: 'Sign in' }).waitFor();
+    await new Promise((r) => setTimeout(r, 500));
+    expect(errors).toEqual([]);
+    await context.close();
+  });
+});
+
 describe('planning home', () => {
   it('when the planner lands, then approved spans are listed by harvestable power, highest first, with a chart', async () => {
     const { context, page } = await h.newPage();

@@ -84,6 +84,23 @@ describe('sessions', () => {
     expect((await c.get('/api/me')).status).toBe(401);
   });
 
+  it('when the app asks who is signed in, then the probe answers 200 with the user or with null, and /api/me keeps its 401', async () => {
+    const anon = t.client();
+    const none = await anon.get('/api/auth/session');
+    expect(none.status).toBe(200);
+    expect(none.body).toEqual({ user: null });
+    expect((await anon.get('/api/me')).status).toBe(401);
+    const c = await t.as('safety');
+    const signedIn = await c.get('/api/auth/session');
+    expect(signedIn.status).toBe(200);
+    expect(signedIn.body.user).toMatchObject({ email: 'safety@roostline.test', roles: ['safety'] });
+    expect(signedIn.body.user).toEqual((await c.get('/api/me')).body.user);
+    // An ended session is "nobody" to the probe, and 401 everywhere else.
+    expect((await c.post('/api/auth/sign-out')).status).toBe(204);
+    expect((await c.get('/api/auth/session')).body).toEqual({ user: null });
+    expect((await c.get('/api/spans')).status).toBe(401);
+  });
+
   it('when a user changes the password, then the old one stops working and the new one works', async () => {
     const c = await t.as('surveyor');
     const bad = await c.post('/api/me/password', { currentPassword: 'wrong-one-here', newPassword: 'a-new-long-secret' });

@@ -32,6 +32,12 @@ export function authRouter(ctx: AppContext) {
     res.json({ user: toMe(user) });
   });
 
+  // The app's own "who is signed in?" probe: 200 with or without a session (`/api/me` answers 401 without one), so
+  // opening the sign-in page is not an error in the browser's console.
+  r.get('/session', 'public', (req, res) => {
+    res.json({ user: req.user ? toMe(req.user) : null });
+  });
+
   r.post('/sign-out', 'signed-in', async (req, res) => {
     await ctx.lucia.invalidateSession(req.sessionId!);
     res.append('Set-Cookie', ctx.lucia.createBlankSessionCookie().serialize());

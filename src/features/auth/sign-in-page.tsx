@@ -40,6 +40,11 @@ export function SignInPage() {
             <p className="text-sm text-ink-700">Perch-site survey and line inventory</p>
           </div>
         </div>
+        {params.get('ended') && !formError && (
+          <p role="status" className="mb-4 rounded-lg border-2 border-brass-500 bg-brass-100 p-3 text-sm font-semibold" data-testid="session-ended">
+            Your session ended — sign in again. You will come back to the page you were on.
+          </p>
+        )}
         {!online && (
           <p role="status" className="mb-4 rounded-lg border-2 border-brass-500 bg-brass-100 p-3 text-sm" data-testid="offline-sign-in">
             No connection. Signing in needs the network once; after that Roostline keeps working in the field without it.
