@@ -2,7 +2,9 @@
 // thumbnail and the spans within 60 m for the surveyor to confirm.
 import { lazy, Suspense, useCallback, useEffect, useId, useRef, useState } from 'react';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
+import { formatQuantity } from '#shared/units.ts';
 import { ApiError } from '../../lib/api.ts';
+import { useMe } from '../auth/queries.ts';
 import { inventoryQueries, spanQueries } from '../spans/queries.ts';
 import { photoApi, uploadPhoto, type UploadHandle } from './api.ts';
 import { formatBytes, formatPosition, formatTakenAt } from './format.ts';
@@ -386,6 +388,7 @@ function LinkChoices({
   onPlace: (lat: number, lon: number) => void;
 }) {
   const [locating, setLocating] = useState<string | null>(null);
+  const system = useMe().unitSystem;
   const others = photo.suggestions.filter((s) => s.spanId !== photo.spanId);
   const useHere = () => {
     if (!('geolocation' in navigator)) return setLocating('This device cannot tell its position');
@@ -410,12 +413,12 @@ function LinkChoices({
       )}
       {others.length > 0 && (
         <div className="space-y-1">
-          <p className="text-xs font-semibold text-ink-800">{photo.spanId ? 'Also near:' : 'Spans within 60 m — confirm one:'}</p>
+          <p className="text-xs font-semibold text-ink-800">{photo.spanId ? 'Also near:' : `Spans within ${formatQuantity(60, 'length', system, { digits: 0 })} — confirm one:`}</p>
           <ul className="flex flex-wrap gap-1" aria-label="Suggested spans">
             {others.map((s) => (
               <li key={s.spanId}>
                 <button type="button" className="btn-ghost min-h-10 px-2 text-xs" onClick={() => onLink(s.spanId)}>
-                  {s.spanId === spanId ? 'This span' : <SpanName id={s.spanId} />} · {Math.round(s.distanceM)} m
+                  {s.spanId === spanId ? 'This span' : <SpanName id={s.spanId} />} · {formatQuantity(s.distanceM, 'length', system, { digits: 0 })}
                 </button>
               </li>
             ))}
