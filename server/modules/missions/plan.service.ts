@@ -29,6 +29,8 @@ const ASSUMED_SAG_RATIO = 0.03;
 const M_PER_DEG_LAT = 111_320;
 /** Spans that would bridge a gap, listed at most. */
 const MAX_BRIDGING = 10;
+/** Above this many perches near the route the search runs on the best-harvesting span per grid cell (README "Missions"). */
+export const MAX_SEARCH_PERCHES = 1500;
 
 export interface PlanContext {
   drone: DroneProfile;
@@ -120,7 +122,6 @@ const SPAN_COLUMNS =
   'a.lat as alat, a.lon as alon, a.attachment_height_m as ah, a.label as alabel, b.lat as blat, b.lon as blon, b.attachment_height_m as bh, b.label as blabel';
 const SPAN_FROM = 'from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id';
 const IN_BOX = '(a.lat + b.lat) / 2 between ? and ? and (a.lon + b.lon) / 2 between ? and ?';
-const PAIR_PERCHABLE = 'exists (select 1 from assessments pa where pa.span_id = s.id and pa.harvester_profile_id = ? and pa.drone_profile_id = ? and pa.perchable = 1)';
 
 /** Mid-span sag: from the lowest clearance and where it was measured (flat ground), else the clearance at mid-span, else assumed. */
 function sagOf(r: SpanRow): { sagM: number; source: PerchCandidate['sagSource'] } {
@@ -146,20 +147,18 @@ function hourlyHarvest(harvester: HarvesterProfile, line: MeasuredLine, spanLoad
   return profile.map((a) => harvestPowerW(model, a * scale, line.frequencyHz));
 }
 
-/** The approved spans perchable for the pair whose mid-point lies in the box, as perches. */
-export async function perchCandidates(em: EntityManager, ctx: PlanContext, box: ReturnType<typeof boxAround>): Promise<PerchCandidate[]> {
-  const rows = (await em
+/** The approved spans perchable for the pair whose mid-point lies in the box, as perches (thinned above `max`). */
+export async function perchCandidates(em: EntityManager, ctx: PlanContext, box: ReturnType<typeof boxAround>, max = MAX_SEARCH_PERCHES): Promise<{ perches: PerchCandidate[]; nearRoute: number }> {
+  const all = (await em
     .getConnection()
-    .execute(`select ${SPAN_COLUMNS} ${SPAN_FROM} where s.status = ? and ${IN_BOX} and ${PAIR_PERCHABLE} order by s.id`, [
-      'approved',
-      box.lat0,
-      box.lat1,
-      box.lon0,
-      box.lon1,
-      ctx.harvester.id,
-      ctx.drone.id,
-    ])) as SpanRow[];
-  if (rows.length === 0) return [];
+    .execute(
+      `select ${SPAN_COLUMNS}, pa.harvest_w as harvest_w ${SPAN_FROM} ` +
+        'join assessments pa on pa.span_id = s.id and pa.harvester_profile_id = ? and pa.drone_profile_id = ? and pa.perchable = 1 ' +
+        `where s.status = ? and ${IN_BOX} order by s.id`,
+      [ctx.harvester.id, ctx.drone.id, 'approved', box.lat0, box.lat1, box.lon0, box.lon1],
+    )) as (SpanRow & { harvest_w: number })[];
+  const rows = thinPerches(all, box, max);
+  if (rows.length === 0) return { perches: [], nearRoute: all.length };
   const lineIds = [...new Set(rows.map((r) => r.line_id))];
   const lines: MeasuredLine[] = [];
   // The departure's month as written in its own offset: series days are local days, so months are local too.
@@ -195,7 +194,29 @@ export async function perchCandidates(em: EntityManager, ctx: PlanContext, box: 
       spanVersion: r.version,
     });
   }
-  return out;
+  return { perches: out, nearRoute: all.length };
+}
+
+/**
+ * With many perches near the route, keeps the span with the highest assessed harvest (at its typical load) in each
+ * cell of a grid sized so that the box holds about `max` cells: a route's perch is then at most one cell diagonal
+ * from the one it would have used, on a span harvesting at least as much at its typical load.
+ */
+export function thinPerches<T extends { id: string; alat: number; alon: number; blat: number; blon: number; harvest_w: number }>(rows: T[], box: ReturnType<typeof boxAround>, max: number): T[] {
+  if (rows.length <= max) return rows;
+  const midLat = (box.lat0 + box.lat1) / 2;
+  const mPerDegLon = M_PER_DEG_LAT * Math.cos((midLat * Math.PI) / 180);
+  const areaM2 = (box.lat1 - box.lat0) * M_PER_DEG_LAT * (box.lon1 - box.lon0) * mPerDegLon;
+  const cellM = Math.max(200, Math.sqrt(areaM2 / max));
+  const best = new Map<string, T>();
+  for (const r of rows) {
+    const lat = (r.alat + r.blat) / 2;
+    const lon = (r.alon + r.blon) / 2;
+    const key = `${Math.floor(((lat - box.lat0) * M_PER_DEG_LAT) / cellM)}:${Math.floor(((lon - box.lon0) * mPerDegLon) / cellM)}`;
+    const kept = best.get(key);
+    if (!kept || r.harvest_w > kept.harvest_w || (r.harvest_w === kept.harvest_w && r.id < kept.id)) best.set(key, r);
+  }
+  return [...best.values()].sort((a, b) => (a.id < b.id ? -1 : 1));
 }
 
 interface ActiveZone {
@@ -247,7 +268,7 @@ export async function planMission(em: EntityManager, req: PlanRequest, ctx: Plan
   // Perches considered: mid-points within one full-battery hop (at the best ground speed) of the box around base and target.
   const hopM = (usableWh(drone, 100) * 3600 * (drone.cruiseSpeedMps + wind.speedMps)) / drone.cruisePowerW;
   const box = boxAround([req.base, req.target], Math.min(hopM, 500_000));
-  const [perches, zones] = await Promise.all([perchCandidates(em, ctx, box), activeZonesOn(em, ctx.departAtMs)]);
+  const [{ perches, nearRoute }, zones] = await Promise.all([perchCandidates(em, ctx, box), activeZonesOn(em, ctx.departAtMs)]);
   const index = buildIndex(perches);
   const excludes = zones.filter((z) => z.severity === 'exclude');
   const blocked = (a: Point, b: Point) => zonesOnLeg(excludes, a, b, 'exclude')[0]?.id ?? null;
@@ -264,13 +285,13 @@ export async function planMission(em: EntityManager, req: PlanRequest, ctx: Plan
     index,
     blocked: excludes.length ? blocked : undefined,
   };
-  const found = searchRoute(input);
-  if (found.found) return feasible(req, ctx, input, found, perches, zones);
-  const result = await explainNoRoute(em, req, ctx, input, found, perches, zones);
-  return { result, spanIds: [], spanVersions: {} };
+  const result = searchRoute(input);
+  if (result.found) return feasible(req, ctx, input, result, perches, zones, nearRoute);
+  const why = await explainNoRoute(em, req, ctx, input, result, perches, zones);
+  return { result: { ...why, perchesNearRoute: nearRoute }, spanIds: [], spanVersions: {} };
 }
 
-function feasible(req: PlanRequest, ctx: PlanContext, input: SearchInput, r: Extract<SearchResult, { found: true }>, perches: PerchCandidate[], zones: ActiveZone[]): PlanOutcome {
+function feasible(req: PlanRequest, ctx: PlanContext, input: SearchInput, r: Extract<SearchResult, { found: true }>, perches: PerchCandidate[], zones: ActiveZone[], nearRoute: number): PlanOutcome {
   const iso = (ms: number) => isoAt(Math.round(ms / 1000), ctx.offsetMin);
   const drone = ctx.missionDrone;
   const stopOf = (s: { kind: string; perch: number; lat: number; lon: number }) => {
@@ -358,6 +379,7 @@ function feasible(req: PlanRequest, ctx: PlanContext, input: SearchInput, r: Ext
     perches: out,
     cautionZones: [...new Map(legs.flatMap((l) => l.cautionZones).map((z) => [z.id, z])).values()],
     perchesConsidered: perches.length,
+    perchesNearRoute: nearRoute,
   };
   const spanIds = out.map((p) => p.spanId);
   return { result, spanIds, spanVersions: Object.fromEntries(spanIds.map((id) => [id, perches.find((p) => p.spanId === id)!.spanVersion])) };

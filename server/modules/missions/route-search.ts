@@ -40,7 +40,8 @@ export function buildIndex(perches: readonly Point[]): KDBush {
   return idx.finish();
 }
 
-const COUNT = 1e9; // fewest-perches: perch count first, then time (s)
+const COUNT = 1e9;
+const RAD = Math.PI / 180; // fewest-perches: perch count first, then time (s)
 
 /** The time-dependent A* (heuristic: remaining distance at the best ground speed, plus the least dwell the
  * remaining energy needs at the best harvest anywhere; admissible and consistent). */
@@ -65,9 +66,24 @@ export function searchRoute(input: SearchInput): SearchResult {
   const outbound = (s: number) => s <= n;
   const dist = (a: Point, b: Point) => geodesicInverse({ latDeg: a.lat, lonDeg: a.lon }, { latDeg: b.lat, lonDeg: b.lon }).lengthM;
   const targetToBase = input.returnToBase ? dist(input.target, input.base) : 0;
+  // Each perch's distance to the target and to the base, computed once (the heuristic asks for them on every relaxation).
+  const toTargetM = new Float64Array(n).fill(NaN);
+  const toBaseM = new Float64Array(n).fill(NaN);
+  const baseToTarget = dist(input.base, input.target);
+  const remainingM = (s: number): number => {
+    if (s === 0) return baseToTarget + targetToBase;
+    if (s > 2 * n) return targetToBase;
+    const i = s <= n ? s - 1 : s - n - 1;
+    if (s <= n) {
+      if (Number.isNaN(toTargetM[i]!)) toTargetM[i] = dist(perches[i]!, input.target);
+      return toTargetM[i]! + targetToBase;
+    }
+    if (Number.isNaN(toBaseM[i]!)) toBaseM[i] = dist(perches[i]!, input.base);
+    return toBaseM[i]!;
+  };
   const h = (s: number): number => {
     if (s === GOAL) return 0;
-    const d = outbound(s) ? dist(pos(s), input.target) + targetToBase : dist(pos(s), input.base);
+    const d = remainingM(s);
     const deficit = Math.max(0, whPerM * d - usableWh(drone, soc[s]!));
     if (deficit > 1e-9 && !(pMax > 0)) return Infinity;
     return d / gsMax + (deficit > 1e-9 ? (deficit * 3600) / pMax : 0);
@@ -90,18 +106,33 @@ export function searchRoute(input: SearchInput): SearchResult {
       queue.push(to, k);
     }
   };
-  const leg = (a: Point, b: Point, s0: number, perch: boolean) => {
-    const f = evaluateLeg(a, b, s0, perch, drone, wind);
-    if (!f.ok) {
+  // The search's leg: the same arithmetic as evaluateLeg (geodesic, wind triangle, E = P·d/GS + manoeuvre) without
+  // building its figures or texts; the wind's reason in words is asked of evaluateLeg only when a leg is unflyable.
+  const V = drone.cruiseSpeedMps;
+  const W = Math.max(0, wind.speedMps);
+  const overLimit = W > drone.windLimitMps;
+  const leg = (a: Point, b: Point, s0: number, perch: boolean): { durationS: number; socEndPct: number } | null => {
+    const geo = geodesicInverse({ latDeg: a.lat, lonDeg: a.lon }, { latDeg: b.lat, lonDeg: b.lon });
+    let gs = 0;
+    if (!overLimit && V > 0) {
+      const rel = (wind.fromDeg - geo.azimuthDeg) * RAD;
+      const crosswind = W * Math.sin(rel);
+      if (Math.abs(crosswind) < V) gs = V * Math.cos(Math.asin(crosswind / V)) - W * Math.cos(rel);
+    }
+    if (!(gs > 0)) {
+      const f = evaluateLeg(a, b, s0, perch, drone, wind);
       if (f.failure === 'wind' && f.failureText) unflyable.add(f.failureText);
       return null;
     }
+    const durationS = geo.lengthM / gs;
+    const energyWh = (drone.cruisePowerW * durationS) / 3600 + (perch ? drone.perchManoeuvreWh : 0);
+    if (!(energyWh <= usableWh(drone, s0) + 1e-9)) return null;
     const z = input.blocked?.(a, b);
     if (z) {
       zoneCuts.add(z);
       return null;
     }
-    return f;
+    return { durationS, socEndPct: s0 - (100 * energyWh) / drone.batteryWh };
   };
   soc[0] = 100;
   g[0] = 0;
@@ -120,7 +151,7 @@ export function searchRoute(input: SearchInput): SearchResult {
     const t = g[s]!;
     const s0 = soc[s]!;
     if (outbound(s)) {
-      const d = dist(p, input.target);
+      const d = remainingM(s) - targetToBase;
       if (d < nearestToTargetM) { nearestToTargetM = d; nearest = p; }
     }
     // To the end of this phase: the target (outbound) or the base (homebound).
