@@ -12,7 +12,7 @@ import { ensureAssessmentDefaults } from '../server/modules/assessment/profiles.
 import { planContext, planMission } from '../server/modules/missions/plan.service.ts';
 import { User } from '../server/modules/auth/user.entity.ts';
 import { METHOD_VERSION } from '../shared/engineering/assessment.ts';
-import { KESTREL_CORE, SWIFT_QUAD } from '../shared/engineering/demo-profiles.ts';
+import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import { impliedCurrentA } from '../shared/engineering/implied-current.ts';
 import { prng } from '../shared/prng.ts';
 import type { BenchRow } from './run.ts';
@@ -55,11 +55,11 @@ export async function run(): Promise<BenchRow[]> {
     // the span's typical current gives the harvester its useful minimum (harvest rises with current, so one threshold
     // current per frequency; the other gates are the assessment's and have their own bench).
     const [{ n: lines60 }] = (await conn.execute('select count(*) as n from lines where frequency_hz = 60')) as { n: number }[];
-    const threshold = (f: number) => impliedCurrentA(KESTREL_CORE, f, KESTREL_CORE.usefulMinHarvestW / KESTREL_CORE.converterEfficiency);
+    const threshold = (f: number) => impliedCurrentA(CLAMP_S, f, CLAMP_S.usefulMinHarvestW / CLAMP_S.converterEfficiency);
     await conn.execute(
       'insert into assessments (span_id, harvester_profile_id, drone_profile_id, perchable, score, harvest_w, charge_time_min, conductor_temp_c, ampacity_a, result, inputs, method_version, settings_version, harvester_version, drone_version, computed_at) ' +
         "select s.id, ?, ?, case when coalesce(s.load_current_a, l.load_typical_a) >= (case when l.frequency_hz = 60 then ? else ? end) then 1 else 0 end, 70, 60, 60, 40, 900, '{\"gates\":[]}', '{}', ?, 1, 1, 1, ? from spans s join lines l on l.id = s.line_id",
-      [KESTREL_CORE.id, SWIFT_QUAD.id, threshold(60), threshold(50), METHOD_VERSION, new Date().toISOString()],
+      [CLAMP_S.id, LIGHT_QUAD.id, threshold(60), threshold(50), METHOD_VERSION, new Date().toISOString()],
     );
     const [{ n: perchable }] = (await conn.execute('select count(*) as n from assessments where perchable = 1')) as { n: number }[];
     console.log(`  seeded in ${f1((performance.now() - t) / 1000)} s`);
@@ -78,8 +78,8 @@ export async function run(): Promise<BenchRow[]> {
       const base = offset(clat, clon, rand() * 15_000, rand() * 360);
       const target = offset(base.lat, base.lon, DISTANCE_M, rand() * 360);
       const req = {
-        droneProfileId: SWIFT_QUAD.id,
-        harvesterProfileId: KESTREL_CORE.id,
+        droneProfileId: LIGHT_QUAD.id,
+        harvesterProfileId: CLAMP_S.id,
         base,
         target,
         departAt: '2026-06-01T08:00:00+00:00',

@@ -4,6 +4,7 @@ import { lonFor, makeLine, spansAlong } from './missions-fixtures.ts';
 import { waitForAllJobs } from './assessment-helpers.ts';
 import { LIGHT_QUAD, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
 import { User } from '../../server/modules/auth/user.entity.ts';
+import { MissionPerch } from '../../server/modules/missions/mission.entity.ts';
 import type { Line } from '../../server/modules/inventory/line.entity.ts';
 import type { Span } from '../../server/modules/inventory/span.entity.ts';
 
@@ -120,14 +121,14 @@ describe('replanning', () => {
     expect(history.body.items[1].actorName).toBe(m.plannerName);
   });
 
-  it('when two replans of the same version race, then one is saved and the other answers 409', async () => {
+  it('when four replans of the same version race, then one is saved, the others answer 409, and the saved plan keeps all its perches', async () => {
     const m = await save(-30.2, { name: 'Raced' });
-    const [a, b] = await Promise.all([
-      planner.post(`/api/missions/${m.id}/replan`, { version: m.version, departAt: '2026-06-01T10:00:00+02:00' }),
-      planner.post(`/api/missions/${m.id}/replan`, { version: m.version, departAt: '2026-06-01T11:00:00+02:00' }),
-    ]);
-    expect([a.status, b.status].sort()).toEqual([200, 409]);
-    expect((await planner.get(`/api/missions/${m.id}`)).body.version).toBe(m.version + 1);
+    const results = await Promise.all([10, 11, 12, 13].map((h) => planner.post(`/api/missions/${m.id}/replan`, { version: m.version, departAt: `2026-06-01T${h}:00:00+02:00` })));
+    expect(results.map((r) => r.status).sort()).toEqual([200, 409, 409, 409]);
+    const saved = (await planner.get(`/api/missions/${m.id}`)).body;
+    expect(saved.version).toBe(m.version + 1);
+    const rows = await t.orm.em.fork().find(MissionPerch, { missionId: m.id }, { orderBy: { seq: 'asc' } });
+    expect(rows.map((r) => r.spanId)).toEqual(saved.plan.perches.map((p: { spanId: string }) => p.spanId));
   });
 
   it('when a surveyor tries to replan, then 403', async () => {

@@ -175,28 +175,35 @@ export async function replanMission(em: EntityManager, user: User, id: string, i
   const { name, version: _v, ...changes } = input;
   const merged = requestOf({ ...(m.input as PlanRequest), ...Object.fromEntries(Object.entries(changes).filter(([, v]) => v !== undefined)) } as PlanRequest);
   const { ctx, outcome } = await planned(em, merged);
-  const wasAuthorised = m.status === 'authorised';
-  if (name) m.name = name;
-  m.input = merged as unknown as Record<string, unknown>;
-  m.plan = outcome.result;
-  m.feasible = true;
-  m.droneProfileId = merged.droneProfileId;
-  m.harvesterProfileId = merged.harvesterProfileId;
-  m.departAt = merged.departAt;
-  m.departDate = ctx.localDate;
-  m.stale = false;
-  m.staleReasons = [];
-  m.staleSince = null;
-  // A new plan needs its own authorisation.
-  m.status = 'planned';
-  m.authorisedAt = null;
-  m.authorisedById = null;
-  m.updatedAt = new Date();
-  await em.nativeDelete(MissionPerch, { missionId: m.id });
-  for (const row of perchRows(m.id, outcome.result as Plan, outcome.spanVersions)) em.persist(row);
-  audit(em, { actorId: user.id, action: wasAuthorised ? 'mission.replan.authorisation-withdrawn' : 'mission.replan', recordType: 'mission', recordId: m.id, before, after: { ...snapshot(m), version: m.version + 1 } });
-  await flushOrConflict(em);
-  return viewOf(em, m);
+  const seen = m.version;
+  // One transaction from the version check to the new perches: a racing replan either sees the new version or waits.
+  const saved = await em.transactional(async (tx) => {
+    const cur = await tx.findOne(Mission, { id }, { refresh: true });
+    if (!cur) throw AppError.notFound('Mission');
+    assertVersion(cur, seen);
+    const wasAuthorised = cur.status === 'authorised';
+    if (name) cur.name = name;
+    cur.input = merged as unknown as Record<string, unknown>;
+    cur.plan = outcome.result;
+    cur.feasible = true;
+    cur.droneProfileId = merged.droneProfileId;
+    cur.harvesterProfileId = merged.harvesterProfileId;
+    cur.departAt = merged.departAt;
+    cur.departDate = ctx.localDate;
+    cur.stale = false;
+    cur.staleReasons = [];
+    cur.staleSince = null;
+    // A new plan needs its own authorisation.
+    cur.status = 'planned';
+    cur.authorisedAt = null;
+    cur.authorisedById = null;
+    cur.updatedAt = new Date();
+    await tx.nativeDelete(MissionPerch, { missionId: cur.id });
+    for (const row of perchRows(cur.id, outcome.result as Plan, outcome.spanVersions)) tx.persist(row);
+    audit(tx, { actorId: user.id, action: wasAuthorised ? 'mission.replan.authorisation-withdrawn' : 'mission.replan', recordType: 'mission', recordId: cur.id, before, after: { ...snapshot(cur), version: cur.version + 1 } });
+    return cur;
+  });
+  return viewOf(em, saved);
 }
 
 export async function missionHistory(em: EntityManager, id: string) {
