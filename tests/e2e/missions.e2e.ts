@@ -1,5 +1,10 @@
+import { spawnSync } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
+import { DEMO_MISSION } from '../../server/seeders/demo-missions.ts';
 
 // Mission screens in Chromium against the real server: placing the base and the target on the plan map,
 // the drone energy fields on the profile page, and the lines' permission pages.
@@ -73,4 +78,131 @@ describe('mission screens', () => {
     await page.getByText('Enter the owner’s reference').waitFor();
     await context.close();
   });
+});
+
+const haveXmllint = spawnSync('xmllint', ['--version']).status === 0;
+
+describe('the demo mission end to end', () => {
+  it('when a planner plans the demo route on the map, saves it and exports GPX, safety authorises it, and a perch span is suspended, then the mission is marked for a new plan', async () => {
+    // ---- the planner plans on the map ----
+    const planner = await h.newPage({ viewport: { width: 1280, height: 1000 } });
+    const page = planner.page;
+    const t0 = Date.now();
+    const step = (what: string) => console.log(`[missions journey] ${Math.round((Date.now() - t0) / 1000)} s: ${what}`);
+    page.on('pageerror', (e) => console.log('[page error]', e.message));
+    try {
+      await signedIn(page, 'planner');
+      page.setDefaultTimeout(60_000);
+      await page.goto('/missions/new');
+      await page.getByRole('heading', { level: 1, name: 'Plan a mission' }).waitFor();
+      await page.locator('[data-testid="plan-map"][data-map-ready="true"]').waitFor({ timeout: 150_000 });
+      const box = (await page.locator('[data-testid="plan-map"]').boundingBox())!;
+      await page.mouse.click(box.x + box.width * 0.3, box.y + box.height * 0.4);
+      await page.getByTestId('pin-base').waitFor();
+      await page.mouse.click(box.x + box.width * 0.6, box.y + box.height * 0.6);
+      await page.getByTestId('pin-target').waitFor();
+      // The demo depot and job site, typed to the metre after the clicks.
+      await page.getByLabel('Base latitude (°)').fill(String(DEMO_MISSION.base.lat));
+      await page.getByLabel('Base longitude (°)').fill(String(DEMO_MISSION.base.lon));
+      await page.getByLabel('Target latitude (°)').fill(String(DEMO_MISSION.target.lat));
+      await page.getByLabel('Target longitude (°)').fill(String(DEMO_MISSION.target.lon));
+      step('typed the demo route');
+      await page.getByRole('button', { name: 'Plan the route' }).click();
+      const planView = page.getByRole('region', { name: 'The plan' });
+      await planView.waitFor();
+      // The charge chart is drawn (an SVG line from recharts), from 100 % at departure.
+      const chart = planView.getByTestId('charge-chart');
+      await chart.locator('svg path.recharts-curve').first().waitFor();
+      expect(await chart.getByRole('img').getAttribute('aria-label')).toMatch(/^Battery charge from 100/);
+      const perchRows = planView.getByTestId('perch-table').locator('tbody tr');
+      expect(await perchRows.count()).toBeGreaterThanOrEqual(2);
+      // Every plan view carries the mission caution: the page's and the plan's own.
+      expect(await planView.getByRole('note').textContent()).toContain("pilot's own judgement");
+      expect(await page.getByRole('note').first().textContent()).toContain('airspace rules');
+      // The route is on the map with a marker per perch.
+      expect(await page.locator('[data-testid="plan-map"] [title^="Perch"]').count()).toBeGreaterThanOrEqual(2);
+
+      // ---- saves ----
+      step('saves');
+      await page.getByLabel('Mission name').fill('Journey: depot to yard');
+      await page.getByRole('button', { name: 'Save as a mission' }).click();
+      await page.waitForURL(/\/missions\/(?!new)[^/]+$/);
+      const missionUrl = new URL(page.url()).pathname;
+      const record = page.getByRole('region', { name: 'Mission record' });
+      await record.getByText('Awaiting authorisation').waitFor();
+
+      // ---- exports GPX ----
+      step('exports GPX');
+      const [download] = await Promise.all([page.waitForEvent('download'), record.getByRole('link', { name: 'Export GPX' }).click()]);
+      expect(download.suggestedFilename()).toMatch(/\.gpx$/);
+      const file = path.join(h.dataDir, 'journey.gpx');
+      await download.saveAs(file);
+      const gpx = fs.readFileSync(file, 'utf8');
+      expect(gpx).toContain('<gpx version="1.1"');
+      // One rtept per base, perch and job site (api.md "Missions").
+      expect(gpx.match(/<rtept /g)?.length).toBe((await perchRows.count()) + 2);
+      if (haveXmllint) {
+        const r = spawnSync('xmllint', ['--noout', '--nonet', '--schema', path.resolve('tests/fixtures/gpx/gpx-1.1.xsd'), file], { encoding: 'utf8' });
+        expect(r.status, r.stderr).toBe(0);
+      }
+
+      // ---- the brief, printable on A4 and Letter ----
+      step('the brief, printable on A4 and Letter');
+      await record.getByRole('link', { name: 'Mission brief' }).click();
+      await page.getByRole('heading', { level: 1, name: 'Journey: depot to yard' }).waitFor();
+      expect(await page.getByRole('note').first().textContent()).toContain('airspace rules');
+      await page.getByRole('heading', { name: 'Line owners\u2019 permissions' }).or(page.getByRole('heading', { name: "Line owners' permissions" })).waitFor();
+      await page.getByText('covers the departure day').first().waitFor();
+      for (const paper of ['a4', 'letter'] as const) {
+        await page.emulateMedia({ media: 'screen' });
+        await page.getByRole('combobox').selectOption(paper);
+        await page.emulateMedia({ media: 'print' });
+        // Printed: the app's header and the brief's own buttons are left off, the sign-off lines stay; the named @page sets the sheet.
+        expect(await page.locator('.brief-no-print').isVisible()).toBe(false);
+        expect(await page.getByRole('region', { name: 'Sign-off' }).isVisible()).toBe(true);
+        expect(await page.locator('.brief').evaluate((el) => getComputedStyle(el).getPropertyValue('page'))).toBe(paper);
+        const pdf = await page.pdf({ preferCSSPageSize: true });
+        expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+        // ISO 216 A4 is 595 × 842 pt; US Letter 612 × 792 pt (the PDF's MediaBox).
+        const box = /\/MediaBox\s*\[\s*0 0 ([\d.]+) ([\d.]+)\s*\]/.exec(pdf.toString('latin1'));
+        expect(box && [Math.round(Number(box[1])), Math.round(Number(box[2]))]).toEqual(paper === 'a4' ? [595, 842] : [612, 792]);
+      }
+      await page.emulateMedia({ media: 'screen' });
+
+      // ---- safety authorises ----
+      step('safety authorises');
+      const safety = await h.newPage({ viewport: { width: 1280, height: 1000 } });
+      await signedIn(safety.page, 'safety');
+      safety.page.setDefaultTimeout(60_000);
+      await safety.page.goto(missionUrl);
+      const safetyRecord = safety.page.getByRole('region', { name: 'Mission record' });
+      await safetyRecord.getByRole('button', { name: 'Authorise' }).click();
+      await safetyRecord.getByText('Authorised', { exact: false }).first().waitFor();
+      expect(await safetyRecord.getByText('✓ Authorised').count()).toBe(1);
+
+      // ---- a suspension of a perch span marks the mission for a new plan ----
+      step('a suspension of a perch span marks the mission for a new plan');
+      await safety.page.getByTestId('perch-table').locator('tbody tr').first().getByRole('link').first().click();
+      await safety.page.waitForURL(/\/spans\/[^/]+$/);
+      await safety.page.getByRole('button', { name: 'Suspend…' }).click();
+      await safety.page.getByLabel('Why is this span suspended?').fill('Crossing works below this span from tomorrow.');
+      await safety.page.getByRole('button', { name: 'Suspend this span' }).click();
+      await safety.page.getByRole('status').getByText('Suspended.').waitFor();
+
+      await page.goto(missionUrl);
+      await page.getByTestId('stale-badge').waitFor();
+      const reasons = await page.getByTestId('stale-reasons').textContent();
+      expect(reasons).toMatch(/suspended/);
+      // The planner sees no authorise button and the safety officer cannot authorise a plan that no longer holds.
+      await safety.page.goto(missionUrl);
+      await safety.page.getByTestId('stale-badge').waitFor();
+      const authorise = safety.page.getByRole('region', { name: 'Mission record' }).getByRole('button', { name: 'Authorise' });
+      expect((await authorise.count()) === 0 || (await authorise.isDisabled())).toBe(true);
+      await planner.context.close();
+      await safety.context.close();
+    } catch (err) {
+      await page.screenshot({ path: path.join(os.tmpdir(), 'missions-journey-failure.png') }).catch(() => undefined);
+      throw err;
+    }
+  }, 400_000);
 });
