@@ -110,6 +110,43 @@ describe('photo journey', () => {
     await context.close();
   }, 180_000);
 
+  it('when a photo is picked before a new span is first saved, then it is kept, and uploads onto the span with its progress bar right after the save', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const headers = { Origin: h.baseUrl };
+    const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
+    const line = await post('/api/lines', { name: `Photo first-save feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
+    const a = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
+    const b = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
+
+    await page.goto('/field/spans/new');
+    await page.getByLabel('Line', { exact: true }).selectOption(line.id);
+    await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
+    await page.locator('#fromStructureId').selectOption(a.id);
+    await page.locator('#toStructureId').selectOption(b.id);
+    await page.getByTestId('photo-input').setInputFiles(photoPath);
+    const row = page.getByTestId('photo-upload-row');
+    await row.getByTestId('photo-held').waitFor();
+    expect(await row.getAttribute('data-status')).toBe('held');
+    expect(await page.getByRole('progressbar').count()).toBe(0);
+
+    // A thin connection, so the bar is seen moving after the save.
+    const cdp = await context.newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 40, downloadThroughput: -1, uploadThroughput: 192 * 1024 });
+    await page.getByRole('button', { name: 'Save draft' }).click();
+    await page.waitForURL((u) => /^\/field\/spans\/[^/]+\/edit$/.test(u.pathname), { timeout: 20_000 });
+    const spanId = new URL(page.url()).pathname.split('/')[3]!;
+    await page.getByRole('progressbar', { name: /Upload of span-photo\.jpg/ }).waitFor({ state: 'visible', timeout: 20_000 });
+    await row.getByTestId('photo-thumbnail').waitFor({ state: 'visible', timeout: 60_000 });
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    await row.getByText('Linked to this span').waitFor();
+    const span = await (await page.request.get(`/api/spans/${spanId}`)).json();
+    expect(span.photoIds).toHaveLength(1);
+    await context.close();
+  }, 180_000);
+
   it('when a photo has no GPS, then the surveyor places it by clicking the map and it is marked as placed by hand', async () => {
     const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1100 } });
     await h.signIn(page, 'surveyor');

@@ -2,11 +2,12 @@
 import { useEffect, useMemo, useRef, useState, type ReactNode } from 'react';
 import { useForm } from 'react-hook-form';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
-import { Link, useNavigate, useParams } from 'react-router';
+import { Link, useLocation, useNavigate, useParams } from 'react-router';
 import { TERRAINS, TERRAIN_LABELS, type Span } from '#shared/schemas/inventory.ts';
 import { formatQuantity, unitLabel } from '#shared/units.ts';
 import { Caution } from '../../components/caution.tsx';
 import { ApiError } from '../../lib/api.ts';
+import { pageBusy, pageWorkDone } from '../../lib/page-work.ts';
 import { useMe } from '../auth/queries.ts';
 import { spanApi } from '../spans/api.ts';
 import { inventoryQueries, spanQueries } from '../spans/queries.ts';
@@ -36,11 +37,14 @@ export type SpanPhotoSlot = (ctx: { spanId: string | null; hazardIds: string[] }
 
 export function SpanFormPage({ photoSlot }: { photoSlot?: SpanPhotoSlot }) {
   const { id } = useParams();
+  const location = useLocation();
   const span = useQuery({ ...spanQueries.detail(id ?? ''), enabled: !!id, staleTime: 0 });
   if (id && span.isPending) return <p className="p-8 text-center text-ink-700">Loading the span…</p>;
   if (id && span.error) throw span.error;
-  // Keyed by span id so switching spans starts a fresh form.
-  return <SpanForm key={id ?? 'new'} saved={span.data ?? null} photoSlot={photoSlot} />;
+  // Keyed by span id so switching spans starts a fresh form; a new span's first save keeps the same form (its
+  // photos picked before that save upload right after it).
+  const key = (location.state as { formKey?: string } | null)?.formKey ?? id ?? 'new';
+  return <SpanForm key={key} saved={span.data ?? null} photoSlot={photoSlot} />;
 }
 
 type Intent = 'draft' | 'submit';
@@ -159,11 +163,17 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
       offerPending.current = false;
       setOffer(null);
       if (intent === 'submit') {
+        // Photos picked before the first save upload now; the page is left once they are in (their bars show).
+        await new Promise((r) => setTimeout(r, 0)); // let the photo slot see the new span's id
+        if (pageBusy()) {
+          setNotice('Saved. Uploading the photos before leaving…');
+          await pageWorkDone();
+        }
         navigate('/field', { state: { notice: result.status === 'submitted' ? 'Span submitted for review.' : 'Changes saved.' } });
         return;
       }
       setNotice(result.status === 'draft' ? 'Draft saved.' : result.status === 'submitted' && initial?.status === 'approved' ? 'Saved. Safety-relevant changes send the span back to review.' : 'Changes saved.');
-      if (!initial) navigate(`/field/spans/${result.id}/edit`, { replace: true });
+      if (!initial) navigate(`/field/spans/${result.id}/edit`, { replace: true, state: { formKey: 'new' } });
     } catch (err) {
       if (err instanceof ApiError && err.status === 400 && err.issues.length) showIssues(mapIssues(err.issues));
       else if (err instanceof ApiError && err.status === 409) {

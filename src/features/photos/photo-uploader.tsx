@@ -4,6 +4,7 @@ import { lazy, Suspense, useCallback, useEffect, useId, useRef, useState } from 
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import { formatQuantity } from '#shared/units.ts';
 import { ApiError } from '../../lib/api.ts';
+import { holdPage } from '../../lib/page-work.ts';
 import { useMe } from '../auth/queries.ts';
 import { inventoryQueries, spanQueries } from '../spans/queries.ts';
 import { photoApi, uploadPhoto, type UploadHandle } from './api.ts';
@@ -14,7 +15,8 @@ import { MAX_UPLOAD_BYTES, type PhotoWithSuggestions } from './types.ts';
 // The map (and maplibre) loads only when someone places a photo by hand.
 const PhotoPlaceDialog = lazy(() => import('./photo-place-dialog.tsx'));
 
-type Status = 'queued' | 'uploading' | 'processing' | 'done' | 'failed';
+/** `held`: picked before the span's first save; kept here and uploaded (with the span) right after that save. */
+type Status = 'held' | 'queued' | 'uploading' | 'processing' | 'done' | 'failed';
 
 interface Item {
   key: string;
@@ -49,6 +51,17 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
     setItems((all) => all.map((i) => (i.key === key ? { ...i, ...change } : i)));
   }, []);
 
+  // Each upload that follows a first save holds the page (the form waits for it before leaving).
+  const waiters = useRef(new Map<string, () => void>());
+  const hold = useCallback((key: string) => {
+    if (waiters.current.has(key)) return;
+    holdPage(new Promise<void>((resolve) => waiters.current.set(key, resolve)));
+  }, []);
+  const release = useCallback((key: string) => {
+    waiters.current.get(key)?.();
+    waiters.current.delete(key);
+  }, []);
+
   const refresh = useCallback(() => {
     void queryClient.invalidateQueries({ queryKey: photoQueries.all() });
     if (spanRef.current) void queryClient.invalidateQueries({ queryKey: spanQueries.detail(spanRef.current).queryKey });
@@ -68,14 +81,16 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
           patch(item.key, { status: 'done', progress: 1, photo });
           refresh();
           onUploadedRef.current?.(photo);
+          release(item.key);
         },
         (err: unknown) => {
           handles.current.delete(item.key);
           patch(item.key, { status: 'failed', error: err instanceof Error ? err.message : 'Upload failed', retryable: retryableStatus(err) });
+          release(item.key);
         },
       );
     },
-    [patch, refresh],
+    [patch, refresh, release],
   );
 
   // Start queued uploads while fewer than PARALLEL are running.
@@ -87,10 +102,21 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
 
   useEffect(() => {
     const map = handles.current;
-    return () => map.forEach((h) => h.abort());
+    const held = waiters.current;
+    return () => {
+      map.forEach((h) => h.abort());
+      held.forEach((resolve) => resolve());
+    };
   }, []);
 
-  // Photos taken before a new span was first saved join it once it has an id.
+  // Photos picked before a new span was first saved upload as soon as it has an id, straight onto it.
+  useEffect(() => {
+    if (!spanId || !items.some((i) => i.status === 'held')) return;
+    for (const i of items) if (i.status === 'held') hold(i.key);
+    setItems((all) => all.map((i) => (i.status === 'held' ? { ...i, status: 'queued' } : i)));
+  }, [spanId, items, hold]);
+
+  // A photo uploaded without a span (e.g. before this change) joins it once it has an id.
   useEffect(() => {
     if (!spanId) return;
     for (const item of items) {
@@ -114,7 +140,7 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
       return {
         key: `u${++seq}`,
         file,
-        status: tooBig ? 'failed' : 'queued',
+        status: tooBig ? 'failed' : spanRef.current ? 'queued' : 'held',
         progress: 0,
         error: tooBig ? `${formatBytes(file.size)} is over the ${formatBytes(MAX_UPLOAD_BYTES)} limit` : null,
         retryable: false,
@@ -189,7 +215,7 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
       </div>
       <p className="text-sm text-ink-700">
         JPEG, PNG, WebP or AVIF up to {formatBytes(MAX_UPLOAD_BYTES)} each. The position, direction and time are read from the photo.
-        {!spanId && ' Photos added before the span is first saved join it when you save.'}
+        {!spanId && ' Photos added before the span is first saved stay on this device and upload as soon as you save it.'}
       </p>
       {items.length > 0 && (
         <ul className="space-y-2" aria-label="Photo uploads">
@@ -201,6 +227,7 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
               onRetry={() => patch(item.key, { status: 'queued', progress: 0, error: null })}
               onRemove={() => {
                 handles.current.get(item.key)?.abort();
+                release(item.key);
                 setItems((all) => all.filter((i) => i.key !== item.key));
               }}
               onLink={(target) => item.photo && void link(item.key, item.photo.id, target)}
@@ -252,6 +279,11 @@ function UploadRow({
           <p className="truncate text-sm font-semibold text-ink-900">
             {item.file.name || 'Photo'} <span className="font-normal text-ink-500">· {formatBytes(item.file.size)}</span>
           </p>
+          {item.status === 'held' && (
+            <p className="text-sm font-semibold text-ink-800" data-testid="photo-held">
+              Kept on this device; it uploads as soon as the span is saved.
+            </p>
+          )}
           {(item.status === 'uploading' || item.status === 'processing' || item.status === 'queued') && (
             <>
               <div
