@@ -5,6 +5,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Page } from 'playwright-core';
 import { DEMO_MISSION } from '../../server/seeders/demo-missions.ts';
+import { DEMO_LINES } from '../../server/seeders/demo-inventory.ts';
 
 // Mission screens in Chromium against the real server: placing the base and the target on the plan map,
 // the drone energy fields on the profile page, and the lines' permission pages.
@@ -76,6 +77,41 @@ describe('mission screens', () => {
     await page.getByRole('form', { name: 'Add a permission' }).waitFor();
     await page.getByRole('button', { name: 'Add permission' }).click();
     await page.getByText('Enter the owner’s reference').waitFor();
+    await context.close();
+  });
+
+  it('when safety enters a permission with the owner’s PDF, then it is listed with its document; the demo feeder’s old one shows as expired', async () => {
+    const { context, page } = await h.newPage();
+    page.setDefaultTimeout(60_000);
+    await signedIn(page, 'safety');
+    await page.goto('/lines');
+    await page.getByRole('heading', { level: 1, name: 'Lines' }).waitFor();
+    // The demo's third line holds only a permission that ended last year.
+    await page.getByRole('link', { name: DEMO_LINES[2]!.name }).click();
+    const list = page.getByTestId('permissions');
+    await list.getByText('Expired').waitFor();
+    await page.goto('/lines');
+    await page.getByRole('link', { name: DEMO_LINES[1]!.name }).click();
+    await page.getByRole('heading', { name: /permissions to perch/ }).waitFor();
+    const year = new Date().getUTCFullYear();
+    await page.getByLabel('Owner’s reference').fill('JOURNEY-PERCH-1');
+    await page.getByLabel('Valid from').fill(`${year}-01-01`);
+    await page.getByLabel('Valid to').fill(`${year + 1}-06-30`);
+    await page.getByLabel('Conditions').fill('Daylight only.');
+    // A hand-made one-page PDF: header, objects and the end-of-file marker.
+    const pdf = Buffer.from('%PDF-1.4\n1 0 obj\n<< /Type /Catalog /Pages 2 0 R >>\nendobj\n2 0 obj\n<< /Type /Pages /Kids [] /Count 0 >>\nendobj\ntrailer\n<< /Root 1 0 R >>\n%%EOF\n', 'latin1');
+    await page.getByLabel(/Document \(PDF or image\)/).setInputFiles({ name: 'owner-letter.pdf', mimeType: 'application/pdf', buffer: pdf });
+    await page.getByRole('button', { name: 'Add permission' }).click();
+    const item = list.locator('li', { hasText: 'JOURNEY-PERCH-1' });
+    await item.getByRole('link', { name: 'owner-letter.pdf' }).waitFor();
+    expect(await item.textContent()).toContain(`1 Jan ${year}`);
+    expect(await item.textContent()).toContain('Conditions: Daylight only.');
+    expect(await item.getByText('Expired').count()).toBe(0);
+    const href = (await item.getByRole('link', { name: 'owner-letter.pdf' }).getAttribute('href'))!;
+    const res = await page.request.get(href);
+    expect(res.status()).toBe(200);
+    expect(res.headers()['content-type']).toBe('application/pdf');
+    expect(Buffer.compare(await res.body(), pdf)).toBe(0);
     await context.close();
   });
 });
