@@ -213,8 +213,12 @@ export function valueWords(key: string, v: unknown, opts: DescribeOptions): stri
       return typeof v === 'number' ? `${number(v)} %` : String(v);
     case 'degrees':
       return typeof v === 'number' ? `${number(v)}°` : String(v);
-    case 'coordinate':
-      return typeof v === 'number' ? `${v.toFixed(5)}°` : String(v);
+    case 'coordinate': {
+      // Five decimals (about a metre), trailing zeros dropped, with the hemisphere: "30.08° S".
+      if (typeof v !== 'number') return String(v);
+      const hemi = key.startsWith('lat') ? (v < 0 ? 'S' : 'N') : v < 0 ? 'W' : 'E';
+      return `${Number(Math.abs(v).toFixed(5))}° ${hemi}`;
+    }
     case 'bytes':
       return typeof v === 'number' ? bytes(v) : String(v);
     case 'mime':

@@ -127,3 +127,12 @@ describe('span history', () => {
     expect(text).not.toMatch(/[{}]|\b[a-z]+-[a-z]+\b|\d\.\d{4,}|version|clearanceM|SP1|u1/);
   });
 });
+
+describe('coordinates in history', () => {
+  it('writes a position with its hemisphere and no trailing zeros', () => {
+    expect(describeChanges(null, { base: { lat: -30.08, lon: -130.5 } }, { system: 'metric' })).toEqual([
+      { field: 'Base · Latitude', before: '—', after: '30.08° S' },
+      { field: 'Base · Longitude', before: '—', after: '130.5° W' },
+    ]);
+  });
+});

@@ -28,7 +28,8 @@ async function rawOnScreen(page: Page): Promise<string[]> {
   const found: string[] = [];
   for (const m of text.matchAll(/\b[a-z]+(?:-[a-z]+)+\b/g)) if (!HYPHENATED_WORDS.has(m[0])) found.push(`code "${m[0]}"`);
   for (const m of text.matchAll(/[{}]|"\w+":/g)) found.push(`JSON "${m[0]}"`);
-  for (const m of text.matchAll(/\b\d+\.\d{4,}\b/g)) found.push(`long decimal "${m[0]}"`);
+  // A coordinate keeps up to five decimals (about a metre) and carries its degree sign; any other long decimal is raw.
+  for (const m of text.matchAll(/\b\d+\.\d{4,}\b(?!°)/g)) found.push(`long decimal "${m[0]}"`);
   for (const m of text.matchAll(/\b[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}\b|\b[0-9A-HJKMNP-TV-Z]{26}\b/gi)) found.push(`id "${m[0]}"`);
   for (const m of text.matchAll(/\d{4}-\d{2}-\d{2}T\d{2}:\d{2}/g)) found.push(`raw time "${m[0]}"`);
   for (const m of text.matchAll(/\b\d{3,} min\b/g)) found.push(`minutes "${m[0]}"`);
@@ -211,6 +212,18 @@ describe('nothing raw on screen', () => {
     expect(gateText).toMatch(/ in\b/);
     expect(gateText).not.toMatch(/\d m\b|°C|\d mm\b/);
     expect(await rawOnScreen(page)).toEqual([]);
+
+    // A submitted span that fails a gate: the span page names the gates in feet and °F, offers no approval.
+    const failing = (await (await page.request.get('/api/spans?status=submitted&perchable=false&pageSize=1')).json()).items[0];
+    if (failing) {
+      await page.goto(`/spans/${failing.id}`);
+      const panel = page.getByTestId('span-failing-gates');
+      await panel.waitFor({ timeout: 20_000 });
+      expect(await panel.locator('li').count()).toBeGreaterThan(0);
+      expect(await panel.innerText()).not.toMatch(/\d m\b|°C|\d mm\b/);
+      expect(await page.getByRole('button', { name: /^Approve/ }).count()).toBe(0);
+      expect(await rawOnScreen(page)).toEqual([]);
+    }
 
     // The audit log (the safety role's span-related part) reads the same way.
     await page.goto('/admin/audit');

@@ -5,6 +5,8 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import type { Span } from '#shared/schemas/inventory.ts';
 import type { Role } from '#shared/roles.ts';
 import { ApiError } from '../../../lib/api.ts';
+import { gateDetail } from '../../../lib/format.ts';
+import { useMe } from '../../auth/queries.ts';
 import { spanApi } from '../api.ts';
 import { spanQueries } from '../queries.ts';
 
@@ -55,13 +57,27 @@ export function LifecycleActions({ span, roles, onDone }: { span: Span; roles: r
     },
   });
 
-  const actions = availableActions(span, roles);
+  const system = useMe().unitSystem;
+  // The server refuses approval when no active pair passes every blocking gate; the page says why before anyone tries.
+  const failing = span.perchable === false ? (span.failingGates ?? []) : [];
+  const actions = availableActions(span, roles).filter((a) => !(a === 'approve' && failing.length));
   if (!actions.length && !done) return null;
 
   return (
     <section className="card space-y-3" aria-labelledby="decide-title">
       <h2 id="decide-title" className="text-lg font-bold">Safety decision</h2>
       {done && <p role="status" className="font-semibold text-go">{done}</p>}
+      {failing.length > 0 && span.status === 'submitted' && (
+        <div role="alert" className="rounded-lg border border-alarm bg-chalk p-3 text-sm" data-testid="span-failing-gates">
+          <p className="font-semibold text-alarm">Cannot be approved: no active drone and harvester pass {failing.length === 1 ? 'this gate' : 'these gates'}</p>
+          <ul className="mt-1 list-disc pl-5">
+            {failing.map((g) => (
+              <li key={g.id}><strong>{g.label}</strong>{g.detail ? ` — ${gateDetail(g, system)}` : ''}</li>
+            ))}
+          </ul>
+          <p className="mt-1">Send it back to the surveyor with what to re-measure.</p>
+        </div>
+      )}
       <div className="flex flex-wrap gap-3">
         {actions.map((a) => (
           <button
