@@ -147,6 +147,43 @@ describe('photo journey', () => {
     await context.close();
   }, 180_000);
 
+  it('when a new span is submitted at its first save with a photo picked before, then the page waits for the upload and the span has the photo', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const headers = { Origin: h.baseUrl };
+    const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
+    const line = await post('/api/lines', { name: `Photo first-submit feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
+    const a = await post('/api/structures', { lineId: line.id, lat: -30.21, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
+    const b = await post('/api/structures', { lineId: line.id, lat: -30.21, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
+
+    await page.goto('/field/spans/new');
+    await page.getByLabel('Line', { exact: true }).selectOption(line.id);
+    await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
+    await page.locator('#fromStructureId').selectOption(a.id);
+    await page.locator('#toStructureId').selectOption(b.id);
+    await page.getByLabel('Code word').selectOption('Hawk');
+    await page.getByLabel(/^Ground clearance at the perch point/).fill('9.5');
+    await page.getByLabel('Terrain under the span').selectOption('road');
+    await page.getByTestId('photo-input').setInputFiles(photoPath);
+    await page.getByTestId('photo-held').waitFor();
+
+    const cdp = await context.newCDPSession(page);
+    await cdp.send('Network.enable');
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 40, downloadThroughput: -1, uploadThroughput: 192 * 1024 });
+    await page.getByRole('button', { name: 'Submit for review' }).click();
+    // The form stays while the photo goes up, its bar showing, then leaves for the field queue.
+    await page.getByRole('progressbar', { name: /Upload of span-photo\.jpg/ }).waitFor({ state: 'visible', timeout: 20_000 });
+    expect(new URL(page.url()).pathname).not.toBe('/field');
+    await page.waitForURL((u) => u.pathname === '/field', { timeout: 60_000 });
+    await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
+    const listed = (await (await page.request.get(`/api/spans?lineId=${line.id}`)).json()).items as { id: string; status: string; photoIds: string[] }[];
+    expect(listed).toHaveLength(1);
+    expect(listed[0]!.status).toBe('submitted');
+    expect(listed[0]!.photoIds).toHaveLength(1);
+    await context.close();
+  }, 180_000);
+
   it('when a photo has no GPS, then the surveyor places it by clicking the map and it is marked as placed by hand', async () => {
     const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1100 } });
     await h.signIn(page, 'surveyor');
