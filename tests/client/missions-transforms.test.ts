@@ -124,6 +124,14 @@ describe('infeasible reason', () => {
     const t = infeasibleText({ feasible: false, reason: 'Exclude zone North Weir cuts the only leg.' }, 'us');
     expect(t[0]).toBe('Exclude zone North Weir cuts the only leg.');
   });
+  it('when the server explains a gap in its SI sentence and figures, then the words use the user’s units and name each bridging span once', () => {
+    const t = infeasibleText(
+      { feasible: false, reason: 'gap', message: 'No perch bridges the 20.0 km gap …', longestGapM: 20_000, reachM: 11_520, blockedSpans: [{ spanId: 'x', lineName: 'Ridge 33', label: 'R4–R5', reason: 'it is awaiting review, not approved' }] },
+      'us',
+    );
+    // 1 mi = 1 609.344 m (international mile): 20 000 m = 12.43 mi, 11 520 m = 7.16 mi.
+    expect(t).toEqual(['No perch bridges a gap of 12.43 mi; the drone reaches 7.16 mi on one charge.', 'Ridge 33 R4–R5 would bridge it but it is awaiting review, not approved.']);
+  });
   it('when spans would have bridged the gap, then each is named with the gate it fails', () => {
     const t = infeasibleText({ feasible: false, reason: 'gap', blockedSpans: [{ spanId: 'x', lineName: 'Ridge 33', label: 'R4 → R5', failingGates: ['clearance'] }] }, 'metric');
     expect(t).toContain('Ridge 33 R4 → R5 would bridge it but fails clearance.');

@@ -147,18 +147,54 @@ function hourlyHarvest(harvester: HarvesterProfile, line: MeasuredLine, spanLoad
   return profile.map((a) => harvestPowerW(model, a * scale, line.frequencyHz));
 }
 
-/** The approved spans perchable for the pair whose mid-point lies in the box, as perches (thinned above `max`). */
-export async function perchCandidates(em: EntityManager, ctx: PlanContext, box: ReturnType<typeof boxAround>, max = MAX_SEARCH_PERCHES): Promise<{ perches: PerchCandidate[]; nearRoute: number }> {
-  const all = (await em
+/** A capsule around the straight line from `a` to `b`: every point within `widthM` of it. */
+export interface Corridor {
+  a: Point;
+  b: Point;
+  widthM: number;
+}
+
+/** Distance from p to the segment a–b, m (local equirectangular plane: legs are at most a few hundred km). */
+function toSegmentM(p: Point, c: Corridor): number {
+  const lat0 = ((c.a.lat + c.b.lat) / 2) * (Math.PI / 180);
+  const kx = M_PER_DEG_LAT * Math.cos(lat0);
+  const bx = (c.b.lon - c.a.lon) * kx;
+  const by = (c.b.lat - c.a.lat) * M_PER_DEG_LAT;
+  const px = (p.lon - c.a.lon) * kx;
+  const py = (p.lat - c.a.lat) * M_PER_DEG_LAT;
+  const len2 = bx * bx + by * by;
+  const t = len2 > 0 ? Math.max(0, Math.min(1, (px * bx + py * by) / len2)) : 0;
+  return Math.hypot(px - t * bx, py - t * by);
+}
+
+function corridorAreaM2(c: Corridor): number {
+  const lengthM = toSegmentM(c.b, { a: c.a, b: c.a, widthM: 0 });
+  return 2 * c.widthM * lengthM + Math.PI * c.widthM * c.widthM;
+}
+
+/**
+ * The approved spans perchable for the pair whose mid-point lies in the corridor, as perches (thinned above `max`).
+ * A narrow query finds them; the full records are read only for the ones kept.
+ */
+export async function perchCandidates(em: EntityManager, ctx: PlanContext, corridor: Corridor, max = MAX_SEARCH_PERCHES): Promise<{ perches: PerchCandidate[]; nearRoute: number }> {
+  const box = boxAround([corridor.a, corridor.b], corridor.widthM);
+  const found = (await em
     .getConnection()
     .execute(
-      `select ${SPAN_COLUMNS}, pa.harvest_w as harvest_w ${SPAN_FROM} ` +
+      `select s.id as id, (a.lat + b.lat) / 2 as lat, (a.lon + b.lon) / 2 as lon, pa.harvest_w as harvest_w ${SPAN_FROM} ` +
         'join assessments pa on pa.span_id = s.id and pa.harvester_profile_id = ? and pa.drone_profile_id = ? and pa.perchable = 1 ' +
-        `where s.status = ? and ${IN_BOX} order by s.id`,
+        `where s.status = ? and ${IN_BOX}`,
       [ctx.harvester.id, ctx.drone.id, 'approved', box.lat0, box.lat1, box.lon0, box.lon1],
-    )) as (SpanRow & { harvest_w: number })[];
-  const rows = thinPerches(all, box, max);
-  if (rows.length === 0) return { perches: [], nearRoute: all.length };
+    )) as { id: string; lat: number; lon: number; harvest_w: number }[];
+  const near = found.filter((r) => toSegmentM(r, corridor) <= corridor.widthM);
+  const kept = thinPerches(near, corridorAreaM2(corridor), max);
+  if (kept.length === 0) return { perches: [], nearRoute: near.length };
+  const rows: SpanRow[] = [];
+  const ids = kept.map((k) => k.id).sort();
+  for (let i = 0; i < ids.length; i += 400) {
+    const chunk = ids.slice(i, i + 400);
+    rows.push(...((await em.getConnection().execute(`select ${SPAN_COLUMNS} ${SPAN_FROM} where s.id in (${chunk.map(() => '?').join(',')}) order by s.id`, chunk)) as SpanRow[]));
+  }
   const lineIds = [...new Set(rows.map((r) => r.line_id))];
   const lines: MeasuredLine[] = [];
   // The departure's month as written in its own offset: series days are local days, so months are local too.
@@ -194,25 +230,23 @@ export async function perchCandidates(em: EntityManager, ctx: PlanContext, box: 
       spanVersion: r.version,
     });
   }
-  return { perches: out, nearRoute: all.length };
+  return { perches: out, nearRoute: near.length };
 }
 
 /**
  * With many perches near the route, keeps the span with the highest assessed harvest (at its typical load) in each
- * cell of a grid sized so that the box holds about `max` cells: a route's perch is then at most one cell diagonal
+ * cell of a grid sized so that the area holds about `max` cells: a route's perch is then at most one cell diagonal
  * from the one it would have used, on a span harvesting at least as much at its typical load.
  */
-export function thinPerches<T extends { id: string; alat: number; alon: number; blat: number; blon: number; harvest_w: number }>(rows: T[], box: ReturnType<typeof boxAround>, max: number): T[] {
+export function thinPerches<T extends { id: string; lat: number; lon: number; harvest_w: number }>(rows: T[], areaM2: number, max: number): T[] {
   if (rows.length <= max) return rows;
-  const midLat = (box.lat0 + box.lat1) / 2;
-  const mPerDegLon = M_PER_DEG_LAT * Math.cos((midLat * Math.PI) / 180);
-  const areaM2 = (box.lat1 - box.lat0) * M_PER_DEG_LAT * (box.lon1 - box.lon0) * mPerDegLon;
   const cellM = Math.max(200, Math.sqrt(areaM2 / max));
+  const lat0 = Math.min(...rows.map((r) => r.lat));
+  const lon0 = Math.min(...rows.map((r) => r.lon));
+  const mPerDegLon = M_PER_DEG_LAT * Math.cos(((lat0 + Math.max(...rows.map((r) => r.lat))) / 2) * (Math.PI / 180));
   const best = new Map<string, T>();
   for (const r of rows) {
-    const lat = (r.alat + r.blat) / 2;
-    const lon = (r.alon + r.blon) / 2;
-    const key = `${Math.floor(((lat - box.lat0) * M_PER_DEG_LAT) / cellM)}:${Math.floor(((lon - box.lon0) * mPerDegLon) / cellM)}`;
+    const key = `${Math.floor(((r.lat - lat0) * M_PER_DEG_LAT) / cellM)}:${Math.floor(((r.lon - lon0) * mPerDegLon) / cellM)}`;
     const kept = best.get(key);
     if (!kept || r.harvest_w > kept.harvest_w || (r.harvest_w === kept.harvest_w && r.id < kept.id)) best.set(key, r);
   }
@@ -265,10 +299,10 @@ export async function planMission(em: EntityManager, req: PlanRequest, ctx: Plan
   const wind: Wind = req.wind ? { speedMps: req.wind.speedMps, fromDeg: req.wind.fromDeg } : CALM;
   const returnToBase = req.returnToBase ?? false;
   const objective = req.objective ?? 'time';
-  // Perches considered: mid-points within one full-battery hop (at the best ground speed) of the box around base and target.
+  // Perches considered: mid-points within one full-battery hop (at the best ground speed) of the straight line base–target.
   const hopM = (usableWh(drone, 100) * 3600 * (drone.cruiseSpeedMps + wind.speedMps)) / drone.cruisePowerW;
-  const box = boxAround([req.base, req.target], Math.min(hopM, 500_000));
-  const [{ perches, nearRoute }, zones] = await Promise.all([perchCandidates(em, ctx, box), activeZonesOn(em, ctx.departAtMs)]);
+  const corridor = { a: req.base, b: req.target, widthM: Math.min(hopM, 500_000) };
+  const [{ perches, nearRoute }, zones] = await Promise.all([perchCandidates(em, ctx, corridor), activeZonesOn(em, ctx.departAtMs)]);
   const index = buildIndex(perches);
   const excludes = zones.filter((z) => z.severity === 'exclude');
   const blocked = (a: Point, b: Point) => zonesOnLeg(excludes, a, b, 'exclude')[0]?.id ?? null;

@@ -286,10 +286,13 @@ export function svgRoute(
 /** Why no route exists, in words a planner can act on (the server's sentence first, its figures when it gives them). */
 export function infeasibleText(plan: InfeasiblePlan, system: UnitSystem): string[] {
   const lines: string[] = [];
-  const sentence = plan.message ?? (plan.reason && /\s/.test(plan.reason) ? plan.reason : undefined);
-  if (sentence) lines.push(sentence);
   const gapM = plan.gap?.distanceM ?? plan.longestGapM ?? plan.gapM;
   const reachM = plan.gap?.reachM ?? plan.reachM;
+  // A gap given by its figures is written here in the user's units (the server's sentence is in SI units and lists
+  // the bridging spans, which follow below one by one).
+  const byFigures = plan.reason === 'gap' && gapM !== undefined;
+  const sentence = byFigures ? undefined : (plan.message ?? (plan.reason && /\s/.test(plan.reason) ? plan.reason : undefined));
+  if (sentence) lines.push(sentence);
   if (!sentence) {
     switch (plan.reason) {
       case 'gap':
