@@ -66,6 +66,24 @@ describe('tablet layouts', () => {
     await context.close();
   }, 60_000);
 
+  it('when the admin (the longest menu) opens the app on a 1280 px screen, then the bar is still one row inside the screen', async () => {
+    const { context, page } = await h.newPage({ viewport: { width: 1280, height: 900 } });
+    await h.signIn(page, 'admin');
+    await page.waitForURL((u) => u.pathname === '/admin');
+    const bar = await page.getByTestId('app-bar').boundingBox();
+    const links = page.getByRole('navigation', { name: 'Main' }).getByRole('link');
+    const boxes = (await Promise.all((await links.all()).map((l) => l.boundingBox()))).filter((b) => b !== null);
+    expect(boxes.length).toBe(8);
+    for (const b of boxes) {
+      expect(b.x + b.width).toBeLessThanOrEqual(1280);
+      expect(Math.abs(b.y - boxes[0].y)).toBeLessThan(2);
+    }
+    const who = await page.getByTestId('who').boundingBox();
+    expect(who!.x + who!.width).toBeLessThanOrEqual(1280);
+    expect(bar!.height).toBeLessThan(boxes[0].height * 2);
+    await context.close();
+  }, 60_000);
+
   it('when a planner opens the map on the tablet, then the map sits beside the filters, inside the screen', async () => {
     const { context, page } = await h.newPage({ viewport: TABLET, hasTouch: true });
     await h.signIn(page, 'planner');
