@@ -229,6 +229,10 @@ describe('the demo mission end to end', () => {
       await page.getByTestId('stale-badge').waitFor();
       const reasons = await page.getByTestId('stale-reasons').textContent();
       expect(reasons).toMatch(/suspended/);
+      // The history says so in words, after the save and the authorisation.
+      const history = page.getByRole('region', { name: 'Mission record' }).locator('details');
+      await history.getByText('Marked for a new plan', { exact: false }).waitFor({ state: 'attached' });
+      expect(await history.textContent()).toMatch(/Saved.*Authorised.*Marked for a new plan/s);
       // The planner sees no authorise button and the safety officer cannot authorise a plan that no longer holds.
       await safety.page.goto(missionUrl);
       await safety.page.getByTestId('stale-badge').waitFor();

@@ -13,7 +13,8 @@ import type { Mission } from './types.ts';
 
 const ACTION_WORDS: Record<string, string> = {
   create: 'Saved', 'mission.create': 'Saved', replan: 'Replanned', 'mission.replan': 'Replanned', authorise: 'Authorised', 'mission.authorise': 'Authorised',
-  stale: 'Marked for a new plan', 'mission.stale': 'Marked for a new plan', update: 'Changed', 'mission.update': 'Changed',
+  stale: 'Marked for a new plan', 'mission.stale': 'Marked for a new plan', 'mission.needs-new-plan': 'Marked for a new plan',
+  'mission.needs-new-plan.authorisation-withdrawn': 'Marked for a new plan; its authorisation withdrawn', update: 'Changed', 'mission.update': 'Changed',
 };
 
 export function StaleBadge({ mission }: { mission: Mission }) {
