@@ -5,6 +5,7 @@ import { generateIdFromEntropySize } from 'lucia';
 import { OptimisticLockError, type EntityManager } from '@mikro-orm/core';
 import type { PlanRequest } from '#shared/schemas/missions.ts';
 import { AppError } from '../../http/errors.ts';
+import { sql } from '../../sql/query.ts';
 import { audit } from '../audit/audit.service.ts';
 import { AuditEntry } from '../audit/audit.entity.ts';
 import { User } from '../auth/user.entity.ts';
@@ -218,9 +219,7 @@ async function linesWithoutPermission(em: EntityManager, m: Mission): Promise<{ 
   const lineIds = [...new Set((await em.find(MissionPerch, { missionId: m.id })).map((p) => p.lineId))];
   const missing: { lineId: string; name: string }[] = [];
   for (const lineId of lineIds) {
-    const rows = (await em
-      .getConnection()
-      .execute('select count(*) as n from line_permissions where line_id = ? and valid_from <= ? and valid_to >= ?', [lineId, m.departDate, m.departDate])) as { n: number }[];
+    const rows = (await sql.all(em, 'select count(*) as n from line_permissions where line_id = ? and valid_from <= ? and valid_to >= ?', [lineId, m.departDate, m.departDate])) as { n: number }[];
     if (Number(rows[0]?.n ?? 0) === 0) {
       const line = await em.findOne(Line, { id: lineId });
       missing.push({ lineId, name: line?.name ?? lineId });
@@ -295,9 +294,7 @@ async function reasonsFor(em: EntityManager, m: Mission): Promise<MissionStaleRe
       const dx = (lon - p.lon) * 111_320 * Math.cos((lat * Math.PI) / 180);
       if (Math.hypot(dx, dy) > MOVED_M) reasons.push({ code: 'span-moved', spanId: p.spanId, message: `a structure of the perch span ${name} moved, so the perch point moved` });
     }
-    const rows = (await em
-      .getConnection()
-      .execute('select perchable, result from assessments where span_id = ? and harvester_profile_id = ? and drone_profile_id = ?', [p.spanId, m.harvesterProfileId, m.droneProfileId])) as { perchable: number; result: unknown }[];
+    const rows = (await sql.all(em, 'select perchable, result from assessments where span_id = ? and harvester_profile_id = ? and drone_profile_id = ?', [p.spanId, m.harvesterProfileId, m.droneProfileId])) as { perchable: number; result: unknown }[];
     const row = rows[0];
     if (!row || !row.perchable) {
       const result = row ? (typeof row.result === 'string' ? JSON.parse(row.result) : row.result) : null;
@@ -351,9 +348,7 @@ export async function missionsOnSpans(em: EntityManager, spanIds: readonly strin
   const out = new Set<string>();
   for (let i = 0; i < spanIds.length; i += 400) {
     const chunk = spanIds.slice(i, i + 400);
-    const rows = (await em
-      .getConnection()
-      .execute(`select distinct mp.mission_id as id from mission_perches mp join missions m on m.id = mp.mission_id where m.stale = 0 and mp.span_id in (${chunk.map(() => '?').join(',')})`, [...chunk])) as { id: string }[];
+    const rows = (await sql.all(em, `select distinct mp.mission_id as id from mission_perches mp join missions m on m.id = mp.mission_id where m.stale = 0 and mp.span_id in (${chunk.map(() => '?').join(',')})`, [...chunk])) as { id: string }[];
     for (const r of rows) out.add(r.id);
   }
   return [...out];

@@ -14,6 +14,7 @@ import { windTriangle } from '#shared/engineering/wind-triangle.ts';
 import { CALM, type Wind } from '#shared/engineering/mission-leg.ts';
 import { parseDeparture, type PlanRequest } from '#shared/schemas/missions.ts';
 import { AppError } from '../../http/errors.ts';
+import { sql } from '../../sql/query.ts';
 import { Line } from '../inventory/line.entity.ts';
 import { Zone } from '../zones/zone.entity.ts';
 import { isZoneActive } from '../zones/zone.service.ts';
@@ -178,9 +179,8 @@ function corridorAreaM2(c: Corridor): number {
  */
 export async function perchCandidates(em: EntityManager, ctx: PlanContext, corridor: Corridor, max = MAX_SEARCH_PERCHES): Promise<{ perches: PerchCandidate[]; nearRoute: number }> {
   const box = boxAround([corridor.a, corridor.b], corridor.widthM);
-  const found = (await em
-    .getConnection()
-    .execute(
+  const found = (await sql.all(
+      em,
       `select s.id as id, (a.lat + b.lat) / 2 as lat, (a.lon + b.lon) / 2 as lon, pa.harvest_w as harvest_w ${SPAN_FROM} ` +
         'join assessments pa on pa.span_id = s.id and pa.harvester_profile_id = ? and pa.drone_profile_id = ? and pa.perchable = 1 ' +
         `where s.status = ? and ${IN_BOX}`,
@@ -193,7 +193,7 @@ export async function perchCandidates(em: EntityManager, ctx: PlanContext, corri
   const ids = kept.map((k) => k.id).sort();
   for (let i = 0; i < ids.length; i += 400) {
     const chunk = ids.slice(i, i + 400);
-    rows.push(...((await em.getConnection().execute(`select ${SPAN_COLUMNS} ${SPAN_FROM} where s.id in (${chunk.map(() => '?').join(',')}) order by s.id`, chunk)) as SpanRow[]));
+    rows.push(...((await sql.all(em, `select ${SPAN_COLUMNS} ${SPAN_FROM} where s.id in (${chunk.map(() => '?').join(',')}) order by s.id`, chunk)) as SpanRow[]));
   }
   const lineIds = [...new Set(rows.map((r) => r.line_id))];
   const lines: MeasuredLine[] = [];
@@ -479,9 +479,7 @@ function longestGap(input: SearchInput, perches: PerchCandidate[]) {
 
 async function bridgingSpans(em: EntityManager, ctx: PlanContext, from: Point, to: Point, reachFrom: number, reachTo: number, exclude: Set<string>) {
   const box = boxAround([from, to], Math.max(reachFrom, reachTo));
-  const rows = (await em
-    .getConnection()
-    .execute(`select ${SPAN_COLUMNS}, l.name as line_name ${SPAN_FROM} join lines l on l.id = s.line_id where ${IN_BOX} order by s.id limit 5000`, [
+  const rows = (await sql.all(em, `select ${SPAN_COLUMNS}, l.name as line_name ${SPAN_FROM} join lines l on l.id = s.line_id where ${IN_BOX} order by s.id limit 5000`, [
       box.lat0,
       box.lat1,
       box.lon0,
@@ -498,9 +496,7 @@ async function bridgingSpans(em: EntityManager, ctx: PlanContext, from: Point, t
     .slice(0, MAX_BRIDGING);
   const out = [];
   for (const { r } of found) {
-    const [row] = await em
-      .getConnection()
-      .execute<{ perchable: number; result: string }[]>('select perchable, result from assessments where span_id = ? and harvester_profile_id = ? and drone_profile_id = ?', [r.id, ctx.harvester.id, ctx.drone.id]);
+    const row = await sql.get<{ perchable: number; result: unknown }>(em, 'select perchable, result from assessments where span_id = ? and harvester_profile_id = ? and drone_profile_id = ?', [r.id, ctx.harvester.id, ctx.drone.id]);
     const gates: string[] = [];
     if (row) {
       const result = typeof row.result === 'string' ? JSON.parse(row.result) : row.result;
