@@ -51,7 +51,7 @@ export const router = createBrowserRouter([
           { path: 'missions', lazy: page(() => import('../features/missions/missions-list-page.tsx'), (m) => <m.MissionsListPage />) },
           // The plan screen carries the map library: its own lazy chunk.
           { path: 'missions/new', lazy: async () => { const m = await import('../features/missions/plan-page.tsx'); return { element: <RoleGate roles={['planner']}><m.PlanPage /></RoleGate> }; } },
-          { path: 'missions/:id', lazy: () => import('../features/missions/plan-page.tsx') },
+          { path: 'missions/:id', lazy: page(() => Promise.all([import('../features/missions/plan-page.tsx'), evidenceSlot()]), ([m, e]) => <m.PlanPage flownSlot={e.missionFlownSlot} />) },
           { path: 'missions/:id/brief', lazy: () => import('../features/missions/mission-brief-page.tsx') },
           { path: 'admin', lazy: page(() => import('../features/admin/admin-home.tsx'), (m) => <RoleGate roles={['admin']}><RoleHome role="admin"><m.AdminHome /></RoleHome></RoleGate>) },
           { path: 'admin/outbox', lazy: page(() => import('../features/admin/outbox-page.tsx'), (m) => <RoleGate roles={['admin']}><m.OutboxPage /></RoleGate>) },

@@ -4,6 +4,8 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startHarness, type Harness } from './harness.ts';
+import { DEMO_TOWNS } from '../../shared/demo-region.ts';
+import { CLAMP_S, LIGHT_QUAD } from '../../shared/engineering/demo-profiles.ts';
 
 let h: Harness;
 beforeAll(async () => {
@@ -32,7 +34,10 @@ describe('load evidence', () => {
     const file = path.join(h.dataDir, 'demo-flight.csv');
     fs.writeFileSync(file, rows.join('\n'));
 
-    await page.getByRole('link', { name: 'Load evidence' }).first().click();
+    // On the tablet the place sits in the navigation's "More" menu.
+    const inBar = page.getByRole('navigation').getByRole('link', { name: 'Load evidence' });
+    if (!(await inBar.first().isVisible())) await page.getByRole('button', { name: 'More' }).click();
+    await page.getByRole('link', { name: 'Load evidence' }).filter({ visible: true }).first().click();
     await page.waitForURL((u) => u.pathname === '/evidence');
     await page.getByLabel('Upload a flight record').setInputFiles(file);
     const status = page.getByRole('status').filter({ hasText: 'demo-flight.csv' });
@@ -130,6 +135,65 @@ describe('load evidence', () => {
     await page.waitForURL((u) => u.pathname.startsWith('/evidence/flights/'));
     await page.getByRole('status').filter({ hasText: 'weak-perch.csv' }).waitFor({ timeout: 15_000 });
     expect(await page.getByText('below half').count()).toBeGreaterThan(0);
+  });
+
+  it('when a flight record is uploaded on a saved mission\'s page, then the planned and flown timeline shows each perch against the plan', async () => {
+    const { page } = await h.newPage({ viewport: { width: 820, height: 1180 } });
+    await h.signIn(page, 'planner');
+    await page.waitForURL((u) => u.pathname === '/planning');
+    // The demo route (depot to yard, as the demo mission), departing 09:00 at UTC−09:00 tomorrow.
+    const town = (id: string) => DEMO_TOWNS.find((x) => x.id === id)!;
+    const base = { lat: town('skelloway-end').lat, lon: town('skelloway-end').lon };
+    const target = { lat: town('wendlecross').lat, lon: town('wendlecross').lon };
+    const local = new Date(Date.now() - 9 * 3_600_000 + 86_400_000);
+    const departAt = `${local.toISOString().slice(0, 10)}T09:00:00-09:00`;
+    const saved = await page.request.post('/api/missions', {
+      headers: { Origin: h.baseUrl },
+      data: { name: 'Flown check', droneProfileId: LIGHT_QUAD.id, harvesterProfileId: CLAMP_S.id, base, target, departAt },
+    });
+    expect(saved.status()).toBe(201);
+    const mission = await saved.json();
+    const plan = mission.plan;
+    expect(plan.feasible).toBe(true);
+    expect(plan.perches.length).toBeGreaterThan(0);
+
+    // The flight as flown: off 4 min late, along each leg (a point every 30 s), 90 % of each planned dwell on its span.
+    const rows = ['time,lat,lon,altitude_m,battery_pct,harvest_w'];
+    let t = Date.parse(departAt) + 240_000;
+    const stamp = (ms: number) => new Date(ms).toISOString().slice(0, 19) + '+00:00';
+    const stops = [base, ...plan.perches.map((p: { lat: number; lon: number }) => ({ lat: p.lat, lon: p.lon })), target];
+    plan.legs.forEach((leg: { durationS: number }, i: number) => {
+      const a = stops[i];
+      const b = stops[i + 1];
+      const n = Math.max(2, Math.round(leg.durationS / 30));
+      for (let k = 0; k < n; k++, t += (leg.durationS * 1000) / n) rows.push(`${stamp(t)},${(a.lat + ((b.lat - a.lat) * k) / n).toFixed(6)},${(a.lon + ((b.lon - a.lon) * k) / n).toFixed(6)},40,60,`);
+      const p = plan.perches[i];
+      if (p && i < plan.perches.length) {
+        const end = t + p.dwellS * 900;
+        for (; t < end; t += 30_000) rows.push(`${stamp(t)},${b.lat.toFixed(6)},${b.lon.toFixed(6)},20,70,40`);
+      }
+    });
+    rows.push(`${stamp(t)},${target.lat},${target.lon},0,50,`);
+    const file = path.join(h.dataDir, 'mission-flight.csv');
+    fs.writeFileSync(file, rows.join('\n'));
+
+    await page.goto(`/missions/${mission.id}`);
+    const section = page.getByTestId('mission-flown');
+    await section.waitFor({ timeout: 30_000 });
+    await section.getByLabel("Upload this mission's flight record (CSV or GPX)").setInputFiles(file);
+    const status = section.getByRole('status');
+    await status.waitFor({ timeout: 30_000 });
+    const n = plan.perches.length;
+    expect(await status.textContent()).toMatch(new RegExp(`Took off 4 min late .*; ${n} of ${n} planned perches flown`));
+    const figure = page.getByRole('figure', { name: 'Planned and flown timeline' });
+    const segments = figure.locator('.timeline-segment .recharts-bar-rectangle');
+    await segments.first().waitFor({ timeout: 10_000 });
+    // Planned and flown: legs + dwells each (2n + 1 segments per row).
+    expect(await segments.count()).toBe(2 * (2 * n + 1));
+    const cells = await section.locator('tbody tr').allTextContents();
+    expect(cells).toHaveLength(n);
+    for (const row of cells) expect(row).not.toMatch(/not flown/);
+    if (process.env.EVIDENCE_SCREENSHOT) await section.screenshot({ path: process.env.EVIDENCE_SCREENSHOT.replace(/\.png$/, '-flown.png') });
   });
 
   it('when the demo line with a metered year opens, then the month × hour heat map and the harvest band show', async () => {

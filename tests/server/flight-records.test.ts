@@ -5,6 +5,7 @@ import { makeLine, makeSpan } from './assessment-helpers.ts';
 import { Span } from '../../server/modules/inventory/span.entity.ts';
 import { FlightRecord, PerchEvent } from '../../server/modules/evidence/flight-record.entity.ts';
 import { harvest } from '../../shared/engineering/ct-harvester.ts';
+import { LIGHT_QUAD, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
 
 let t: TestApp;
 let planner: Client;
@@ -133,6 +134,37 @@ ${csv.map(([time, lat, lon, alt, bat, w]) => `    <trkpt lat="${lat}" lon="${lon
     expect((await upload(planner, '<gpx><trk>', 'x.gpx')).status).toBe(400);
     expect(await t.orm.em.fork().count(FlightRecord, {})).toBe(before);
     expect(await t.orm.em.fork().count(PerchEvent, { flightRecordId: { $nin: (await t.orm.em.fork().find(FlightRecord, {})).map((r) => r.id) } })).toBe(0);
+  });
+
+  it('when the missionId names no mission, then 400 names the field and nothing is stored', async () => {
+    const before = await t.orm.em.fork().count(FlightRecord, {});
+    const res = await upload(planner, flightCsv(-30.42, 20), 'flight.csv', { missionId: 'no-such-mission' });
+    expect(res.status).toBe(400);
+    expect(res.body.error.issues[0].path).toBe('missionId');
+    expect(res.body.error.message).toMatch(/no such mission/);
+    expect(await t.orm.em.fork().count(FlightRecord, {})).toBe(before);
+  });
+
+  it('when a flight is uploaded to a saved mission, then it is linked to it and listed under the mission', async () => {
+    // A short mission (3 km, within one charge: no perch needed), saved by the planner.
+    const mission = await planner.post('/api/missions', {
+      name: 'Flight link check',
+      droneProfileId: LIGHT_QUAD.id,
+      harvesterProfileId: CLAMP_S.id,
+      base: { lat: -30.43, lon: -130.32 },
+      target: { lat: -30.43, lon: -130.29 },
+      departAt: '2026-06-01T09:00:00-09:00',
+    });
+    expect(mission.status).toBe(201);
+    const other = await upload(planner, flightCsv(-30.43, 20));
+    const res = await upload(planner, flightCsv(-30.43, 20), 'mission-flight.csv', { missionId: mission.body.id });
+    expect(res.status).toBe(201);
+    expect(res.body.missionId).toBe(mission.body.id);
+    const listed = await planner.get(`/api/flight-records?missionId=${mission.body.id}`);
+    expect(listed.status).toBe(200);
+    expect(listed.body.items.map((r: { id: string }) => r.id)).toEqual([res.body.id]);
+    expect(listed.body.items[0].missionId).toBe(mission.body.id);
+    expect((await planner.get('/api/flight-records')).body.items.map((r: { id: string }) => r.id)).toEqual(expect.arrayContaining([res.body.id, other.body.id]));
   });
 
   it('when a surveyor uploads, then 403; the template lists the documented columns', async () => {

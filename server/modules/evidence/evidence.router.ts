@@ -98,7 +98,10 @@ export function evidenceRouter(_ctx: AppContext) {
     if (text.includes('\u0000')) throw new AppError(415, 'unsupported_media_type', 'file: not a text file (CSV or GPX expected)', [{ path: 'file', message: 'not a text file' }]);
     res.status(201).json(await uploadFlightRecord(req.em, currentUser(req), { text, name: req.file.originalname }, fields));
   });
-  flights.get('/', 'signed-in', async (req, res) => res.json({ items: await listFlightRecords(req.em) }));
+  flights.get('/', 'signed-in', async (req, res) => {
+    const q = parse(z.object({ missionId: z.string().max(64).optional() }), req.query);
+    res.json({ items: await listFlightRecords(req.em, q) });
+  });
   flights.get('/:id', 'signed-in', async (req, res) => res.json(await getFlightRecord(req.em, String(req.params.id))));
 
   const ev = featureRouter('/api/evidence');

@@ -13,6 +13,7 @@ import { Span } from '../inventory/span.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
 import { newId } from '../inventory/inventory.service.ts';
 import { HarvesterProfile } from '../assessment/profile.entity.ts';
+import { Mission } from '../missions/mission.entity.ts';
 import { defaultPair, harvesterModel } from '../assessment/profiles.service.ts';
 import { LoadSeriesDay } from './load-series.entity.ts';
 import { isoAt, unpackReadings } from './load-series.parse.ts';
@@ -59,6 +60,7 @@ export async function uploadFlightRecord(
   const harvester = opts.harvesterProfileId ? await em.findOne(HarvesterProfile, { id: opts.harvesterProfileId }) : (await defaultPair(em))?.harvester;
   if (!harvester) throw AppError.field('harvesterProfileId', 'no such harvester profile');
   if (opts.spanId && !(await em.findOne(Span, { id: opts.spanId }))) throw AppError.field('spanId', 'no such span');
+  if (opts.missionId && !(await em.findOne(Mission, { id: opts.missionId }, { fields: ['id'] }))) throw AppError.field('missionId', 'no such mission: upload the flight record to a saved mission, or leave missionId out');
   const lats = track.points.map((p) => p.lat);
   const lons = track.points.map((p) => p.lon);
   const spans = await approvedSpansNear(em, { minLat: Math.min(...lats), maxLat: Math.max(...lats), minLon: Math.min(...lons), maxLon: Math.max(...lons) });
@@ -167,8 +169,8 @@ export async function getFlightRecord(em: EntityManager, id: string) {
   return flightRecordView(r, events, await spanLabels(em, events));
 }
 
-export async function listFlightRecords(em: EntityManager) {
-  const records = await em.find(FlightRecord, {}, { orderBy: { uploadedAt: 'desc' }, fields: ['id', 'fileName', 'format', 'missionId', 'spanId', 'harvesterProfileId', 'startedAt', 'endedAt', 'pointCount', 'uploadedAt', 'uploadedById', 'offsetMin'] });
+export async function listFlightRecords(em: EntityManager, filter: { missionId?: string } = {}) {
+  const records = await em.find(FlightRecord, filter.missionId ? { missionId: filter.missionId } : {}, { orderBy: { uploadedAt: 'desc' }, fields: ['id', 'fileName', 'format', 'missionId', 'spanId', 'harvesterProfileId', 'startedAt', 'endedAt', 'pointCount', 'uploadedAt', 'uploadedById', 'offsetMin'] });
   return records.map((r) => ({ id: r.id, fileName: r.fileName, format: r.format, missionId: r.missionId, spanId: r.spanId, startedAt: r.startedAt, endedAt: r.endedAt, pointCount: r.pointCount, uploadedAt: r.uploadedAt.toISOString() }));
 }
 

@@ -83,14 +83,15 @@ export interface FlightRecordView {
 }
 
 export const flightApi = {
-  upload: (file: File, onProgress?: (p: UploadProgress) => void) => {
+  upload: (file: File, onProgress?: (p: UploadProgress) => void, fields: { missionId?: string; spanId?: string } = {}) => {
     const body = new FormData();
     body.append('file', file);
+    for (const [k, v] of Object.entries(fields)) if (v) body.append(k, v);
     return uploadWithProgress<FlightRecordView>('/api/flight-records', body, onProgress);
   },
   perches: () => api.get<{ items: PerchEventView[]; lowHarvestSpanIds: string[] }>('/api/evidence/perches'),
   get: (id: string) => api.get<FlightRecordView>(`/api/flight-records/${encodeURIComponent(id)}`),
-  list: () => api.get<{ items: FlightRecordSummary[] }>('/api/flight-records'),
+  list: (filter: { missionId?: string } = {}) => api.get<{ items: FlightRecordSummary[] }>(`/api/flight-records${qs(filter)}`),
   ofSpan: (spanId: string) => api.get<SpanEvidenceView>(`/api/evidence/spans/${encodeURIComponent(spanId)}`),
 };
 

@@ -1,6 +1,6 @@
 // The plan screen (/missions/new, /missions/:id): base and target on the map or typed, drone, harvester, departure,
 // wind, return and objective; the route, legs, perches and the charge chart; save as a mission, or replan one.
-import { useEffect, useMemo, useState } from 'react';
+import { useEffect, useMemo, useState, type ReactNode } from 'react';
 import { Link, useNavigate, useParams } from 'react-router';
 import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { fromDisplay, toDisplay, unitLabel } from '#shared/units.ts';
@@ -13,7 +13,7 @@ import { PlanMap, type PlaceKind } from './plan-map.tsx';
 import { ChargeChart, LegsTable, PerchTable, PlanSummary } from './plan-views.tsx';
 import { missionQueries } from './queries.ts';
 import { formatOffset, browserOffsetMinutes, infeasibleText, isoToLocalInput, localInputToIso, offsetOf, routeStops } from './transforms.ts';
-import type { LatLon, MissionObjective, PlanRequest, PlanResult } from './types.ts';
+import type { LatLon, Mission, MissionObjective, PlanRequest, PlanResult } from './types.ts';
 import { missionRequest } from './plan-page-request.ts';
 
 interface FormState {
@@ -60,7 +60,10 @@ function CoordFields({ label, value, onChange, id }: { label: string; value: Lat
   );
 }
 
-export function PlanPage() {
+/** Where another feature shows what was flown against a saved mission. */
+export type MissionFlownSlot = (mission: Mission) => ReactNode;
+
+export function PlanPage({ flownSlot }: { flownSlot?: MissionFlownSlot } = {}) {
   const { id } = useParams();
   const me = useMe();
   const system = me.unitSystem;
@@ -273,6 +276,8 @@ export function PlanPage() {
           )}
         </div>
       </div>
+      {/* What was flown against this plan (the load-evidence feature, composed in src/app/router.tsx). */}
+      {mission.data && flownSlot?.(mission.data)}
     </div>
   );
 }
