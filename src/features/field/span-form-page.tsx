@@ -164,10 +164,14 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
       setOffer(null);
       if (intent === 'submit') {
         // Photos picked before the first save upload now; the page is left once they are in (their bars show).
-        await new Promise((r) => setTimeout(r, 0)); // let the photo slot see the new span's id
         if (pageBusy()) {
           setNotice('Saved. Uploading the photos before leaving…');
-          await pageWorkDone();
+          if (!(await pageWorkDone())) {
+            // A photo did not go up: stay on the (now saved) span so the row's message and "Try again" are seen.
+            setFormError(`${result.status === 'submitted' ? 'Span submitted for review' : 'Changes saved'}, but a photo was not uploaded; see the photo below.`);
+            if (!initial) navigate(`/field/spans/${result.id}/edit`, { replace: true, state: { formKey: 'new' } });
+            return;
+          }
         }
         navigate('/field', { state: { notice: result.status === 'submitted' ? 'Span submitted for review.' : 'Changes saved.' } });
         return;

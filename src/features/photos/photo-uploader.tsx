@@ -52,13 +52,13 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
   }, []);
 
   // Each upload that follows a first save holds the page (the form waits for it before leaving).
-  const waiters = useRef(new Map<string, () => void>());
+  const waiters = useRef(new Map<string, (ok: boolean) => void>());
   const hold = useCallback((key: string) => {
     if (waiters.current.has(key)) return;
-    holdPage(new Promise<void>((resolve) => waiters.current.set(key, resolve)));
+    holdPage(new Promise<boolean>((resolve) => waiters.current.set(key, resolve)));
   }, []);
-  const release = useCallback((key: string) => {
-    waiters.current.get(key)?.();
+  const release = useCallback((key: string, ok = true) => {
+    waiters.current.get(key)?.(ok);
     waiters.current.delete(key);
   }, []);
 
@@ -86,7 +86,7 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
         (err: unknown) => {
           handles.current.delete(item.key);
           patch(item.key, { status: 'failed', error: err instanceof Error ? err.message : 'Upload failed', retryable: retryableStatus(err) });
-          release(item.key);
+          release(item.key, false);
         },
       );
     },
@@ -105,16 +105,15 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
     const held = waiters.current;
     return () => {
       map.forEach((h) => h.abort());
-      held.forEach((resolve) => resolve());
+      held.forEach((resolve) => resolve(true));
     };
   }, []);
 
   // Photos picked before a new span was first saved upload as soon as it has an id, straight onto it.
   useEffect(() => {
     if (!spanId || !items.some((i) => i.status === 'held')) return;
-    for (const i of items) if (i.status === 'held') hold(i.key);
     setItems((all) => all.map((i) => (i.status === 'held' ? { ...i, status: 'queued' } : i)));
-  }, [spanId, items, hold]);
+  }, [spanId, items]);
 
   // A photo uploaded without a span (e.g. before this change) joins it once it has an id.
   useEffect(() => {
@@ -148,6 +147,8 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
         linkChosen: false,
       };
     });
+    // A held photo holds the page from the moment it is picked, so a first save that submits waits for its upload.
+    for (const i of added) if (i.status === 'held') hold(i.key);
     setItems((all) => [...all, ...added]);
   };
 
