@@ -10,9 +10,9 @@ import { audit } from '../audit/audit.service.ts';
 import { AuditEntry } from '../audit/audit.entity.ts';
 import { User } from '../auth/user.entity.ts';
 import { Span } from '../inventory/span.entity.ts';
-import { Line } from '../inventory/line.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
 import { gateWord } from '../assessment/perchable.ts';
+import { linesLackingPermission } from '../line-permissions/line-permissions.service.ts';
 import { Mission, MissionPerch, type MissionStaleReason } from './mission.entity.ts';
 import { activeZonesOn, planContext, planMission, zonesOnLeg } from './plan.service.ts';
 
@@ -216,16 +216,8 @@ export async function missionHistory(em: EntityManager, id: string) {
 
 /** Lines among the mission's perches with no owner permission valid on the departure date. */
 async function linesWithoutPermission(em: EntityManager, m: Mission): Promise<{ lineId: string; name: string }[]> {
-  const lineIds = [...new Set((await em.find(MissionPerch, { missionId: m.id })).map((p) => p.lineId))];
-  const missing: { lineId: string; name: string }[] = [];
-  for (const lineId of lineIds) {
-    const rows = (await sql.all(em, 'select count(*) as n from line_permissions where line_id = ? and valid_from <= ? and valid_to >= ?', [lineId, m.departDate, m.departDate])) as { n: number }[];
-    if (Number(rows[0]?.n ?? 0) === 0) {
-      const line = await em.findOne(Line, { id: lineId });
-      missing.push({ lineId, name: line?.name ?? lineId });
-    }
-  }
-  return missing;
+  const lineIds = (await em.find(MissionPerch, { missionId: m.id })).map((p) => p.lineId);
+  return (await linesLackingPermission(em, lineIds, m.departDate)).map((l) => ({ lineId: l.lineId, name: l.lineName }));
 }
 
 export async function authoriseMission(em: EntityManager, user: User, id: string, version: number | undefined) {
