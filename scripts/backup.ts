@@ -6,6 +6,13 @@ import { createBackup, verifyBackup } from '../server/backup/backup.ts';
 const args = process.argv.slice(2);
 const arg = (name: string) => (args.indexOf(name) >= 0 ? args[args.indexOf(name) + 1] : undefined);
 const config = loadConfig();
+if (config.databaseUrl) {
+  console.error(
+    'DATABASE_URL names a PostgreSQL database: back it up with pg_dump (pg_dump -Fc "$DATABASE_URL" > roostline.dump; restore with pg_restore) ' +
+      'or the provider\'s snapshots, and the photos with the object store\'s versioning or a copy of UPLOADS_DIR. This command copies the SQLite file.',
+  );
+  process.exit(2);
+}
 try {
   if (arg('--verify')) {
     const { manifest, problems } = await verifyBackup(arg('--verify')!);

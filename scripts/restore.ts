@@ -9,6 +9,10 @@ if (!from) {
   process.exit(2);
 }
 const config = loadConfig();
+if (config.databaseUrl) {
+  console.error('DATABASE_URL names a PostgreSQL database: restore it with pg_restore from a pg_dump file. This command restores an SQLite backup folder.');
+  process.exit(2);
+}
 try {
   const m = await restoreBackup({ from, databasePath: config.databasePath, uploadsDir: config.uploadsDir, force: args.includes('--force') });
   console.log(`Restored the backup of ${m.createdAt} into ${config.databasePath}: ${m.database.rows.spans ?? 0} spans, ${m.files.length} photo files.`);

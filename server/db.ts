@@ -1,11 +1,17 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { MikroORM, type Options } from '@mikro-orm/sqlite';
+import { MikroORM as PostgresORM, type Options as PostgresOptions } from '@mikro-orm/postgresql';
+import { BoundPostgreSqlDriver } from './sql/postgres-driver.ts';
 import { Migrator } from '@mikro-orm/migrations';
 import { entities } from './entities.ts';
 import { migrationsList } from './migrations/index.ts';
 import { BoundSqliteDriver } from './sql/sqlite-driver.ts';
 import { sql } from './sql/query.ts';
+import { postgresMigrationsList } from './migrations/postgres/index.ts';
+
+/** A `postgres://` or `postgresql://` address (DATABASE_URL) rather than an SQLite file path. */
+export const isPostgresUrl = (target: string) => /^postgres(ql)?:\/\//i.test(target);
 
 /**
  * How long a connection waits for another process's lock before SQLite gives up (SQLite retries inside this
@@ -44,13 +50,49 @@ export function ormOptions(databasePath: string): Options {
   };
 }
 
-/** Opens the database and applies every pending migration. */
-export async function initORM(databasePath: string): Promise<MikroORM> {
-  if (databasePath !== ':memory:') fs.mkdirSync(path.dirname(databasePath), { recursive: true });
-  const orm = await MikroORM.init(ormOptions(databasePath));
+/** Pool size per process on PostgreSQL (DATABASE_POOL_MAX; 10): several processes share the server's connections. */
+const POSTGRES_POOL_MAX = Number(process.env.DATABASE_POOL_MAX ?? 10);
+
+export function postgresOrmOptions(url: string): PostgresOptions {
+  return {
+    clientUrl: url,
+    // Every value reaches PostgreSQL as a bound parameter ($1, $2 …), never written into the SQL text.
+    driver: BoundPostgreSqlDriver,
+    entities,
+    extensions: [Migrator],
+    allowGlobalContext: false,
+    debug: false,
+    // Timestamps are `timestamptz` and always read and written in UTC, whatever the server's time zone.
+    forceUtcTimezone: true,
+    pool: { min: 0, max: POSTGRES_POOL_MAX },
+    migrations: { migrationsList: postgresMigrationsList, snapshot: false, silent: true, transactional: true, allOrNothing: true, tableName: 'mikro_orm_migrations' },
+  };
+}
+
+/**
+ * Opens the database and applies every pending migration: an SQLite file (or ':memory:'), or PostgreSQL when
+ * `target` is a postgres:// address. The app is written against one ORM type; both drivers are MikroORM's SQL
+ * drivers over knex with the same EntityManager API, and SQL that differs between them goes through server/sql.
+ */
+export async function initORM(target: string): Promise<MikroORM> {
+  if (isPostgresUrl(target)) {
+    const orm = await PostgresORM.init(postgresOrmOptions(target));
+    // Two processes starting at once must not both apply a migration: one waits for the other's lock.
+    const knex = orm.em.getKnex();
+    await knex.transaction(async (trx) => {
+      await trx.raw('select pg_advisory_xact_lock(?)', [MIGRATION_LOCK]);
+      await orm.getMigrator().up();
+    });
+    return orm as unknown as MikroORM;
+  }
+  if (target !== ':memory:') fs.mkdirSync(path.dirname(target), { recursive: true });
+  const orm = await MikroORM.init(ormOptions(target));
   await orm.getMigrator().up();
   return orm;
 }
+
+/** Advisory lock id held while migrations run on PostgreSQL (any constant; "roostln" in ASCII). */
+const MIGRATION_LOCK = 0x726f6f73746c6e;
 
 /** `PRAGMA integrity_check`: "ok", or the problems SQLite found. */
 export async function integrityCheck(orm: MikroORM): Promise<string> {

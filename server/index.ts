@@ -1,4 +1,4 @@
-import { loadConfig } from './env.ts';
+import { databaseTarget, loadConfig } from './env.ts';
 import { initORM } from './db.ts';
 import { createApp } from './app.ts';
 import { seedDemoIfEmpty } from './seeders/index.ts';
@@ -8,9 +8,12 @@ import { claimServerLock, releaseServerLock } from './server-lock.ts';
 import { scheduleDailyBackups } from './backup/schedule.ts';
 
 const startedAt = new Date();
+/** The address without its password, for the log. */
+const redactUrl = (url: string) => url.replace(/\/\/([^:/@]+):[^@]*@/, '//$1:***@');
 const config = loadConfig();
-claimServerLock(config.databasePath);
-const orm = await initORM(config.databasePath);
+// One server per SQLite file; on PostgreSQL several processes share the database by design.
+if (!config.databaseUrl) claimServerLock(config.databasePath);
+const orm = await initORM(databaseTarget(config));
 if (config.seedDemo && (await seedDemoIfEmpty(orm))) console.log('Seeded the demo scenario into an empty database.');
 
 // Files written before this start that no photo row names were left by a crash mid-upload (files are written
@@ -24,7 +27,7 @@ if (removed.length) console.log(`photos: removed ${removed.length} file(s) an in
 const { app, ctx, close, lifecycle } = createApp({ orm, config });
 const stopBackups = scheduleDailyBackups(ctx);
 const server = app.listen(config.port, () => {
-  console.log(`Roostline is listening on http://localhost:${config.port} (database ${config.databasePath})`);
+  console.log(`Roostline is listening on http://localhost:${config.port} (database ${config.databaseUrl ? 'PostgreSQL ' + redactUrl(config.databaseUrl) : config.databasePath})`);
 });
 
 let stopping = false;
@@ -52,7 +55,7 @@ async function shutdown(signal: string) {
   stopBackups();
   await close();
   await orm.close();
-  releaseServerLock(config.databasePath);
+  if (!config.databaseUrl) releaseServerLock(config.databasePath);
   console.log('Closed cleanly.');
   process.exit(0);
 }

@@ -22,7 +22,8 @@ export function backupDue(dir: string, hourUtc: number, now = new Date()): boole
 
 export function scheduleDailyBackups(ctx: AppContext): () => void {
   const dir = ctx.config.backupDir;
-  if (!dir || ctx.config.databasePath === ':memory:') return () => undefined;
+  // On PostgreSQL the database is backed up with the database's own tools (pg_dump, the provider's snapshots).
+  if (!dir || ctx.config.databasePath === ':memory:' || ctx.config.databaseUrl) return () => undefined;
   let running: Promise<void> | null = null;
   const check = () => {
     if (running || ctx.lifecycle.draining || !backupDue(dir, ctx.config.backupHourUtc)) return;

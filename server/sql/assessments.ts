@@ -1,11 +1,12 @@
-// Stored assessments written in bulk (the background rescoring path). The column list and the value encoding
-// (booleans as 0/1, dates as epoch milliseconds, JSON as text — what the ORM stores on SQLite) live here, so another
-// database implements these two functions with its own encoding.
+// Stored assessments written in bulk (the background rescoring path). The column list and the value encoding live
+// here: on SQLite what the ORM stores there (booleans as 0/1, dates as epoch milliseconds, JSON as text); on
+// PostgreSQL booleans and timestamps as themselves, JSON as text that the jsonb column parses.
 import type { EntityManager } from '@mikro-orm/core';
 import type { Assessment } from '../modules/assessment/assessment.entity.ts';
 import { inTransaction, marks, rowsPerStatement } from './bulk.ts';
 import { changeCounter, noteAssessmentOnlyChanges } from './data-version.ts';
 import { sql } from './query.ts';
+import { isPostgres, jsonTextField } from './dialect.ts';
 
 const COLUMNS: [string, keyof Assessment][] = [
   ['span_id', 'spanId'],
@@ -26,10 +27,10 @@ const COLUMNS: [string, keyof Assessment][] = [
   ['computed_at', 'computedAt'],
 ];
 
-function encode(v: unknown): unknown {
+function encode(v: unknown, pg: boolean): unknown {
   if (v === undefined || v === null) return null;
-  if (typeof v === 'boolean') return v ? 1 : 0;
-  if (v instanceof Date) return v.getTime();
+  if (typeof v === 'boolean') return pg ? v : v ? 1 : 0;
+  if (v instanceof Date) return pg ? v.toISOString() : v.getTime();
   if (typeof v === 'object') return JSON.stringify(v);
   return v;
 }
@@ -44,32 +45,37 @@ const DELETE_CHUNK = 900;
 export async function replaceAssessmentRows(em: EntityManager, spanIds: readonly string[], rows: readonly Partial<Assessment>[]): Promise<void> {
   const per = rowsPerStatement(COLUMNS.length);
   const insertOf = (n: number) =>
-    `insert into \`assessments\` (${COLUMNS.map(([c]) => `\`${c}\``).join(',')}) values ${Array.from({ length: n }, () => `(${marks(COLUMNS.length)})`).join(',')}`;
+    `insert into "assessments" (${COLUMNS.map(([c]) => `"${c}"`).join(',')}) values ${Array.from({ length: n }, () => `(${marks(COLUMNS.length)})`).join(',')}`;
   const full = insertOf(per);
+  const pg = isPostgres(em);
   await inTransaction(em, async (run) => {
+    // Writers of the same spans' rows (a request, a background rescore, another process) take turns on PostgreSQL;
+    // on SQLite the one connection already serialises them.
+    if (pg) await run('select pg_advisory_xact_lock(hashtext(?))', ['assessments']);
     // The transaction holds the connection, so the counter moves only by this writer's rows.
-    const before = await changeCounter(run);
+    const before = pg ? 0 : await changeCounter(run);
     for (let i = 0; i < spanIds.length; i += DELETE_CHUNK) {
       const ids = spanIds.slice(i, i + DELETE_CHUNK);
-      await run(`delete from \`assessments\` where \`span_id\` in (${marks(ids.length)})`, ids as unknown[]);
+      await run(`delete from "assessments" where "span_id" in (${marks(ids.length)})`, ids as unknown[]);
     }
     for (let i = 0; i < rows.length; i += per) {
       const chunk = rows.slice(i, i + per);
       const params: unknown[] = new Array(chunk.length * COLUMNS.length);
       let k = 0;
-      for (const r of chunk) for (const [, prop] of COLUMNS) params[k++] = encode(r[prop]);
+      for (const r of chunk) for (const [, prop] of COLUMNS) params[k++] = encode(r[prop], pg);
       await run(chunk.length === per ? full : insertOf(chunk.length), params);
     }
-    noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
+    if (!pg) noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
   });
 }
 
 /** Rows of spans that were deleted meanwhile. */
 export async function deleteOrphanAssessments(em: EntityManager): Promise<void> {
+  const pg = isPostgres(em);
   await inTransaction(em, async (run) => {
-    const before = await changeCounter(run);
-    await run('delete from `assessments` where `span_id` not in (select `id` from `spans`)', []);
-    noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
+    const before = pg ? 0 : await changeCounter(run);
+    await run('delete from assessments where span_id not in (select id from spans)', []);
+    if (!pg) noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
   });
 }
 
@@ -94,7 +100,7 @@ export async function readAssessmentSummaries(
     const rows = await sql.all<Record<string, any>>(
       em,
       'select span_id, harvester_profile_id, drone_profile_id, perchable, score, harvest_w, charge_time_min, conductor_temp_c, ampacity_a, result, ' +
-        'method_version, settings_version, harvester_version, drone_version, computed_at, json_extract(inputs, \'$.loadSource\') as load_source from `assessments` ' +
+        `method_version, settings_version, harvester_version, drone_version, computed_at, ${jsonTextField(em, 'inputs', 'loadSource')} as load_source from assessments ` +
         `where span_id in (${marks(ids.length)})` +
         (h ? ` and harvester_profile_id in (${marks(h.length)})` : '') +
         (d ? ` and drone_profile_id in (${marks(d.length)})` : '') +

@@ -3,7 +3,7 @@
 // so another database can be added behind the same functions.
 import type { EntityManager } from '@mikro-orm/core';
 
-/** SQLite's default SQLITE_MAX_VARIABLE_NUMBER is 32 766 (since 3.32); stay well under it. */
+/** SQLite's default SQLITE_MAX_VARIABLE_NUMBER is 32 766 (since 3.32), PostgreSQL's limit 65 535; stay well under both. */
 const MAX_PARAMS = 30_000;
 
 type Knex = { raw: (sql: string, bindings: unknown[]) => Promise<unknown>; transaction: <T>(fn: (trx: Knex) => Promise<T>) => Promise<T> };
@@ -14,7 +14,7 @@ function knexOf(em: EntityManager): Knex {
 
 const quote = (name: string) => {
   if (!/^[a-z_][a-z0-9_]*$/.test(name)) throw new Error(`not a column name: ${name}`);
-  return `\`${name}\``;
+  return `"${name}"`;
 };
 
 export interface BulkOptions {

@@ -1,9 +1,12 @@
 // A cheap data version of the database, for caches that must never serve a figure older than the data (list
 // totals, tiles). SQLite: total_changes() counts every row this connection inserted, updated or deleted (the server
 // holds one connection), and PRAGMA data_version changes when another connection commits. Both are O(1).
-// Another database implements these functions its own way (e.g. a counter bumped by statement-level triggers).
+// PostgreSQL: the write-ahead log position, which moves with every committed change (of any process); coarser than
+// SQLite's counters (it also moves for other databases of the cluster and for maintenance), so a cache may be
+// dropped needlessly, never kept too long.
 import type { EntityManager } from '@mikro-orm/core';
 import { sql } from './query.ts';
+import { isPostgres } from './dialect.ts';
 
 interface VersionState {
   /** Rows changed by writers that touch only stored assessments (the bulk rescorer): the inventory's version skips them. */
@@ -26,6 +29,10 @@ export type VersionScope = 'all' | 'inventory';
  * assessment-only writers (so totals that do not depend on assessments stay cached during a full rescore).
  */
 export async function dataVersion(em: EntityManager, scope: VersionScope = 'all'): Promise<string> {
+  if (isPostgres(em)) {
+    const pg = (await sql.get<{ v: string }>(em, 'select pg_current_wal_lsn()::text as v'))!;
+    return `pg:${pg.v}`;
+  }
   const row = (await sql.get<{ c: number; d: number }>(em, 'select total_changes() as c, (select data_version from pragma_data_version) as d'))!;
   const changes = Number(row.c) - (scope === 'inventory' ? stateOf(em).assessmentOnly : 0);
   return `${row.d}:${changes}`;

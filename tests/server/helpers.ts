@@ -2,7 +2,8 @@ import supertest from 'supertest';
 import type { MikroORM } from '@mikro-orm/sqlite';
 import { initORM } from '../../server/db.ts';
 import { createApp } from '../../server/app.ts';
-import { testConfig, type AppConfig } from '../../server/env.ts';
+import { databaseTarget, testConfig, type AppConfig } from '../../server/env.ts';
+import { freshPostgresDatabase } from '../postgres/databases.ts';
 import { seedDemoUsers, DEMO_PASSWORD } from '../../server/seeders/demo-users.ts';
 import type { Role } from '../../shared/roles.ts';
 
@@ -37,10 +38,14 @@ function makeClient(app: TestApp['app']) {
   };
 }
 
-/** A fresh app on its own in-memory database, with the four demo accounts. */
+/**
+ * A fresh app on its own in-memory database, with the four demo accounts. Under the PostgreSQL run
+ * (vitest.postgres.config.ts) the database is a fresh one on the throwaway cluster instead.
+ */
 export async function makeTestApp(overrides: Partial<AppConfig> = {}, opts: { seed?: (orm: MikroORM) => Promise<void> } = {}): Promise<TestApp> {
-  const config = testConfig(overrides);
-  const orm = await initORM(config.databasePath);
+  const pg = overrides.databaseUrl === undefined ? await freshPostgresDatabase() : null;
+  const config = testConfig(pg ? { ...overrides, databaseUrl: pg } : overrides);
+  const orm = await initORM(databaseTarget(config));
   await seedDemoUsers(orm.em.fork());
   if (opts.seed) await opts.seed(orm);
   const { app, close } = createApp({ orm, config, clientDir: '/nonexistent' });

@@ -7,6 +7,7 @@ import type { AppLucia } from '../auth/lucia.ts';
 import { AppError } from '../../http/errors.ts';
 import { audit } from '../audit/audit.service.ts';
 import { Crew, User } from '../auth/user.entity.ts';
+import { isPostgres, lockForTransaction } from '../../sql/dialect.ts';
 
 /**
  * Role changes and deactivations run one at a time (one app process serves the database), so two admins
@@ -69,8 +70,29 @@ async function assertAnotherActiveAdmin(em: EntityManager, user: User) {
   if (admins.length === 0) throw AppError.conflict(LAST_ADMIN);
 }
 
+/**
+ * One account change at a time across every process: on SQLite the in-process queue above is enough (one server
+ * per database file); on PostgreSQL the change runs in a transaction holding the "accounts" advisory lock, so two
+ * servers removing the last two admins at once see each other's committed change.
+ */
+async function accountChange<T>(em: EntityManager, fn: () => Promise<T>): Promise<T> {
+  if (!isPostgres(em)) return oneAtATime(fn);
+  return oneAtATime(async () => {
+    await em.begin();
+    try {
+      await lockForTransaction(em, 'accounts');
+      const out = await fn();
+      await em.commit();
+      return out;
+    } catch (err) {
+      await em.rollback();
+      throw err;
+    }
+  });
+}
+
 export function updateUser(em: EntityManager, user: User, input: UserUpdateInput, actor: User) {
-  return oneAtATime(() => applyUserUpdate(em, user, input, actor));
+  return accountChange(em, () => applyUserUpdate(em, user, input, actor));
 }
 
 async function applyUserUpdate(em: EntityManager, user: User, input: UserUpdateInput, actor: User) {
@@ -94,7 +116,7 @@ async function applyUserUpdate(em: EntityManager, user: User, input: UserUpdateI
 
 /** Deactivation ends every session of the account at once; sign-in is refused from then on. */
 export function deactivateUser(em: EntityManager, lucia: AppLucia, user: User, actor: User) {
-  return oneAtATime(() => applyDeactivation(em, lucia, user, actor));
+  return accountChange(em, () => applyDeactivation(em, lucia, user, actor));
 }
 
 async function applyDeactivation(em: EntityManager, lucia: AppLucia, user: User, actor: User) {

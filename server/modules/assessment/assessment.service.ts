@@ -31,6 +31,7 @@ import { AppError } from '../../http/errors.ts';
 import { replaceAssessmentRows, deleteOrphanAssessments, readAssessmentSummaries } from '../../sql/assessments.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
 import { sql } from '../../sql/query.ts';
+import { lockForTransaction } from '../../sql/dialect.ts';
 
 const BATCH = 500;
 const DAY_MS = 86_400_000;
@@ -311,6 +312,8 @@ export async function assessSpans(em: EntityManager, spanIds?: readonly string[]
     const rows = assessmentRows(records, harvesters, drones, settings, settingsVersion, now);
     const ids = spans.map((s) => s.id);
     await em.transactional(async (tx) => {
+      // Two writers of the same span's rows (a request and a background rescore, or two processes) take turns.
+      await lockForTransaction(tx, 'assessments');
       await tx.nativeDelete(Assessment, { spanId: { $in: ids } });
       if (rows.length) await tx.insertMany(Assessment, rows);
     });
@@ -349,7 +352,7 @@ export async function assessSpans(em: EntityManager, spanIds?: readonly string[]
   }
   // Rows of spans that were deleted meanwhile.
   if (!opts.lineId && !opts.shouldStop?.()) {
-    await sql.run(em, 'delete from `assessments` where `span_id` not in (select `id` from `spans`)');
+    await sql.run(em, 'delete from assessments where span_id not in (select id from spans)');
   }
   return assessed;
 }

@@ -33,8 +33,9 @@ export async function spansNear(em: EntityManager, polygons: Polygon[]): Promise
     const rows = await sql.all<{ id: string }>(
       em,
       'select s.id as id from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id ' +
-        'where min(a.lon, b.lon) <= ? and max(a.lon, b.lon) >= ? and min(a.lat, b.lat) <= ? and max(a.lat, b.lat) >= ?',
-      [x1, x0, y1, y0],
+        // Both corners compared with the box (no scalar min/max, which only SQLite has).
+        'where (a.lon <= ? or b.lon <= ?) and (a.lon >= ? or b.lon >= ?) and (a.lat <= ? or b.lat <= ?) and (a.lat >= ? or b.lat >= ?)',
+      [x1, x1, x0, x0, y1, y1, y0, y0],
     );
     for (const r of rows) ids.add(r.id);
   }

@@ -29,18 +29,18 @@ export const gateWord = (id: string) => GATE_WORDS[id] ?? id.replace(/-/g, ' ');
 export function perchableSql(spanAlias = 's'): string {
   return (
     'exists (select 1 from assessments pa ' +
-    'join harvester_profiles ph on ph.id = pa.harvester_profile_id and ph.active = 1 ' +
-    'join drone_profiles pd on pd.id = pa.drone_profile_id and pd.active = 1 ' +
-    `where pa.span_id = ${spanAlias}.id and pa.perchable = 1)`
+    'join harvester_profiles ph on ph.id = pa.harvester_profile_id and ph.active = true ' +
+    'join drone_profiles pd on pd.id = pa.drone_profile_id and pd.active = true ' +
+    `where pa.span_id = ${spanAlias}.id and pa.perchable = true)`
   );
 }
 
 /** 1 perchable, 0 assessed but not perchable, null not assessed for any active pair (the map's tile property). */
 export function perchableFlagSql(spanAlias = 's'): string {
   return (
-    `(select max(pa.perchable) from assessments pa ` +
-    'join harvester_profiles ph on ph.id = pa.harvester_profile_id and ph.active = 1 ' +
-    'join drone_profiles pd on pd.id = pa.drone_profile_id and pd.active = 1 ' +
+    `(select max(case when pa.perchable then 1 else 0 end) from assessments pa ` +
+    'join harvester_profiles ph on ph.id = pa.harvester_profile_id and ph.active = true ' +
+    'join drone_profiles pd on pd.id = pa.drone_profile_id and pd.active = true ' +
     `where pa.span_id = ${spanAlias}.id)`
   );
 }

@@ -8,6 +8,7 @@ import { Span } from '../inventory/span.entity.ts';
 import { AuditEntry } from './audit.entity.ts';
 import { SPAN_RELATED_RECORD_TYPES } from './audit.service.ts';
 import { sql } from '../../sql/query.ts';
+import { jsonTextField } from '../../sql/dialect.ts';
 
 async function toItems(em: EntityManager, entries: AuditEntry[]): Promise<AuditItem[]> {
   const ids = [...new Set(entries.map((e) => e.actorId).filter((id): id is string => !!id))];
@@ -76,7 +77,7 @@ export function auditRouter(_ctx: AppContext) {
       req.em,
       `select id from audit_entries
         where (record_type = 'span' and record_id = ?)
-           or (record_type in ('hazard', 'photo') and (json_extract("after", '$.spanId') = ? or json_extract("before", '$.spanId') = ?))
+           or (record_type in ('hazard', 'photo') and (${jsonTextField(req.em, '"after"', 'spanId')} = ? or ${jsonTextField(req.em, '"before"', 'spanId')} = ?))
         order by at desc, id desc limit 500`,
       [spanId, spanId, spanId],
     );

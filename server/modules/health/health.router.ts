@@ -9,7 +9,7 @@ const DISK_CACHE_MS = 1000;
 export function healthRouter(ctx: AppContext) {
   const r = featureRouter('/api/health');
   const places = [
-    ...(ctx.config.databasePath === ':memory:' ? [] : [{ holds: 'database', dir: path.dirname(ctx.config.databasePath) }]),
+    ...(ctx.config.databasePath === ':memory:' || ctx.config.databaseUrl ? [] : [{ holds: 'database', dir: path.dirname(ctx.config.databasePath) }]),
     { holds: 'uploads', dir: ctx.config.uploadsDir },
   ];
   let cached: { at: number; disks: DiskSpace[] } | null = null;

@@ -22,6 +22,7 @@ import { Line } from './line.entity.ts';
 import { Span } from './span.entity.ts';
 import { Structure } from './structure.entity.ts';
 import { marks, sql } from '../../sql/query.ts';
+import { tableExistsSql } from '../../sql/dialect.ts';
 
 export const newId = () => generateIdFromEntropySize(10);
 
@@ -91,7 +92,7 @@ export async function tableExists(em: EntityManager, name: string): Promise<bool
   let known = tableCache.get(key);
   if (!known) tableCache.set(key, (known = new Map()));
   if (known.get(name)) return true;
-  const rows = await sql.all<{ name: string }>(em, "select name from sqlite_master where type = 'table' and name = ?", [name]);
+  const rows = await sql.all<{ name: string }>(em, tableExistsSql(em), [name]);
   const exists = rows.length > 0;
   if (exists) known.set(name, true);
   return exists;

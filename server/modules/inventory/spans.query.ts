@@ -38,7 +38,7 @@ const SORT_SQL: Record<SpanSortKey, string> = {
 };
 
 function likeEscape(q: string) {
-  return `%${q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+  return `%${q.toLowerCase().replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 }
 
 /**
@@ -76,7 +76,10 @@ async function buildQuery(em: EntityManager, f: SpanFilter, forCount = false) {
   }
   if (f.q) {
     const like = likeEscape(f.q);
-    where.push("(fs.label like ? escape '\\' or ts.label like ? escape '\\' or l.name like ? escape '\\' or s.conductor_code_word like ? escape '\\' or s.id = ?)");
+    // lower() on both sides: SQLite's LIKE ignores ASCII case, PostgreSQL's does not.
+    where.push(
+      "(lower(fs.label) like ? escape '\\' or lower(ts.label) like ? escape '\\' or lower(l.name) like ? escape '\\' or lower(s.conductor_code_word) like ? escape '\\' or s.id = ?)",
+    );
     params.push(like, like, like, like, f.q);
   }
   if (f.perchable !== undefined) where.push(f.perchable ? perchableSql('s') : `not ${perchableSql('s')}`);

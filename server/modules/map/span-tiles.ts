@@ -142,7 +142,10 @@ export class SpanTileService {
         'select (select count(*) from spans) as sc, (select max(updated_at) from spans) as su, (select count(*) from structures) as tc, (select max(updated_at) from structures) as tu' +
           (hasAssessments ? ', (select count(*) from assessments) as ac, (select max(computed_at) from assessments) as au' : ''),
       );
-    return { sc: Number(row.sc), su: row.su ?? null, tc: Number(row.tc), tu: row.tu ?? null, ac: Number(row.ac ?? 0), au: row.au ?? null };
+    // SQLite answers the stored epoch milliseconds, PostgreSQL a Date: kept as a value that compares with === and
+    // binds back into `where updated_at > ?` on both (an ISO string is read as timestamptz by PostgreSQL).
+    const t = (v: unknown) => (v instanceof Date ? v.toISOString() : (v ?? null));
+    return { sc: Number(row.sc), su: t(row.su), tc: Number(row.tc), tu: t(row.tu), ac: Number(row.ac ?? 0), au: t(row.au) };
   }
 
   /**

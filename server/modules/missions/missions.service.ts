@@ -2,7 +2,8 @@
 // replan (same mission, version + 1, audited), authorise (a second person with the safety role, every perch line
 // permitted on the departure date), and staleness: whether the plan still holds against the spans and zones now.
 import { generateIdFromEntropySize } from 'lucia';
-import { OptimisticLockError, type EntityManager } from '@mikro-orm/core';
+import { LockMode, OptimisticLockError, type EntityManager } from '@mikro-orm/core';
+import { isPostgres } from '../../sql/dialect.ts';
 import type { PlanRequest } from '#shared/schemas/missions.ts';
 import { AppError } from '../../http/errors.ts';
 import { sql } from '../../sql/query.ts';
@@ -112,6 +113,15 @@ function perchRows(missionId: string, plan: Plan, versions: Record<string, numbe
   return (plan.perches ?? []).map((p, seq) => Object.assign(new MissionPerch(), { id: generateIdFromEntropySize(10), missionId, seq, spanId: p.spanId, lineId: p.lineId, spanVersion: versions[p.spanId] ?? 1, lat: p.lat, lon: p.lon }));
 }
 
+async function conflictOnRace<T>(fn: () => Promise<T>): Promise<T> {
+  try {
+    return await fn();
+  } catch (err) {
+    if (err instanceof OptimisticLockError) throw AppError.conflict('This mission was changed by someone else at the same moment. Nothing was saved; reopen it and try again.', [{ path: 'version', message: 'changed meanwhile' }]);
+    throw err;
+  }
+}
+
 async function flushOrConflict(em: EntityManager) {
   try {
     await em.flush();
@@ -178,8 +188,11 @@ export async function replanMission(em: EntityManager, user: User, id: string, i
   const { ctx, outcome } = await planned(em, merged);
   const seen = m.version;
   // One transaction from the version check to the new perches: a racing replan either sees the new version or waits.
-  const saved = await em.transactional(async (tx) => {
-    const cur = await tx.findOne(Mission, { id }, { refresh: true });
+  // On PostgreSQL two replans can both read the old version; the later one's versioned update then finds no row.
+  const saved = await conflictOnRace(() => em.transactional(async (tx) => {
+    // PostgreSQL: the row lock makes a racing replan wait here and then read the new version (409), rather than
+    // both reading the old one and colliding on the perches. SQLite's one connection already runs them in turn.
+    const cur = await tx.findOne(Mission, { id }, { refresh: true, ...(isPostgres(tx) ? { lockMode: LockMode.PESSIMISTIC_WRITE } : {}) });
     if (!cur) throw AppError.notFound('Mission');
     assertVersion(cur, seen);
     const wasAuthorised = cur.status === 'authorised';
@@ -203,7 +216,7 @@ export async function replanMission(em: EntityManager, user: User, id: string, i
     for (const row of perchRows(cur.id, outcome.result as Plan, outcome.spanVersions)) tx.persist(row);
     audit(tx, { actorId: user.id, action: wasAuthorised ? 'mission.replan.authorisation-withdrawn' : 'mission.replan', recordType: 'mission', recordId: cur.id, before, after: { ...snapshot(cur), version: cur.version + 1 } });
     return cur;
-  });
+  }));
   return viewOf(em, saved);
 }
 
@@ -340,7 +353,7 @@ export async function missionsOnSpans(em: EntityManager, spanIds: readonly strin
   const out = new Set<string>();
   for (let i = 0; i < spanIds.length; i += 400) {
     const chunk = spanIds.slice(i, i + 400);
-    const rows = (await sql.all(em, `select distinct mp.mission_id as id from mission_perches mp join missions m on m.id = mp.mission_id where m.stale = 0 and mp.span_id in (${chunk.map(() => '?').join(',')})`, [...chunk])) as { id: string }[];
+    const rows = (await sql.all(em, `select distinct mp.mission_id as id from mission_perches mp join missions m on m.id = mp.mission_id where m.stale = false and mp.span_id in (${chunk.map(() => '?').join(',')})`, [...chunk])) as { id: string }[];
     for (const r of rows) out.add(r.id);
   }
   return [...out];

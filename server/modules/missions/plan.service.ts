@@ -182,7 +182,7 @@ export async function perchCandidates(em: EntityManager, ctx: PlanContext, corri
   const found = (await sql.all(
       em,
       `select s.id as id, (a.lat + b.lat) / 2 as lat, (a.lon + b.lon) / 2 as lon, pa.harvest_w as harvest_w ${SPAN_FROM} ` +
-        'join assessments pa on pa.span_id = s.id and pa.harvester_profile_id = ? and pa.drone_profile_id = ? and pa.perchable = 1 ' +
+        'join assessments pa on pa.span_id = s.id and pa.harvester_profile_id = ? and pa.drone_profile_id = ? and pa.perchable = true ' +
         `where s.status = ? and ${IN_BOX}`,
       [ctx.harvester.id, ctx.drone.id, 'approved', box.lat0, box.lat1, box.lon0, box.lon1],
     )) as { id: string; lat: number; lon: number; harvest_w: number }[];
