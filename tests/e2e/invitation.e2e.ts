@@ -23,14 +23,17 @@ describe('invitation journey', () => {
 
     await admin.page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Outbox' }).click();
     await admin.page.waitForURL((u) => u.pathname === '/admin/outbox');
-    await admin.page.getByRole('button', { name: /Your Roostline account is ready/ }).first().click();
-    const link = admin.page.locator('a[href*="/accept-invitation?token="]').first();
-    await link.waitFor();
+    // The newest message leads with what it is for and the link to act on.
+    const letter = admin.page.getByRole('article', { name: /Your Roostline account is ready/ }).first();
+    await letter.getByText('Invitation', { exact: true }).waitFor();
+    const link = letter.getByRole('link', { name: 'Open the invitation link' });
     const href = await link.getAttribute('href');
     expect(href).toMatch(new RegExp(`^${h.baseUrl}/accept-invitation\\?token=`));
-    // The HTML part is shown in a frame without permissions.
-    await admin.page.getByRole('tab', { name: 'HTML' }).click();
-    expect(await admin.page.locator('iframe').getAttribute('sandbox')).toBe('');
+    await letter.getByRole('button', { name: 'Read the message' }).click();
+    await letter.getByText(/Odile Farrant/).first().waitFor();
+    // The formatted version is shown in a frame without permissions.
+    await letter.getByRole('button', { name: 'Show it as the recipient sees it' }).click();
+    expect(await letter.locator('iframe').getAttribute('sandbox')).toBe('');
 
     const invitee = await h.newPage();
     await invitee.page.goto(href!);
@@ -72,10 +75,9 @@ describe('invitation journey', () => {
     await h.signIn(admin.page, 'admin');
     await admin.page.waitForURL((u) => u.pathname === '/admin');
     await admin.page.goto('/admin/outbox');
-    const message = admin.page.getByRole('button', { name: /Reset your Roostline password\s*planner@roostline.test/ }).first();
+    const message = admin.page.getByRole('article', { name: /Reset your Roostline password/ }).filter({ hasText: 'planner@roostline.test' }).first();
     await message.waitFor({ timeout: 15_000 });
-    await message.click();
-    const href = await admin.page.locator('a[href*="/reset-password?token="]').first().getAttribute('href');
+    const href = await message.getByRole('link', { name: 'Open the reset link' }).getAttribute('href');
     expect(href).toBeTruthy();
 
     await user.page.goto(href!);
