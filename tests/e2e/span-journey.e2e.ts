@@ -110,6 +110,19 @@ describe('span journey', () => {
     await page.getByText('Draft saved.').waitFor();
     spanId = new URL(page.url()).pathname.split('/')[3];
 
+    // Reopened from the server, the form shows every stored value (in the surveyor's units), so a second save loses nothing.
+    await page.reload();
+    await expect.poll(() => page.getByLabel('Code word').inputValue()).toBe('Hawk');
+    expect(await page.locator('#fromStructureId option:checked').innerText()).toContain(LABEL_A);
+    expect(await page.locator('#toStructureId option:checked').innerText()).toContain(LABEL_B);
+    expect(Number(await page.getByLabel('Ground clearance at the perch point (ft)').inputValue())).toBeCloseTo(31, 6);
+    expect(Number(await page.getByLabel('Lowest clearance measured (ft)').inputValue())).toBeCloseTo(28, 6);
+    expect(await page.getByLabel('Terrain under the span').inputValue()).toBe('road');
+    expect(Number(await page.getByLabel('Estimated load current (A)').inputValue())).toBe(210);
+    expect(await page.getByLabel('Kind').inputValue()).toBe('road-crossing');
+    expect(Number(await page.getByLabel('Position from the from-structure (ft)').inputValue())).toBeCloseTo(150, 6);
+    expect(await page.getByLabel('Note').inputValue()).toBe('Farm track under mid-span');
+
     await submit.click();
     await page.waitForURL((u) => u.pathname === '/field');
     await page.getByText('Span submitted for review.').waitFor();
