@@ -5,6 +5,7 @@ import { RouterProvider } from 'react-router/dom';
 import { queryClient } from './lib/query-client.ts';
 import { router } from './app/router.tsx';
 import { UpdatePrompt } from './app/update-prompt.tsx';
+import './app/outbox-wiring.ts';
 import './index.css';
 
 createRoot(document.getElementById('root')!).render(

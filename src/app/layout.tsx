@@ -2,6 +2,7 @@ import { NavLink, Outlet, useNavigate } from 'react-router';
 import { ROLE_LABELS } from '#shared/roles.ts';
 import { Logo } from '../components/logo.tsx';
 import { signOut, useMe } from '../features/auth/queries.ts';
+import { ConnectionIndicator } from '../features/outbox/connection-indicator.tsx';
 import { clearDeviceCache } from '../lib/query-client.ts';
 import { MenuButton } from '../components/menu-button.tsx';
 import { INLINE_TABLET, INLINE_WIDE, navFor } from './nav.ts';
@@ -61,6 +62,7 @@ export function AppLayout() {
               </MenuButton>
             )}
           </nav>
+          <ConnectionIndicator userId={me.id} />
           <MenuButton label={<span data-testid="who" className="max-w-40 truncate">{me.name}</span>} className="shrink-0">
             {(close) => (
               <div className="space-y-1 p-2 text-sm">

@@ -16,6 +16,12 @@ function page<M>(load: () => Promise<M>, render: (m: M) => ReactNode) {
 }
 const field = () => Promise.all([import('../features/field/span-form-page.tsx'), import('../features/photos/slots.tsx')]);
 const evidenceSlot = () => import('../features/evidence/slots.tsx');
+import { FieldOutboxPage } from '../features/outbox/field-outbox-page.tsx';
+import { useMe } from '../features/auth/queries.ts';
+
+function FieldOutbox() {
+  return <FieldOutboxPage userId={useMe().id} />;
+}
 
 function Loading() {
   return <p className="p-8 text-center text-ink-700">Loading…</p>;
@@ -38,6 +44,7 @@ export const router = createBrowserRouter([
         children: [
           { index: true, loader: homeRedirect },
           { path: 'field', lazy: page(() => import('../features/field/components/my-spans-queue.tsx'), (m) => <RoleGate roles={['surveyor']}><RoleHome role="surveyor"><m.MySpansQueue /></RoleHome></RoleGate>) },
+          { path: 'field/outbox', Component: FieldOutbox },
           { path: 'field/spans/new', lazy: page(field, ([f, p]) => <RoleGate roles={['surveyor']}><f.SpanFormPage photoSlot={p.spanFormPhotoSlot} /></RoleGate>) },
           { path: 'field/spans/:id/edit', lazy: page(field, ([f, p]) => <RoleGate roles={['surveyor']}><f.SpanFormPage photoSlot={p.spanFormPhotoSlot} /></RoleGate>) },
           { path: 'spans', lazy: page(() => import('../features/spans/components/spans-table-page.tsx'), (m) => <m.SpansTablePage />) },

@@ -2,16 +2,21 @@
 import { useEffect, useMemo, useRef, useState, type ReactNode } from 'react';
 import { useForm } from 'react-hook-form';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
-import { Link, useLocation, useNavigate, useParams } from 'react-router';
+import { Link, Navigate, useLocation, useNavigate, useParams } from 'react-router';
 import { TERRAINS, TERRAIN_LABELS, type Span } from '#shared/schemas/inventory.ts';
 import { formatQuantity, unitLabel } from '#shared/units.ts';
 import { Caution } from '../../components/caution.tsx';
-import { ApiError } from '../../lib/api.ts';
+import { api, ApiError, isNetworkError } from '../../lib/api.ts';
+import { discardItem, isLocalId, newClientId, type OutboxItem } from '../../lib/outbox.ts';
+import { useOutbox } from '../../lib/use-outbox.ts';
+import { mustQueue, queueSpanSave, queueSubmit, waitingSpanWrites, waitingStructures } from './offline-writes.ts';
 import { pageBusy, pageWorkDone } from '../../lib/page-work.ts';
 import { useMe } from '../auth/queries.ts';
 import { spanApi } from '../spans/api.ts';
 import { inventoryQueries, spanQueries } from '../spans/queries.ts';
 import { StatusBadge } from '../spans/components/status-badge.tsx';
+import { StatusPage } from '../../components/status-page.tsx';
+import { WaitingBadge } from '../../components/waiting-badge.tsx';
 import { ConductorPicker } from './components/conductor-picker.tsx';
 import { ConflictPanel } from './components/conflict-panel.tsx';
 import { Field, QuantityField, SelectField } from './components/form-bits.tsx';
@@ -38,18 +43,31 @@ export type SpanPhotoSlot = (ctx: { spanId: string | null; hazardIds: string[] }
 export function SpanFormPage({ photoSlot }: { photoSlot?: SpanPhotoSlot }) {
   const { id } = useParams();
   const location = useLocation();
-  const span = useQuery({ ...spanQueries.detail(id ?? ''), enabled: !!id, staleTime: 0 });
+  const me = useMe();
+  const outbox = useOutbox();
+  const local = isLocalId(id);
+  const span = useQuery({ ...spanQueries.detail(id ?? ''), enabled: !!id && !local, staleTime: 0 });
+  // A span made offline has been sent meanwhile: continue on the server's record.
+  if (local && outbox.ids[id]) return <Navigate to={`/field/spans/${outbox.ids[id]}/edit`} replace />;
+  if (id && !outbox.loaded) return <p className="p-8 text-center text-ink-700">Loading the span…</p>;
+  const writes = id ? waitingSpanWrites(outbox.items.filter((i) => i.userId === me.id), id) : [];
+  const create = writes.find((i) => i.kind === 'span.create');
+  const update = writes.find((i) => i.kind === 'span.update');
+  if (local) {
+    if (!create) return <StatusPage code={404} title="Not on this device" message="This span was made offline and is no longer waiting here: it was sent or discarded. Find it in My spans." />;
+    return <SpanForm key={(location.state as { formKey?: string } | null)?.formKey ?? id} saved={create.preview as Span} queued={create} photoSlot={photoSlot} />;
+  }
   if (id && span.isPending) return <p className="p-8 text-center text-ink-700">Loading the span…</p>;
   if (id && span.error) throw span.error;
   // Keyed by span id so switching spans starts a fresh form; a new span's first save keeps the same form (its
   // photos picked before that save upload right after it).
   const key = (location.state as { formKey?: string } | null)?.formKey ?? id ?? 'new';
-  return <SpanForm key={key} saved={span.data ?? null} photoSlot={photoSlot} />;
+  return <SpanForm key={key} saved={span.data ?? null} queued={update} photoSlot={photoSlot} />;
 }
 
 type Intent = 'draft' | 'submit';
 
-function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot?: SpanPhotoSlot }) {
+function SpanForm({ saved: initial, queued, photoSlot }: { saved: Span | null; queued?: OutboxItem; photoSlot?: SpanPhotoSlot }) {
   const me = useMe();
   const system = me.unitSystem;
   const navigate = useNavigate();
@@ -57,12 +75,23 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
   const [saved, setSaved] = useState<Span | null>(initial);
   const versionRef = useRef<number | undefined>(initial?.version);
   const [busy, setBusy] = useState(false);
-  const [notice, setNotice] = useState<string | null>(null);
+  const location = useLocation();
+  const [notice, setNotice] = useState<string | null>(() => (location.state as { notice?: string } | null)?.notice ?? null);
   const [formError, setFormError] = useState<string | null>(null);
-  const [conflict, setConflict] = useState<{ mine: SpanFormValues; base: SpanFormValues; saved: Span; intent: Intent } | null>(null);
+  // A queued change the server refused as stale goes to the side-by-side view as soon as the span is opened.
+  const [conflict, setConflict] = useState<{ mine: SpanFormValues; base: SpanFormValues; saved: Span; intent: Intent; itemId?: string } | null>(() =>
+    queued?.state === 'conflict' && queued.current
+      ? { mine: queued.formValues as SpanFormValues, base: (queued.baseFormValues ?? queued.formValues) as SpanFormValues, saved: queued.current as Span, intent: 'draft', itemId: queued.id }
+      : null,
+  );
+  const [waitingItem, setWaitingItem] = useState<OutboxItem | undefined>(queued);
+  const outbox = useOutbox();
+  const mine = outbox.items.filter((i) => i.userId === me.id);
+  const waitingHere = saved ? waitingSpanWrites(mine, saved.id) : [];
 
   const form = useForm<SpanFormValues>({
-    defaultValues: initial ? spanToFormValues(initial, system) : emptySpanForm(),
+    // Entries kept in the outbox are what the surveyor last saw: the form opens on them.
+    defaultValues: queued?.formValues && queued.state !== 'conflict' ? (queued.formValues as SpanFormValues) : initial ? spanToFormValues(initial, system) : emptySpanForm(),
     resolver: spanFormResolver(system, () => versionRef.current),
     mode: 'onBlur',
     reValidateMode: 'onChange',
@@ -113,7 +142,18 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
   const conductors = useQuery(inventoryQueries.conductors());
   const hazardKinds = useQuery(inventoryQueries.hazardKinds());
   const line = lines.data?.find((l) => l.id === lineId);
-  const structureList = useMemo(() => [...(structures.data ?? [])].sort((a, b) => a.label.localeCompare(b.label, undefined, { numeric: true })), [structures.data]);
+  const offlineStructures = useMemo(() => waitingStructures(mine, lineId), [mine, lineId]);
+  const structureList = useMemo(
+    () => [...(structures.data ?? []), ...offlineStructures.filter((o) => !structures.data?.some((s) => s.id === o.id))].sort((a, b) => a.label.localeCompare(b.label, undefined, { numeric: true })),
+    [structures.data, offlineStructures],
+  );
+  // A structure made offline has been sent: the form now names it by the server's id.
+  useEffect(() => {
+    for (const name of ['fromStructureId', 'toStructureId'] as const) {
+      const v = getValues(name);
+      if (isLocalId(v) && outbox.ids[v]) setValue(name, outbox.ids[v]);
+    }
+  }, [outbox.ids, getValues, setValue]);
 
   useEffect(() => {
     if (!notice) return;
@@ -144,8 +184,50 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
       if (missing.length) return showIssues(missing);
     }
     setBusy(true);
+    const key = newClientId();
+    const keep = async () => {
+      const { span: kept } = await queueSpanSave({
+        values,
+        base: (waitingItem?.baseFormValues ?? structuredClone(form.formState.defaultValues)) as SpanFormValues,
+        system,
+        saved,
+        version: versionRef.current,
+        line,
+        structures: structureList,
+        idempotencyKey: key,
+      });
+      if (intent === 'submit' && (kept.status === 'draft' || kept.status === 'returned')) await queueSubmit(kept);
+      clearBackup(window.localStorage, backupKey(me.id, saved?.id ?? null));
+      offerPending.current = false;
+      setOffer(null);
+      if (intent === 'submit') {
+        // Photos picked before the first save are kept with the span before the page is left.
+        setSaved(kept);
+        await new Promise((r) => setTimeout(r, 0));
+        if (pageBusy()) await pageWorkDone();
+        navigate('/field', { state: { notice: 'Kept on this device: it will be submitted when there is a connection.' } });
+        return;
+      }
+      setSaved(kept);
+      reset(values);
+      setNotice('Kept on this device; it will be sent when there is a connection.');
+      // The same form goes on at the new span's address (photos picked before this save follow it).
+      if (!saved) navigate(`/field/spans/${kept.id}/edit`, { replace: true, state: { formKey: 'new' } });
+    };
+    if (mustQueue(me.id) || isLocalId(saved?.id)) {
+      try {
+        await keep();
+      } catch (err) {
+        setFormError(err instanceof Error ? err.message : 'The span could not be kept on this device.');
+      } finally {
+        setBusy(false);
+      }
+      return;
+    }
     try {
-      let result = saved ? await spanApi.update(saved.id, formValuesToUpdate(values, system, versionRef.current ?? saved.version)) : await spanApi.create(formValuesToCreate(values, system));
+      let result = saved
+        ? await spanApi.update(saved.id, formValuesToUpdate(values, system, versionRef.current ?? saved.version))
+        : await api.send<Span>('POST', '/api/spans', formValuesToCreate(values, system), { 'Idempotency-Key': key });
       versionRef.current = result.version;
       setSaved(result);
       queryClient.setQueryData(spanQueries.detail(result.id).queryKey, result);
@@ -179,6 +261,8 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
       setNotice(result.status === 'draft' ? 'Draft saved.' : result.status === 'submitted' && initial?.status === 'approved' ? 'Saved. Safety-relevant changes send the span back to review.' : 'Changes saved.');
       if (!initial) navigate(`/field/spans/${result.id}/edit`, { replace: true, state: { formKey: 'new' } });
     } catch (err) {
+      // The connection dropped on the way: keep it in the outbox (a create with the same key, so never twice).
+      if (isNetworkError(err)) return void (await keep().catch((e: unknown) => setFormError(e instanceof Error ? e.message : 'Not saved')));
       if (err instanceof ApiError && err.status === 400 && err.issues.length) showIssues(mapIssues(err.issues));
       else if (err instanceof ApiError && err.status === 409) {
         const current = savedFromConflict(err.body);
@@ -198,6 +282,11 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
     setSaved(conflict.saved);
     queryClient.setQueryData(spanQueries.detail(conflict.saved.id).queryKey, conflict.saved);
     const intent = conflict.intent;
+    // The queued change is settled here: what is kept is saved from this form.
+    if (conflict.itemId) {
+      void discardItem(conflict.itemId);
+      setWaitingItem(undefined);
+    }
     setConflict(null);
     if (andSave) {
       // Keep the merged values as edits on top of the saved version, then save them.
@@ -233,8 +322,15 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
         <div className="flex flex-wrap items-center gap-3">
           <h1 className="page-title">{saved ? `Span ${saved.fromStructureLabel} → ${saved.toStructureLabel}` : 'New span'}</h1>
           {saved && <StatusBadge status={saved.status} />}
-          {saved && <span className="text-sm text-ink-700">version {saved.version}</span>}
+          {saved && !isLocalId(saved.id) && <span className="text-sm text-ink-700">version {saved.version}</span>}
+          {waitingHere.length > 0 && <WaitingBadge />}
         </div>
+        {waitingHere.length > 0 && (
+          <p className="rounded-lg border border-brass-300 bg-brass-100 p-3 text-sm" data-testid="span-waiting">
+            Kept on this device, waiting to be sent: {waitingHere.map((i) => i.label).join('; ')}.{' '}
+            <Link to="/field/outbox" className="font-semibold underline">Field outbox</Link>
+          </p>
+        )}
         {saved?.status === 'returned' && saved.returnReason && (
           <div className="rounded-lg border-2 border-alarm bg-red-50 p-3" role="note" aria-label="Reviewer's reason">
             <p className="font-bold text-alarm">Sent back by the reviewer:</p>
@@ -433,3 +529,4 @@ function SpanForm({ saved: initial, photoSlot }: { saved: Span | null; photoSlot
     </form>
   );
 }
+

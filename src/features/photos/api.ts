@@ -19,7 +19,7 @@ export interface UploadHandle {
 }
 
 /** POST /api/photos with one file; `onProgress` gets 0…1 as the bytes go out. */
-export function uploadPhoto(file: Blob, opts: { spanId?: string | null; fileName?: string; onProgress?: (fraction: number) => void }): UploadHandle {
+export function uploadPhoto(file: Blob, opts: { spanId?: string | null; fileName?: string; idempotencyKey?: string; onProgress?: (fraction: number) => void }): UploadHandle {
   const xhr = new XMLHttpRequest();
   const promise = new Promise<PhotoWithSuggestions>((resolve, reject) => {
     const body = new FormData();
@@ -28,6 +28,7 @@ export function uploadPhoto(file: Blob, opts: { spanId?: string | null; fileName
     xhr.open('POST', '/api/photos');
     xhr.responseType = 'text';
     xhr.withCredentials = true;
+    if (opts.idempotencyKey) xhr.setRequestHeader('Idempotency-Key', opts.idempotencyKey);
     xhr.upload.onprogress = (e) => {
       if (e.lengthComputable && e.total > 0) opts.onProgress?.(e.loaded / e.total);
     };

@@ -11,6 +11,8 @@ import { photoApi, uploadPhoto, type UploadHandle } from './api.ts';
 import { formatBytes, formatPosition, formatTakenAt } from './format.ts';
 import { photoQueries } from './queries.ts';
 import { MAX_UPLOAD_BYTES, type PhotoWithSuggestions } from './types.ts';
+import { newClientId } from '../../lib/outbox.ts';
+import { keepPhotoOffline, queuePhoto } from './offline-photos.tsx';
 
 // The map (and maplibre) loads only when someone places a photo by hand.
 const PhotoPlaceDialog = lazy(() => import('./photo-place-dialog.tsx'));
@@ -38,6 +40,7 @@ const retryableStatus = (err: unknown) => !(err instanceof ApiError) || err.stat
 
 export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string | null; onUploaded?: (photo: PhotoWithSuggestions) => void }) {
   const [items, setItems] = useState<Item[]>([]);
+  const me = useMe();
   const handles = useRef(new Map<string, UploadHandle>());
   const queryClient = useQueryClient();
   const cameraId = useId();
@@ -69,9 +72,24 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
 
   const start = useCallback(
     (item: Item) => {
+      const key = newClientId();
+      // No signal (or the span exists only on this device): the photo waits in the outbox, listed below.
+      const keep = () =>
+        queuePhoto(item.file, spanRef.current, null, key)
+          .then(
+            () => setItems((all) => all.filter((i) => i.key !== item.key)),
+            (err: unknown) => patch(item.key, { status: 'failed', error: err instanceof Error ? err.message : 'Could not keep the photo', retryable: true }),
+          )
+          .finally(() => release(item.key));
+      if (keepPhotoOffline(spanRef.current, me.id)) {
+        patch(item.key, { status: 'uploading', progress: 0, error: null });
+        void keep();
+        return;
+      }
       patch(item.key, { status: 'uploading', progress: 0, error: null });
       const handle = uploadPhoto(item.file, {
         spanId: spanRef.current,
+        idempotencyKey: key,
         onProgress: (f) => patch(item.key, f >= 1 ? { progress: 1, status: 'processing' } : { progress: f }),
       });
       handles.current.set(item.key, handle);
@@ -85,12 +103,14 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
         },
         (err: unknown) => {
           handles.current.delete(item.key);
+          // The connection dropped mid-upload: the same key goes in the outbox, so the server keeps it once.
+          if (err instanceof ApiError && err.status === 0) return void keep();
           patch(item.key, { status: 'failed', error: err instanceof Error ? err.message : 'Upload failed', retryable: retryableStatus(err) });
           release(item.key, false);
         },
       );
     },
-    [patch, refresh, release],
+    [patch, refresh, release, me.id],
   );
 
   // Start queued uploads while fewer than PARALLEL are running.
@@ -117,7 +137,7 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
 
   // A photo uploaded without a span (e.g. before this change) joins it once it has an id.
   useEffect(() => {
-    if (!spanId) return;
+    if (!spanId || spanId.startsWith('local-')) return;
     for (const item of items) {
       if (item.status === 'done' && item.photo && !item.photo.spanId && !item.linkChosen) {
         patch(item.key, { linkChosen: true });

@@ -4,13 +4,22 @@ import type { Span } from '#shared/schemas/inventory.ts';
 import { useMe } from '../auth/queries.ts';
 import { PhotoGallery } from './photo-gallery.tsx';
 import { PhotoUploader } from './photo-uploader.tsx';
+import { OfflinePhotos } from './offline-photos.tsx';
+import { isLocalId } from '../../lib/outbox.ts';
 
 /** Span form: take or pick photos (they join the span once it is saved), then the span's photos so far. */
 export function spanFormPhotoSlot(ctx: { spanId: string | null; hazardIds: string[] }): ReactNode {
+  return <SpanFormPhotos spanId={ctx.spanId} />;
+}
+
+function SpanFormPhotos({ spanId }: { spanId: string | null }) {
+  const me = useMe();
+  const ctx = { spanId };
   return (
     <>
       <PhotoUploader spanId={ctx.spanId} />
-      {ctx.spanId && (
+      <OfflinePhotos spanId={ctx.spanId} userId={me.id} />
+      {ctx.spanId && !isLocalId(ctx.spanId) && (
         <div className="space-y-2">
           <h3 className="text-sm font-semibold text-ink-800">Photos of this span</h3>
           <PhotoGallery spanId={ctx.spanId} />

@@ -8,6 +8,9 @@ import { fieldQueries } from '../queries.ts';
 import { StatusBadge } from '../../spans/components/status-badge.tsx';
 import { groupQueue } from '../queue.ts';
 import { date } from '../../../lib/format.ts';
+import type { Span } from '#shared/schemas/inventory.ts';
+import { useOutbox } from '../../../lib/use-outbox.ts';
+import { WaitingBadge } from '../../../components/waiting-badge.tsx';
 
 export function MySpansQueue() {
   const me = useMe();
@@ -15,6 +18,11 @@ export function MySpansQueue() {
   const notice = (location.state as { notice?: string } | null)?.notice;
   const spans = useQuery(fieldQueries.mySpans(me.id));
   const groups = groupQueue(spans.data?.items ?? []);
+  const outbox = useOutbox();
+  const mine = outbox.items.filter((i) => i.userId === me.id);
+  // Spans made on this device and not sent yet; and the ids of saved spans with entries still waiting.
+  const kept = mine.filter((i) => i.kind === 'span.create').map((i) => i.preview as Span);
+  const waitingIds = new Set(mine.flatMap((i) => (i.kind.startsWith('span.') ? i.touches : [])));
 
   return (
     <div className="space-y-6 pb-28">
@@ -22,6 +30,26 @@ export function MySpansQueue() {
         <p role="status" className="rounded-lg bg-green-50 p-3 font-semibold text-go">
           {notice}
         </p>
+      )}
+      {kept.length > 0 && (
+        <section aria-labelledby="queue-kept" className="space-y-3">
+          <h2 id="queue-kept" className="text-lg font-bold">
+            Kept on this device <span className="text-ink-500">({kept.length})</span>
+          </h2>
+          <ul className="space-y-3">
+            {kept.map((s) => (
+              <li key={s.id}>
+                <Link to={`/field/spans/${s.id}/edit`} className="card flex min-h-16 flex-col gap-1 border-2 border-dashed border-brass-500 hover:border-brass-600" data-kept-span={s.id}>
+                  <span className="flex flex-wrap items-center gap-2">
+                    <span className="text-lg font-bold">{s.fromStructureLabel} → {s.toStructureLabel}</span>
+                    <WaitingBadge />
+                  </span>
+                  <span className="text-sm text-ink-700">{s.lineName} · {formatQuantity(s.lengthM, 'length', me.unitSystem)}{s.surveyDate ? ` · ${s.surveyDate}` : ''}</span>
+                </Link>
+              </li>
+            ))}
+          </ul>
+        </section>
       )}
       {spans.isPending && <p className="text-ink-700">Loading your spans…</p>}
       {spans.error && <p className="field-error" role="alert">Your spans did not load: {spans.error.message}</p>}
@@ -49,6 +77,7 @@ export function MySpansQueue() {
                         {s.fromStructureLabel} → {s.toStructureLabel}
                       </span>
                       <StatusBadge status={s.status} />
+                      {waitingIds.has(s.id) && <WaitingBadge />}
                     </span>
                     <span className="text-sm text-ink-700">
                       {s.lineName} · {formatQuantity(s.lengthM, 'length', me.unitSystem)}

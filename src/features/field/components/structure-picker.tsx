@@ -1,18 +1,19 @@
 // Picks one structure of the chosen line, or adds a new one at the surveyor's position.
 import { useState } from 'react';
-import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import { STRUCTURE_KINDS, structureCreateSchema, type Structure, type StructureKind } from '#shared/schemas/inventory.ts';
 import { formatQuantity, type UnitSystem } from '#shared/units.ts';
 import { ApiError } from '../../../lib/api.ts';
-import { inventoryApi } from '../../spans/api.ts';
 import { inventoryQueries } from '../../spans/queries.ts';
 import { inputToSi, unitLabel } from '../quantity.ts';
 import { FieldError } from './form-bits.tsx';
+import { useMe } from '../../auth/queries.ts';
+import { createStructure, structureShownLabel } from '../offline-writes.ts';
 
 const KIND_LABELS: Record<StructureKind, string> = { pole: 'Pole', tower: 'Tower', 'h-frame': 'H-frame', other: 'Other' };
 
-export function structureName(s: Pick<Structure, 'label' | 'kind'>) {
-  return `${s.label} · ${KIND_LABELS[s.kind] ?? s.kind}`;
+export function structureName(s: Pick<Structure, 'id' | 'label' | 'kind'>) {
+  return `${structureShownLabel(s)} · ${KIND_LABELS[s.kind] ?? s.kind}${s.id.startsWith('local-') ? ' · waiting to send' : ''}`;
 }
 
 interface Props {
@@ -31,6 +32,7 @@ interface Props {
 
 export function StructurePicker({ id, label, lineId, structures, loading, value, onChange, onBlur, disabled, error, unitSystem }: Props) {
   const [adding, setAdding] = useState(false);
+  const [kept, setKept] = useState(false);
   return (
     <div>
       <label className="field-label" htmlFor={id}>
@@ -58,13 +60,19 @@ export function StructurePicker({ id, label, lineId, structures, loading, value,
         </button>
       </div>
       <FieldError id={id} message={error} />
+      {kept && value.startsWith('local-') && (
+        <p className="mt-1 text-sm text-ink-700" role="status">
+          New structure kept on this device; it will be sent when there is a connection.
+        </p>
+      )}
       {adding && lineId && (
         <AddStructurePanel
           idPrefix={`${id}-new`}
           lineId={lineId}
           unitSystem={unitSystem}
-          onAdded={(s) => {
+          onAdded={(s, queued) => {
             onChange(s.id);
+            setKept(queued);
             setAdding(false);
           }}
         />
@@ -73,8 +81,10 @@ export function StructurePicker({ id, label, lineId, structures, loading, value,
   );
 }
 
-function AddStructurePanel({ idPrefix, lineId, unitSystem, onAdded }: { idPrefix: string; lineId: string; unitSystem: UnitSystem; onAdded: (s: Structure) => void }) {
+function AddStructurePanel({ idPrefix, lineId, unitSystem, onAdded }: { idPrefix: string; lineId: string; unitSystem: UnitSystem; onAdded: (s: Structure, queued: boolean) => void }) {
   const queryClient = useQueryClient();
+  const me = useMe();
+  const lines = useQuery(inventoryQueries.lines());
   const [lat, setLat] = useState('');
   const [lon, setLon] = useState('');
   const [kind, setKind] = useState<StructureKind>('pole');
@@ -84,11 +94,16 @@ function AddStructurePanel({ idPrefix, lineId, unitSystem, onAdded }: { idPrefix
   const [locating, setLocating] = useState<string | null>(null);
 
   const add = useMutation({
-    mutationFn: inventoryApi.createStructure,
-    onSuccess: async (s) => {
-      queryClient.setQueryData(inventoryQueries.structures(lineId).queryKey, (old: Structure[] | undefined) => [...(old ?? []), s]);
-      await queryClient.invalidateQueries({ queryKey: inventoryQueries.structures(lineId).queryKey });
-      onAdded(s);
+    // Runs with no signal too: createStructure keeps it in the outbox then.
+    networkMode: 'always',
+    mutationFn: (body: Parameters<typeof createStructure>[0]) => createStructure(body, lines.data?.find((l) => l.id === lineId), me.id),
+    onSuccess: async ({ structure: s, queued }) => {
+      // Kept offline, it joins the list from the outbox; sent, it joins the line's structures.
+      if (!queued) {
+        queryClient.setQueryData(inventoryQueries.structures(lineId).queryKey, (old: Structure[] | undefined) => [...(old ?? []), s]);
+        await queryClient.invalidateQueries({ queryKey: inventoryQueries.structures(lineId).queryKey });
+      }
+      onAdded(s, queued);
     },
     onError: (err) => {
       if (err instanceof ApiError && err.issues.length) setErrors(Object.fromEntries(err.issues.map((i) => [i.path, i.message])));
