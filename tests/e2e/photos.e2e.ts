@@ -245,7 +245,7 @@ describe('photo journey', () => {
     await context.close();
   }, 180_000);
 
-  it('when the connection drops during an upload, then the row says so and "Try again" finishes it', async () => {
+  it('when the connection drops during an upload, then the photo is kept on the device and sent once when the connection returns', async () => {
     const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1100 } });
     await h.signIn(page, 'surveyor');
     await page.waitForURL((u) => u.pathname === '/field');
@@ -256,13 +256,14 @@ describe('photo journey', () => {
     await cdp.send('Network.enable');
     await cdp.send('Network.emulateNetworkConditions', { offline: true, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
     await page.getByTestId('photo-input').setInputFiles(photoPath);
-    const row = page.getByTestId('photo-upload-row');
-    await row.getByRole('alert').waitFor({ timeout: 30_000 });
-    expect(await row.getByRole('alert').innerText()).toContain('connection dropped');
+    // The file goes to the field outbox with the same Idempotency-Key the dropped upload carried.
+    const kept = page.getByTestId('offline-photo');
+    await kept.waitFor({ timeout: 30_000 });
+    expect(await kept.innerText()).toContain('Waiting to send');
     await cdp.send('Network.emulateNetworkConditions', { offline: false, latency: 0, downloadThroughput: -1, uploadThroughput: -1 });
-    await row.getByRole('button', { name: 'Try again' }).click();
-    await row.getByTestId('photo-thumbnail').waitFor({ timeout: 60_000 });
-    expect(await row.getAttribute('data-status')).toBe('done');
+    await expect.poll(() => page.getByTestId('offline-photo').count(), { timeout: 60_000 }).toBe(0);
+    const photos = (await (await page.request.get(`/api/photos?spanId=${span.id}`)).json()).items as { id: string }[];
+    expect(photos).toHaveLength(1);
     await context.close();
   }, 180_000);
 
