@@ -3,6 +3,7 @@ import path from 'node:path';
 import { MikroORM, type Options } from '@mikro-orm/sqlite';
 import { MikroORM as PostgresORM, type Options as PostgresOptions } from '@mikro-orm/postgresql';
 import { BoundPostgreSqlDriver } from './sql/postgres-driver.ts';
+import { isPostgres } from './sql/dialect.ts';
 import { Migrator } from '@mikro-orm/migrations';
 import { entities } from './entities.ts';
 import { migrationsList } from './migrations/index.ts';
@@ -89,6 +90,15 @@ export async function initORM(target: string): Promise<MikroORM> {
   const orm = await MikroORM.init(ormOptions(target));
   await orm.getMigrator().up();
   return orm;
+}
+
+/** Runs `fn` while holding the start-up lock on PostgreSQL (so two processes never seed at once); as is on SQLite. */
+export async function whileHoldingStartLock<T>(orm: MikroORM, fn: () => Promise<T>): Promise<T> {
+  if (!isPostgres(orm.em)) return fn();
+  return orm.em.getKnex().transaction(async (trx) => {
+    await trx.raw('select pg_advisory_xact_lock(?)', [MIGRATION_LOCK]);
+    return fn();
+  });
 }
 
 /** Advisory lock id held while migrations run on PostgreSQL (any constant; "roostln" in ASCII). */

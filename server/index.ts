@@ -1,5 +1,5 @@
 import { databaseTarget, loadConfig } from './env.ts';
-import { initORM } from './db.ts';
+import { initORM, whileHoldingStartLock } from './db.ts';
 import { createApp } from './app.ts';
 import { seedDemoIfEmpty } from './seeders/index.ts';
 import { localDiskStorage } from './modules/photos/photo.storage.ts';
@@ -14,7 +14,8 @@ const config = loadConfig();
 // One server per SQLite file; on PostgreSQL several processes share the database by design.
 if (!config.databaseUrl) claimServerLock(config.databasePath);
 const orm = await initORM(databaseTarget(config));
-if (config.seedDemo && (await seedDemoIfEmpty(orm))) console.log('Seeded the demo scenario into an empty database.');
+// Several processes may start at once on one PostgreSQL: one seeds, the others wait for it and find it seeded.
+if (config.seedDemo && (await whileHoldingStartLock(orm, () => seedDemoIfEmpty(orm)))) console.log('Seeded the demo scenario into an empty database.');
 
 // Files written before this start that no photo row names were left by a crash mid-upload (files are written
 // before the row): nothing can still be on its way to use them, so they go before the first request.
