@@ -83,6 +83,10 @@ describe('review desk journey', () => {
     await page.keyboard.press('Control+Enter');
     await expect.poll(() => items.count(), { timeout: 10_000 }).toBe(before - 1);
     await expect.poll(() => page.locator('#review-span-title').innerText()).not.toBe(title);
+    // The decision is said in words, naming the span that left the queue, with a way back to it.
+    const notice = page.getByTestId('decision-notice');
+    expect(await notice.innerText()).toMatch(/^Returned .+ → .+ to the surveyor with your reason\./);
+    expect(await notice.getByRole('link', { name: 'Open the span' }).getAttribute('href')).toMatch(/^\/spans\/[^/]+$/);
 
     // a approves the span now selected: it leaves the queue, unless a zone blocks it and the desk says why.
     await page.keyboard.press('a');

@@ -4,7 +4,7 @@ import { useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Span } from '#shared/schemas/inventory.ts';
 import { formatQuantity } from '#shared/units.ts';
 import { ApiError } from '../../lib/api.ts';
-import { date, gateDetail } from '../../lib/format.ts';
+import { codeWords, date, gateDetail } from '../../lib/format.ts';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { spanApi } from '../spans/api.ts';
@@ -49,7 +49,17 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
   };
 
   const queryClient = useQueryClient();
-  const decide = useDecision(() => setMode(null));
+  const [notice, setNotice] = useState<DecisionNotice | null>(null);
+  const decide = useDecision((n) => {
+    setMode(null);
+    setNotice(n);
+  });
+  // The notice says what the last decision did, then steps aside.
+  useEffect(() => {
+    if (!notice) return;
+    const t = setTimeout(() => setNotice(null), 10_000);
+    return () => clearTimeout(t);
+  }, [notice]);
   // The freshest copy of the selected span (its detail query), so a decision carries the current version.
   const fresh = (s: Span) => queryClient.getQueryData(spanQueries.detail(s.id).queryKey) ?? s;
 
@@ -157,6 +167,16 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
           !list.isPending && <p className="card text-ink-700">Select a span from the queue.</p>
         )}
       </div>
+      {/* Fixed, so saying what happened never moves the queue or the decision buttons under the pointer. */}
+      <div role="status" aria-live="polite" className="pointer-events-none fixed inset-x-0 top-20 z-50 flex justify-center px-4">
+        {notice && (
+          <p className="pointer-events-auto flex max-w-xl items-center gap-3 rounded-xl bg-ink-900 px-4 py-3 text-sm text-chalk shadow-lg" data-testid="decision-notice">
+            <span>{notice.text}</span>
+            <Link to={`/spans/${notice.spanId}`} className="shrink-0 font-semibold text-brass-300 underline">Open the span</Link>
+            <button type="button" className="shrink-0 rounded-lg px-2 font-semibold text-chalk" aria-label="Close the notice" onClick={() => setNotice(null)}>×</button>
+          </p>
+        )}
+      </div>
     </div>
   );
 }
@@ -184,7 +204,18 @@ function Shortcuts({ kind }: { kind: QueueKind }) {
 
 type Decision = { span: Span } & ({ action: 'approve' } | { action: 'reinstate' } | { action: 'return'; reason: string } | { action: 'suspend'; reason: string });
 
-function useDecision(onDone: () => void) {
+/** What a decision did, in words, for the notice at the foot of the desk. */
+export function decisionWords(action: Decision['action'], span: Pick<Span, 'fromStructureLabel' | 'toStructureLabel' | 'lineName'>): string {
+  const name = `${span.fromStructureLabel} → ${span.toStructureLabel} (${span.lineName})`;
+  if (action === 'approve') return `Approved ${name}. Planners can now perch on it; suspend it with a reason to withdraw.`;
+  if (action === 'reinstate') return `Reinstated ${name}. It is approved again.`;
+  if (action === 'return') return `Returned ${name} to the surveyor with your reason.`;
+  return `Suspended ${name}. Planners no longer see it.`;
+}
+
+interface DecisionNotice { text: string; spanId: string }
+
+function useDecision(onDone: (notice: DecisionNotice) => void) {
   const queryClient = useQueryClient();
   return useMutation({
     mutationFn: (d: Decision) => {
@@ -194,9 +225,9 @@ function useDecision(onDone: () => void) {
       if (d.action === 'return') return spanApi.return(span.id, span.version, d.reason);
       return spanApi.suspend(span.id, span.version, d.reason);
     },
-    onSuccess: async (updated) => {
+    onSuccess: async (updated, d) => {
       queryClient.setQueryData(spanQueries.detail(updated.id).queryKey, updated);
-      onDone();
+      onDone({ text: decisionWords(d.action, updated), spanId: updated.id });
       await queryClient.invalidateQueries({ queryKey: spanQueries.all() });
       await queryClient.invalidateQueries({ queryKey: ['audit'] });
     },
@@ -277,7 +308,7 @@ function SpanReview({
           <ul className="space-y-1 text-sm">
             {span.hazards.map((h) => (
               <li key={h.id}>
-                <strong className={h.severity === 'high' ? 'text-alarm' : ''}>{kindLabel(h.kindId)}</strong> · {h.severity}
+                <strong className={h.severity === 'high' ? 'text-alarm' : ''}>{kindLabel(h.kindId)}</strong> · {codeWords(h.severity)} severity
                 {h.positionAlongM != null && ` · ${formatQuantity(h.positionAlongM, 'length', system)} from ${span.fromStructureLabel}`}
                 {h.note && ` · ${h.note}`}
               </li>
