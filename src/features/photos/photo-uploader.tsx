@@ -9,7 +9,6 @@ import { useMe } from '../auth/queries.ts';
 import { inventoryQueries, spanQueries } from '../spans/queries.ts';
 import { photoApi, uploadPhoto, type UploadHandle } from './api.ts';
 import { formatBytes, formatPosition, formatTakenAt } from './format.ts';
-import { codeWords } from '../../lib/format.ts';
 import { photoQueries } from './queries.ts';
 import { MAX_UPLOAD_BYTES, type PhotoWithSuggestions } from './types.ts';
 import { newClientId } from '../../lib/outbox.ts';
@@ -412,7 +411,7 @@ export function HazardPicker({ photo, onChange }: { photo: { spanId: string | nu
         <option value="">None in particular</option>
         {hazards.map((h) => (
           <option key={h.id} value={h.id}>
-            {label(h.kindId)} ({codeWords(h.severity).toLowerCase()} severity){h.note ? ` — ${h.note.slice(0, 40)}` : ''}
+            {label(h.kindId)} ({h.severity}){h.note ? ` — ${h.note.slice(0, 40)}` : ''}
           </option>
         ))}
       </select>
