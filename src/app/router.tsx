@@ -2,7 +2,7 @@ import { createBrowserRouter } from 'react-router';
 import { AppLayout } from './layout.tsx';
 import { handleEndedSessions } from './session.ts';
 import { homeRedirect, requireSession, RoleGate, RouteErrorBoundary, signInLoader } from './route-guards.tsx';
-import type { ReactNode } from 'react';
+import { lazy, Suspense, type ReactNode } from 'react';
 import { SignInPage } from '../features/auth/sign-in-page.tsx';
 import { RoleHome } from '../features/home/role-home.tsx';
 import { StatusPage } from '../components/status-page.tsx';
@@ -14,7 +14,14 @@ import { StatusPage } from '../components/status-page.tsx';
 function page<M>(load: () => Promise<M>, render: (m: M) => ReactNode) {
   return async () => ({ element: render(await load()) });
 }
-const field = () => Promise.all([import('../features/field/span-form-page.tsx'), import('../features/photos/slots.tsx')]);
+/**
+ * The span form is one lazy component shared by its two routes: saving a new span moves to its edit address, and the
+ * form (with its "Draft saved." notice) must stay the same mounted component across that move.
+ */
+const SpanForm = lazy(async () => {
+  const [f, p] = await Promise.all([import('../features/field/span-form-page.tsx'), import('../features/photos/slots.tsx')]);
+  return { default: () => <f.SpanFormPage photoSlot={p.spanFormPhotoSlot} /> };
+});
 const evidenceSlot = () => import('../features/evidence/slots.tsx');
 import { FieldOutboxPage } from '../features/outbox/field-outbox-page.tsx';
 import { useMe } from '../features/auth/queries.ts';
@@ -45,8 +52,8 @@ export const router = createBrowserRouter([
           { index: true, loader: homeRedirect },
           { path: 'field', lazy: page(() => import('../features/field/components/my-spans-queue.tsx'), (m) => <RoleGate roles={['surveyor']}><RoleHome role="surveyor"><m.MySpansQueue /></RoleHome></RoleGate>) },
           { path: 'field/outbox', Component: FieldOutbox },
-          { path: 'field/spans/new', lazy: page(field, ([f, p]) => <RoleGate roles={['surveyor']}><f.SpanFormPage photoSlot={p.spanFormPhotoSlot} /></RoleGate>) },
-          { path: 'field/spans/:id/edit', lazy: page(field, ([f, p]) => <RoleGate roles={['surveyor']}><f.SpanFormPage photoSlot={p.spanFormPhotoSlot} /></RoleGate>) },
+          { path: 'field/spans/new', element: <RoleGate roles={['surveyor']}><Suspense fallback={<Loading />}><SpanForm /></Suspense></RoleGate> },
+          { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><Suspense fallback={<Loading />}><SpanForm /></Suspense></RoleGate> },
           { path: 'spans', lazy: page(() => import('../features/spans/components/spans-table-page.tsx'), (m) => <m.SpansTablePage />) },
           { path: 'map', lazy: () => import('../features/map/map-page.tsx') },
           { path: 'spans/:id', lazy: page(() => Promise.all([import('../features/spans/components/span-detail-page.tsx'), import('../features/photos/slots.tsx'), evidenceSlot()]), ([d, p, e]) => <d.SpanDetailPage photosSlot={p.spanDetailPhotosSlot} evidenceSlot={e.spanEvidenceSlot} />) },
