@@ -127,6 +127,8 @@ describe('span journey', () => {
     await page.waitForURL((u) => u.pathname === '/field');
     await page.getByText('Span submitted for review.').waitFor();
     const card = page.locator(`[data-span-id="${spanId}"]`);
+    // The queue draws only the cards near the screen: scroll down to this one (its group follows the returned spans and the drafts).
+    await expect.poll(async () => (await card.count()) > 0 || (await page.mouse.wheel(0, 700), false), { timeout: 30_000, interval: 300 }).toBe(true);
     expect(await card.innerText()).toContain('Awaiting review');
 
     // The server got SI units: 31 ft = 9.4488 m, 150 ft = 45.72 m (1 ft = 0.3048 m exactly).
