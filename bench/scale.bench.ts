@@ -188,6 +188,10 @@ export async function run(): Promise<BenchRow[]> {
   const header = `| figure | ${SIZES.map((n) => `${n / 1000} k spans`).join(' | ')} |\n|---|${SIZES.map(() => '---').join('|')}|\n`;
   const body = rows.map((r) => `| ${Object.values(r).join(' | ')} |`).join('\n');
   const note = `# Scale bench\n\n${new Date().toISOString().slice(0, 10)} · ${os.cpus().length} cores · load average ${os.loadavg()[0].toFixed(1)} at the end (the machine is shared with other work, so figures are loaded).\n\n`;
-  fs.writeFileSync(path.resolve('bench/RESULTS.md'), note + header + body + '\n');
+  // Other benches keep their sections below their own marker comment: those stay as they are.
+  const file = path.resolve('bench/RESULTS.md');
+  const before = fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '';
+  const others = before.indexOf('<!-- ');
+  fs.writeFileSync(file, note + header + body + '\n' + (others >= 0 ? `\n${before.slice(others)}` : ''));
   return rows;
 }

@@ -358,7 +358,7 @@ export async function assessSpans(em: EntityManager, spanIds?: readonly string[]
 }
 
 /** Spans per transaction on the bulk path: large enough to amortise a commit, short enough for reads to go between. */
-const BULK_BATCH = 2000;
+const BULK_BATCH = 500;
 
 /**
  * The bulk path of assessSpans for background rescoring: the same rows, computed with the pure method's memo (each
