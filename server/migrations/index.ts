@@ -17,6 +17,7 @@ import { Migration20261203113808 } from './Migration20261203113808.ts';
 import { Migration20261203124918 } from './Migration20261203124918.ts';
 import { Migration20261203125243 } from './Migration20261203125243.ts';
 import { Migration20261203131056 } from './Migration20261203131056.ts';
+import { Migration20261203142915 } from './Migration20261203142915.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202031719', class: Migration20261202031719 },
@@ -36,4 +37,5 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203124918', class: Migration20261203124918 },
   { name: 'Migration20261203125243', class: Migration20261203125243 },
   { name: 'Migration20261203131056', class: Migration20261203131056 },
+  { name: 'Migration20261203142915', class: Migration20261203142915 },
 ];

@@ -44,6 +44,8 @@ const latToTileY = (lat: number, z: number) => {
   return Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z);
 };
 const AT = { lon: -131.615, lat: -31.4 };
+/** Failed sign-ins allowed per client address in the window, on both processes together. */
+const BURST = 4;
 
 async function spansInTile(c: ReturnType<typeof clientOf>) {
   const res = await c.get(`/api/tiles/spans/14/${lonToTileX(AT.lon + 0.001, 14)}/${latToTileY(AT.lat, 14)}.mvt`);
@@ -56,7 +58,7 @@ async function spansInTile(c: ReturnType<typeof clientOf>) {
 beforeAll(async () => {
   dbUrl = (await freshPostgresDatabase())!;
   dataDir = newDataDir();
-  const env = { DATABASE_URL: dbUrl, UPLOADS_DIR: path.join(dataDir, 'uploads'), SEED_DEMO: 'true' };
+  const env = { DATABASE_URL: dbUrl, UPLOADS_DIR: path.join(dataDir, 'uploads'), SEED_DEMO: 'true', SIGN_IN_BURST: String(BURST) };
   // Both start at once: one applies the migrations and seeds, the other waits for its lock and finds it done.
   [a, b] = await Promise.all([startServer(dataDir, env), startServer(dataDir, env)]);
 }, 240_000);
@@ -133,5 +135,16 @@ describe('two server processes on one PostgreSQL', () => {
     } finally {
       await client.end();
     }
+  });
+
+  // Last: it leaves this client address limited on both processes.
+  it('when a client fails sign-in through A and B in turn, then the limit counts the attempts of both together', async () => {
+    const wrong = (server: ChildServer) => clientOf(server).post('/api/auth/sign-in', { email: 'planner@roostline.test', password: 'not the password at all' });
+    const statuses: number[] = [];
+    for (let i = 0; i < BURST; i++) statuses.push((await wrong(i % 2 === 0 ? a : b)).status);
+    expect(statuses).toEqual(Array(BURST).fill(401));
+    // Each process saw only half of them; the count is shared, so the next attempt on either is refused.
+    expect((await wrong(a)).status).toBe(429);
+    expect((await wrong(b)).status).toBe(429);
   });
 });

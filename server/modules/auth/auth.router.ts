@@ -7,6 +7,7 @@ import { audit } from '../audit/audit.service.ts';
 import { changePassword, checkCredentials, toMe } from './auth.service.ts';
 import { isCommonPassword } from './common-passwords.ts';
 import { AppError } from '../../http/errors.ts';
+import { sharedRateLimitStore } from '../../http/rate-limit-store.ts';
 
 export function authRouter(ctx: AppContext) {
   const r = featureRouter('/api/auth');
@@ -15,6 +16,8 @@ export function authRouter(ctx: AppContext) {
     windowMs: ctx.config.signInWindowMs,
     limit: ctx.config.signInBurst,
     skipSuccessfulRequests: true,
+    // Counted in the database on PostgreSQL, so every process behind the load balancer sees the same count.
+    store: sharedRateLimitStore(ctx, 'sign-in'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     handler: (_req, res) => {

@@ -1,0 +1,52 @@
+// express-rate-limit's Store over the `rate_limit_hits` table, for PostgreSQL where several server processes share
+// one database: a client's failed sign-ins count across all of them. On SQLite (one process per database file) the
+// library's own memory store stays, so this returns undefined there.
+import type { Store, Options, ClientRateLimitInfo } from 'express-rate-limit';
+import type { AppContext } from '../context.ts';
+import { sql } from '../sql/query.ts';
+import { isPostgres } from '../sql/dialect.ts';
+
+class DatabaseStore implements Store {
+  windowMs = 60_000;
+  localKeys = false;
+  constructor(
+    private ctx: AppContext,
+    public prefix: string,
+  ) {}
+
+  init(options: Options) {
+    this.windowMs = options.windowMs;
+  }
+
+  private em() {
+    return this.ctx.orm.em.fork();
+  }
+
+  async increment(key: string): Promise<ClientRateLimitInfo> {
+    const now = Date.now();
+    const until = now + this.windowMs;
+    // One statement: a new key starts at 1, a key whose window ended starts again, any other counts one more.
+    const row = await sql.get<{ hits: number; reset_at: string | number }>(
+      this.em(),
+      'insert into rate_limit_hits (key, hits, reset_at) values (?, 1, ?) on conflict (key) do update set ' +
+        'hits = case when rate_limit_hits.reset_at <= ? then 1 else rate_limit_hits.hits + 1 end, ' +
+        'reset_at = case when rate_limit_hits.reset_at <= ? then ? else rate_limit_hits.reset_at end ' +
+        'returning hits, reset_at',
+      [this.prefix + key, until, now, now, until],
+    );
+    return { totalHits: Number(row!.hits), resetTime: new Date(Number(row!.reset_at)) };
+  }
+
+  async decrement(key: string): Promise<void> {
+    await sql.run(this.em(), 'update rate_limit_hits set hits = hits - 1 where key = ? and hits > 0', [this.prefix + key]);
+  }
+
+  async resetKey(key: string): Promise<void> {
+    await sql.run(this.em(), 'delete from rate_limit_hits where key = ?', [this.prefix + key]);
+  }
+}
+
+/** A shared store on PostgreSQL; undefined (the library's memory store) on SQLite. */
+export function sharedRateLimitStore(ctx: AppContext, name: string): Store | undefined {
+  return isPostgres(ctx.orm.em) ? new DatabaseStore(ctx, `${name}:`) : undefined;
+}
