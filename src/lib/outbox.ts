@@ -67,6 +67,9 @@ function uuid(): string {
 }
 export const newClientId = () => `${LOCAL_PREFIX}${uuid()}`;
 
+/** Online for sending: TanStack's online manager (online/offline events) and the browser's own flag agree. */
+export const deviceOnline = () => onlineManager.isOnline() && (typeof navigator === 'undefined' || navigator.onLine !== false);
+
 const canStore = typeof indexedDB !== 'undefined';
 const store = canStore ? createStore('roostline-outbox', 'outbox') : undefined;
 
@@ -142,6 +145,12 @@ export async function amend(id: string, change: Partial<OutboxItem>) {
   publish({ items: snapshot.items.map((i) => (i.id === id && i.state !== 'sending' ? { ...i, ...change } : i)) });
   await save();
   kick();
+}
+
+/** The runner's own change of an item it is sending (amend leaves items on their way alone). */
+async function settle(id: string, change: Partial<OutboxItem>) {
+  publish({ items: snapshot.items.map((i) => (i.id === id ? { ...i, ...change } : i)) });
+  await save();
 }
 
 export async function retryItem(id: string) {
@@ -256,7 +265,7 @@ export function kick() {
 
 async function run() {
   await outboxReady;
-  if (running || !onlineManager.isOnline() || snapshot.needsSignIn) return;
+  if (running || !deviceOnline() || snapshot.needsSignIn) return;
   const userId = hooks.currentUserId();
   if (!userId) return;
   running = true;
@@ -283,7 +292,7 @@ async function run() {
       const refs = JSON.stringify([item.url, item.body, item.photo?.spanId ?? null]);
       const missing = (refs.match(/local-[0-9a-f-]{36}/g) ?? []).filter((id) => id !== item.clientId && !snapshot.ids[id] && !snapshot.items.some((o) => o.clientId === id));
       if (missing.length) {
-        await amend(item.id, { state: 'failed', error: 'It belongs to a record that was discarded before it was sent.' });
+        await settle(item.id, { state: 'failed', error: 'It belongs to a record that was discarded before it was sent.' });
         continue;
       }
       publish({ sending: true, items: snapshot.items.map((i) => (i.id === item.id ? { ...i, state: 'sending', attempts: i.attempts + 1 } : i)) });
@@ -308,7 +317,7 @@ async function run() {
         }
         if (!(err instanceof ApiError) || err.status === 0 || err.status >= 500 || err.status === 429 || err.status === 408) {
           // No answer, or the server is busy: try again later, same key, nothing lost.
-          await amend(item.id, { state: 'waiting', error: err instanceof ApiError && err.status !== 0 ? err.message : null });
+          await settle(item.id, { state: 'waiting', error: err instanceof ApiError && err.status !== 0 ? err.message : null });
           clearTimeout(retryTimer);
           retryTimer = setTimeout(() => {
             retryTimer = undefined;
@@ -327,10 +336,10 @@ async function run() {
             hooks.onSent(item, current);
             continue;
           }
-          await amend(item.id, { state: 'conflict', current, error: 'The span was changed on the server after you started. Open it to choose what to keep.' });
+          await settle(item.id, { state: 'conflict', current, error: 'The span was changed on the server after you started. Open it to choose what to keep.' });
           continue;
         }
-        await amend(item.id, { state: 'failed', error: err.message });
+        await settle(item.id, { state: 'failed', error: err.message });
       }
     }
   } finally {

@@ -176,8 +176,61 @@ describe('offline field work', () => {
     expect(cut).toBe(1);
     expect(after.structures).toHaveLength(1);
     await expect.poll(() => page.locator('#fromStructureId option:checked').innerText()).toContain(after.structures[0]!.label);
+
+    // The same from the outbox: made offline, its first send's answer lost, sent again by the queue with the same key.
+    await context.setOffline(true);
+    cut = 0;
+    answerLost = false;
+    await addStructure(page, 1, '-30.2309', '-130.3300');
+    await expect.poll(() => indicator(page).getAttribute('data-waiting')).toBe('1');
+    await context.setOffline(false);
+    await expect.poll(() => answerLost, { timeout: 60_000 }).toBe(true);
+    await expect.poll(() => indicator(page).getAttribute('data-waiting'), { timeout: 60_000 }).toBe('0');
+    expect(cut).toBe(1);
+    expect((await counts(page, line.id, me.user.id)).structures).toHaveLength(2);
     await context.close();
   }, 180_000);
+
+  it('when a span changed on the server while the surveyor edited it offline, then the queued edit waits in the conflict view and nothing is lost', async () => {
+    const { context, page } = await open();
+    await h.signIn(page, 'surveyor');
+    await page.waitForURL((u) => u.pathname === '/field');
+    const line = await newLine(page, `Conflict line ${RUN}`);
+    const a = await api<{ id: string }>(page, 'post', '/api/structures', { lineId: line.id, lat: -30.24, lon: -130.34, kind: 'pole', attachmentHeightM: 10 });
+    const b = await api<{ id: string }>(page, 'post', '/api/structures', { lineId: line.id, lat: -30.2409, lon: -130.34, kind: 'pole', attachmentHeightM: 10 });
+    const span = await api<{ id: string; version: number }>(page, 'post', '/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id, hazards: [] });
+    await page.reload();
+    await workerInControl(page);
+    await page.goto(`/field/spans/${span.id}/edit`);
+    await page.getByLabel('Phase / position (optional)').waitFor();
+    await page.waitForTimeout(1500); // the persisted cache is written a moment after the last read
+
+    await context.setOffline(true);
+    await page.getByLabel('Phase / position (optional)').fill(`mine ${RUN}`);
+    await page.getByRole('button', { name: 'Save draft' }).click();
+    await page.getByText('Kept on this device; it will be sent when there is a connection.', { exact: true }).waitFor();
+    // Meanwhile a colleague's tablet saves the same span.
+    const other = await open();
+    await h.signIn(other.page, 'surveyor');
+    await other.page.waitForURL((u) => u.pathname === '/field');
+    await api(other.page, 'patch', `/api/spans/${span.id}`, { version: span.version, phasePosition: `theirs ${RUN}` });
+    await other.context.close();
+
+    await context.setOffline(false);
+    await page.goto('/field/outbox');
+    await expect.poll(() => page.locator('[data-outbox-item="span.update"]').getAttribute('data-state'), { timeout: 60_000 }).toBe('conflict');
+    // Kept, not dropped: the server still has the colleague's value until the surveyor decides.
+    expect((await api<{ phasePosition: string }>(page, 'get', `/api/spans/${span.id}`)).phasePosition).toBe(`theirs ${RUN}`);
+    await page.getByRole('link', { name: 'Open and choose what to keep' }).click();
+    const panel = page.getByRole('alertdialog', { name: 'Someone saved this span while you were editing' });
+    await panel.waitFor();
+    expect(await panel.innerText()).toContain(`mine ${RUN}`);
+    expect(await panel.innerText()).toContain(`theirs ${RUN}`);
+    await panel.getByRole('button', { name: /Save my choices on version/ }).click();
+    await expect.poll(async () => (await api<{ phasePosition: string }>(page, 'get', `/api/spans/${span.id}`)).phasePosition, { timeout: 30_000 }).toBe(`mine ${RUN}`);
+    await expect.poll(() => indicator(page).getAttribute('data-waiting'), { timeout: 60_000 }).toBe('0');
+    await context.close();
+  }, 240_000);
 });
 
 export type { BrowserContext };

@@ -2,16 +2,15 @@
 import type { Line, Span, Structure, StructureKind } from '#shared/schemas/inventory.ts';
 import type { UnitSystem } from '#shared/units.ts';
 import { geodesicInverse } from '#shared/engineering/geodesic.ts';
-import { onlineManager } from '@tanstack/react-query';
 import { api, isNetworkError } from '../../lib/api.ts';
-import { amend, enqueue, getOutbox, newClientId, resolveId, type OutboxItem } from '../../lib/outbox.ts';
+import { amend, deviceOnline, enqueue, getOutbox, newClientId, resolveId, type OutboxItem } from '../../lib/outbox.ts';
 import { formValuesToCreate, formValuesToUpdate, type SpanFormValues } from './form-values.ts';
 
 const KIND_WORDS: Record<StructureKind, string> = { pole: 'pole', tower: 'tower', 'h-frame': 'H-frame', other: 'structure' };
 
 /** Writes go to the outbox when offline or when earlier writes of this user still wait (so they keep their order). */
 export function mustQueue(userId: string) {
-  return !onlineManager.isOnline() || getOutbox().items.some((i) => i.userId === userId && (i.state === 'waiting' || i.state === 'sending'));
+  return !deviceOnline() || getOutbox().items.some((i) => i.userId === userId && (i.state === 'waiting' || i.state === 'sending'));
 }
 
 export interface StructureBody {

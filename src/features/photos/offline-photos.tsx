@@ -2,16 +2,15 @@
 // (exifr runs in the browser), shown with a "Waiting to send" badge, uploaded with its progress bar later.
 import { useEffect, useState } from 'react';
 import exifr from 'exifr';
-import { onlineManager } from '@tanstack/react-query';
 import { ProgressBar } from '../../components/progress-bar.tsx';
 import { WaitingBadge } from '../../components/waiting-badge.tsx';
-import { enqueue, getOutbox, isLocalId, newClientId, photoBlob, resolveId, type OutboxItem } from '../../lib/outbox.ts';
+import { deviceOnline, enqueue, getOutbox, isLocalId, newClientId, photoBlob, resolveId, type OutboxItem } from '../../lib/outbox.ts';
 import { useOutbox } from '../../lib/use-outbox.ts';
 import { formatBytes } from './format.ts';
 
 /** Photos go to the outbox when offline, when the span exists only on this device, or when writes still wait. */
 export function keepPhotoOffline(spanId: string | null, userId: string | null) {
-  return !onlineManager.isOnline() || isLocalId(spanId) || getOutbox().items.some((i) => i.userId === userId && (i.state === 'waiting' || i.state === 'sending'));
+  return !deviceOnline() || isLocalId(spanId) || getOutbox().items.some((i) => i.userId === userId && (i.state === 'waiting' || i.state === 'sending'));
 }
 
 /** Reads what the server will read too (GPS position, capture time as written), so the surveyor sees it at once. */
