@@ -63,6 +63,17 @@ export const planRequestSchema = z.object({
     .nullish(),
   returnToBase: z.boolean({ error: 'returnToBase is true or false' }).optional(),
   objective: z.enum(MISSION_OBJECTIVES, { error: 'objective is "time" or "fewest-perches"' }).optional(),
+  /** Perch points the planner moved off mid-span: distance along the span from its from-structure. */
+  perchPoints: z
+    .array(
+      z.object({
+        spanId: z.string({ error: 'the span id' }).min(1, { error: 'the span id' }).max(200),
+        alongM: finite('the distance along the span').min(0, { error: 'the distance along the span is 0 m or more' }),
+      }),
+      { error: 'perchPoints is a list of {spanId, alongM}' },
+    )
+    .max(50, { error: 'at most 50 moved perch points' })
+    .optional(),
 });
 export type PlanRequest = z.infer<typeof planRequestSchema>;
 

@@ -158,6 +158,17 @@ describe('the demo mission end to end', () => {
       // The route is on the map with a marker per perch.
       expect(await page.locator('[data-testid="plan-map"] [title^="Perch"]').count()).toBeGreaterThanOrEqual(2);
 
+      // ---- moves a perch point off mid-span, then back ----
+      step('moves a perch point');
+      const firstPoint = planView.getByTestId('perch-point').first();
+      expect(await firstPoint.innerText()).toMatch(/^Mid-span: /);
+      const move = planView.getByRole('form', { name: 'Move a perch point' });
+      await move.getByLabel(/^Distance from /).fill('30');
+      await move.getByRole('button', { name: 'Move and plan again' }).click();
+      await expect.poll(() => planView.getByTestId('perch-point').first().innerText(), { timeout: 15_000 }).toMatch(/^Moved by the planner: 30(\.0)? (m|ft) from /);
+      await move.getByRole('button', { name: 'Back to mid-span' }).click();
+      await expect.poll(() => planView.getByTestId('perch-point').first().innerText(), { timeout: 15_000 }).toMatch(/^Mid-span: /);
+
       // ---- saves ----
       step('saves');
       await page.getByLabel('Mission name').fill('Journey: depot to yard');

@@ -3,6 +3,7 @@ import { makeTestApp, type Client, type TestApp } from './helpers.ts';
 import { lonFor, makeLine, spansAlong } from './missions-fixtures.ts';
 import { geodesicInverse } from '../../shared/engineering/geodesic.ts';
 import { LIGHT_QUAD, CLAMP_S } from '../../shared/engineering/demo-profiles.ts';
+import { conductorHeightAtM } from '../../shared/engineering/mission-energy.ts';
 
 // POST /api/missions/plan (api.md "Missions"). Each scenario sits on its own latitude band so they never share perches.
 let t: TestApp;
@@ -100,6 +101,56 @@ describe('a feasible plan', () => {
     expect(legs.some((l: { to: { kind: string } }) => l.to.kind === 'target')).toBe(true);
     expect(res.body.perches.length).toBeGreaterThanOrEqual(3);
     for (const l of legs) expect(l.socEndPct).toBeGreaterThanOrEqual(LIGHT_QUAD.reservePercent - 1e-9);
+  });
+});
+
+describe('a perch point the planner moves', () => {
+  it('when the planner moves a perch 40 m from its from-structure, then the plan perches there with the conductor height at that point; saved and reopened it keeps the point', async () => {
+    const first = (await planner.post('/api/missions/plan', request(-30.2, 24_000))).body;
+    const p0 = first.perches[0];
+    expect(p0.perchPoint).toBe('mid-span');
+    const s = (await planner.get(`/api/spans/${p0.spanId}`)).body;
+    const [fromS, toS] = [(await planner.get(`/api/structures/${s.fromStructureId}`)).body, (await planner.get(`/api/structures/${s.toStructureId}`)).body];
+    const span = { ...s, fromStructure: fromS, toStructure: toS };
+    expect(p0.alongM).toBeCloseTo(span.lengthM / 2, 6);
+    const moved = await planner.post('/api/missions/plan', request(-30.2, 24_000, { perchPoints: [{ spanId: p0.spanId, alongM: 40 }] }));
+    expect(moved.status).toBe(200);
+    const q0 = moved.body.perches.find((p: { spanId: string }) => p.spanId === p0.spanId);
+    expect(q0.perchPoint).toBe('planner');
+    expect(q0.alongM).toBe(40);
+    // The point lies 40 m along the span from its from-structure (geodesic distance, GeographicLib; tolerance 1 cm).
+    const from = { lat: span.fromStructure.lat, lon: span.fromStructure.lon };
+    expect(dist(from, q0)).toBeCloseTo(40, 2);
+    // Parabolic sag: h(x) = hA + (hB − hA)·x/L − 4·s·x(L − x)/L² (engineering.md §10, conductor height at the perch point);
+    // nearer the structure the conductor sits higher than at mid-span.
+    const sagM = (span.fromStructure.attachmentHeightM + span.toStructure.attachmentHeightM) / 2 - span.clearanceM;
+    expect(q0.conductorHeightM).toBeCloseTo(
+      conductorHeightAtM({ fromHeightM: span.fromStructure.attachmentHeightM, toHeightM: span.toStructure.attachmentHeightM, spanLengthM: span.lengthM, xM: 40, midSpanSagM: sagM }),
+      6,
+    );
+    expect(q0.conductorHeightM).toBeGreaterThan(p0.conductorHeightM);
+    const saved = await planner.post('/api/missions', { name: 'Moved perch point', ...request(-30.2, 24_000, { perchPoints: [{ spanId: p0.spanId, alongM: 40 }] }) });
+    expect(saved.status).toBe(201);
+    const reopened = (await planner.get(`/api/missions/${saved.body.id}`)).body;
+    expect(reopened.input.perchPoints).toEqual([{ spanId: p0.spanId, alongM: 40 }]);
+    expect(reopened.plan.perches.find((p: { spanId: string }) => p.spanId === p0.spanId).alongM).toBe(40);
+  });
+
+  it('when a moved point lies within 5 m of a structure, past the span, or on an unknown span, then 400 names that entry', async () => {
+    const first = (await planner.post('/api/missions/plan', request(-30.2, 24_000))).body;
+    const id = first.perches[0].spanId;
+    for (const alongM of [2, 10_000]) {
+      const res = await planner.post('/api/missions/plan', request(-30.2, 24_000, { perchPoints: [{ spanId: id, alongM }] }));
+      expect(res.status).toBe(400);
+      expect(res.body.error.issues.map((i: { path: string }) => i.path)).toEqual(['perchPoints.0.alongM']);
+      expect(res.body.error.issues[0].message).toMatch(/clear of both structures/);
+    }
+    const unknown = await planner.post('/api/missions/plan', request(-30.2, 24_000, { perchPoints: [{ spanId: id, alongM: 40 }, { spanId: 'no-such-span', alongM: 40 }] }));
+    expect(unknown.status).toBe(400);
+    expect(unknown.body.error.issues.map((i: { path: string }) => i.path)).toEqual(['perchPoints.1.spanId']);
+    const nan = await planner.post('/api/missions/plan', request(-30.2, 24_000, { perchPoints: [{ spanId: id, alongM: 'x' }] }));
+    expect(nan.status).toBe(400);
+    expect(nan.body.error.issues.map((i: { path: string }) => i.path)).toEqual(['perchPoints.0.alongM']);
   });
 });
 

@@ -36,6 +36,7 @@ function requestOf(input: PlanRequest): PlanRequest {
     wind: input.wind ? { speedMps: input.wind.speedMps, fromDeg: input.wind.fromDeg } : null,
     returnToBase: input.returnToBase ?? false,
     objective: input.objective ?? 'time',
+    ...(input.perchPoints?.length ? { perchPoints: input.perchPoints.map((pp) => ({ spanId: pp.spanId, alongM: pp.alongM })) } : {}),
   };
 }
 

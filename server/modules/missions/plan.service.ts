@@ -40,7 +40,12 @@ export interface PlanContext {
   departAtMs: number;
   offsetMin: number;
   localDate: string;
+  /** Perch points the planner moved off mid-span, by span: metres along from the from-structure. */
+  perchAlongM: Map<string, number>;
 }
+
+/** A moved perch point keeps at least this far from either structure, clear of the attachment hardware (common practice). */
+export const PERCH_POINT_END_CLEARANCE_M = 5;
 
 export interface PerchCandidate extends Point {
   spanId: string;
@@ -50,6 +55,9 @@ export interface PerchCandidate extends Point {
   fromLabel: string;
   toLabel: string;
   lineBearingDeg: number;
+  /** The perch point, metres along from the from-structure, and who chose it. */
+  alongM: number;
+  perchPoint: 'mid-span' | 'planner';
   conductorHeightM: number;
   sagSource: 'lowest-clearance' | 'clearance' | 'assumed';
   hourlyHarvestW: number[];
@@ -102,7 +110,29 @@ export async function planContext(em: EntityManager, req: PlanRequest): Promise<
   if (issues.length) throw AppError.badRequest(`Invalid input: ${issues.map((i) => i.path).join(', ')}`, issues);
   const dep = parseDeparture(req.departAt);
   if (!dep.ok) throw AppError.field('departAt', dep.message);
-  return { drone: drone!, harvester: harvester!, missionDrone: missionDroneOf(drone!), departAtMs: dep.value.atMs, offsetMin: dep.value.offsetMin, localDate: dep.value.localDate };
+  const perchAlongM = new Map<string, number>();
+  const pointIssues: { path: string; message: string }[] = [];
+  for (const [i, pp] of (req.perchPoints ?? []).entries()) {
+    if (perchAlongM.has(pp.spanId)) {
+      pointIssues.push({ path: `perchPoints.${i}.spanId`, message: 'this span already has a perch point in the list' });
+      continue;
+    }
+    const span = (await sql.get(em, 'select s.length_m as length_m, a.label as alabel from spans s join structures a on a.id = s.from_structure_id where s.id = ?', [pp.spanId])) as
+      | { length_m: number; alabel: string }
+      | undefined;
+    if (!span) {
+      pointIssues.push({ path: `perchPoints.${i}.spanId`, message: 'no span has this id' });
+      continue;
+    }
+    const lo = PERCH_POINT_END_CLEARANCE_M, hi = span.length_m - PERCH_POINT_END_CLEARANCE_M;
+    if (!(pp.alongM >= lo && pp.alongM <= hi)) {
+      pointIssues.push({ path: `perchPoints.${i}.alongM`, message: `the perch point must lie ${lo} m to ${Math.max(lo, hi).toFixed(1)} m from ${span.alabel}, clear of both structures` });
+      continue;
+    }
+    perchAlongM.set(pp.spanId, pp.alongM);
+  }
+  if (pointIssues.length) throw AppError.badRequest(`Invalid input: ${pointIssues.map((i) => i.path).join(', ')}`, pointIssues);
+  return { drone: drone!, harvester: harvester!, missionDrone: missionDroneOf(drone!), departAtMs: dep.value.atMs, offsetMin: dep.value.offsetMin, localDate: dep.value.localDate, perchAlongM };
 }
 
 const distM = (a: Point, b: Point) => geodesicInverse({ latDeg: a.lat, lonDeg: a.lon }, { latDeg: b.lat, lonDeg: b.lon }).lengthM;
@@ -212,6 +242,10 @@ export async function perchCandidates(em: EntityManager, ctx: PlanContext, corri
     }
     const g = geodesicInverse({ latDeg: r.alat, lonDeg: r.alon }, { latDeg: r.blat, lonDeg: r.blon });
     const sag = sagOf(r);
+    // Mid-span unless the planner moved the point; along a span of a few hundred metres the straight
+    // interpolation of latitude and longitude departs from the geodesic by far less than a centimetre.
+    const alongM = ctx.perchAlongM.get(r.id) ?? r.length_m / 2;
+    const f = ctx.perchAlongM.has(r.id) && g.lengthM > 0 ? Math.min(1, alongM / g.lengthM) : 0.5;
     out.push({
       spanId: r.id,
       lineId: r.line_id,
@@ -219,10 +253,12 @@ export async function perchCandidates(em: EntityManager, ctx: PlanContext, corri
       voltageKv: line.voltageKv,
       fromLabel: r.alabel,
       toLabel: r.blabel,
-      lat: (r.alat + r.blat) / 2,
-      lon: (r.alon + r.blon) / 2,
+      lat: r.alat + f * (r.blat - r.alat),
+      lon: r.alon + f * (r.blon - r.alon),
+      alongM,
+      perchPoint: ctx.perchAlongM.has(r.id) ? 'planner' : 'mid-span',
       lineBearingDeg: ((g.azimuthDeg % 360) + 360) % 360,
-      conductorHeightM: conductorHeightAtM({ fromHeightM: r.ah, toHeightM: r.bh, spanLengthM: r.length_m, xM: r.length_m / 2, midSpanSagM: sag.sagM }),
+      conductorHeightM: conductorHeightAtM({ fromHeightM: r.ah, toHeightM: r.bh, spanLengthM: r.length_m, xM: alongM, midSpanSagM: sag.sagM }),
       sagSource: sag.source,
       hourlyHarvestW: hw,
       harvestSource: line.measuredMonth ? 'series' : 'estimate',
@@ -380,6 +416,8 @@ function feasible(req: PlanRequest, ctx: PlanContext, input: SearchInput, r: Ext
       conductorHeightM: p.conductorHeightM,
       lat: p.lat,
       lon: p.lon,
+      alongM: p.alongM,
+      perchPoint: p.perchPoint,
       lineName: p.lineName,
       voltageKv: p.voltageKv,
       fromStructureLabel: p.fromLabel,

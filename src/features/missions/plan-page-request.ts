@@ -13,5 +13,6 @@ export function missionRequest(m: Mission): Partial<PlanRequest> {
     wind: r?.wind ?? m.wind ?? undefined,
     returnToBase: r?.returnToBase ?? m.returnToBase,
     objective: r?.objective ?? m.objective,
+    perchPoints: r?.perchPoints ?? [],
   };
 }

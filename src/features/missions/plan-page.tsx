@@ -14,6 +14,9 @@ import { ChargeChart, LegsTable, PerchTable, PlanSummary } from './plan-views.ts
 import { missionQueries } from './queries.ts';
 import { formatOffset, browserOffsetMinutes, infeasibleText, isoToLocalInput, localInputToIso, offsetOf, routeStops } from './transforms.ts';
 import type { LatLon, Mission, MissionObjective, PlanRequest, PlanResult } from './types.ts';
+import type { UnitSystem } from '#shared/units.ts';
+
+type FeasiblePlan = Extract<PlanResult, { feasible: true }>;
 import { missionRequest } from './plan-page-request.ts';
 
 interface FormState {
@@ -26,6 +29,49 @@ interface FormState {
   windFrom: string;
   returnToBase: boolean;
   objective: MissionObjective;
+  perchPoints: { spanId: string; alongM: number }[];
+}
+
+/** Moves one perch point along its span (distance from the from-structure, typed in the user's length unit), or puts it back at mid-span. */
+function MovePerchPoint({ plan, system, onMove }: { plan: FeasiblePlan; system: UnitSystem; onMove: (spanId: string, alongM: number | null) => void }) {
+  const perches = plan.perches.filter((p) => p.alongM !== undefined);
+  const [spanId, setSpanId] = useState(perches[0]?.spanId ?? '');
+  const chosen = perches.find((p) => p.spanId === spanId) ?? perches[0];
+  const [along, setAlong] = useState('');
+  useEffect(() => {
+    if (chosen?.alongM !== undefined) setAlong(String(+toDisplay(chosen.alongM, 'length', system).toFixed(1)));
+  }, [chosen?.spanId, chosen?.alongM, system]);
+  if (!chosen) return null;
+  const value = Number(along);
+  const ok = along.trim() !== '' && Number.isFinite(value) && value >= 0;
+  return (
+    <form
+      aria-label="Move a perch point"
+      className="flex flex-wrap items-end gap-2 border-t border-ink-100 pt-3"
+      onSubmit={(e) => {
+        e.preventDefault();
+        if (ok) onMove(chosen.spanId, fromDisplay(value, 'length', system));
+      }}
+    >
+      <div>
+        <label className="field-label" htmlFor="move-perch">Move a perch point</label>
+        <select id="move-perch" className="field-input min-h-12" value={chosen.spanId} onChange={(e) => setSpanId(e.target.value)}>
+          {perches.map((p, i) => (
+            <option key={p.spanId} value={p.spanId}>Perch {i + 1}: {p.lineName} {p.fromStructureLabel}–{p.toStructureLabel}</option>
+          ))}
+        </select>
+      </div>
+      <div>
+        <label className="field-label" htmlFor="move-perch-along">Distance from {chosen.fromStructureLabel ?? 'the from-structure'} ({unitLabel('length', system)})</label>
+        <input id="move-perch-along" className="field-input min-h-12 w-40" inputMode="decimal" value={along} onChange={(e) => setAlong(e.target.value)} />
+      </div>
+      <button type="submit" className="btn-ghost min-h-12" disabled={!ok}>Move and plan again</button>
+      {chosen.perchPoint === 'planner' && (
+        <button type="button" className="btn-ghost min-h-12" onClick={() => onMove(chosen.spanId, null)}>Back to mid-span</button>
+      )}
+      <p className="w-full text-xs text-ink-700">The span's gates were assessed at its surveyed perch point; check the clearance where you move it.</p>
+    </form>
+  );
 }
 
 function defaultDeparture() {
@@ -76,7 +122,7 @@ export function PlanPage({ flownSlot }: { flownSlot?: MissionFlownSlot } = {}) {
   const lines = useQuery(missionQueries.lines());
   const [form, setForm] = useState<FormState>({
     base: null, target: null, droneProfileId: '', harvesterProfileId: '', departLocal: defaultDeparture(),
-    windSpeed: '0', windFrom: '270', returnToBase: false, objective: 'time',
+    windSpeed: '0', windFrom: '270', returnToBase: false, objective: 'time', perchPoints: [],
   });
   const [placing, setPlacing] = useState<PlaceKind>('base');
   const [plan, setPlan] = useState<PlanResult | null>(null);
@@ -99,6 +145,7 @@ export function PlanPage({ flownSlot }: { flownSlot?: MissionFlownSlot } = {}) {
       windFrom: r.wind ? String(r.wind.fromDeg) : '270',
       returnToBase: r.returnToBase ?? false,
       objective: r.objective ?? 'time',
+      perchPoints: r.perchPoints ?? [],
     }));
     setPlan(m.plan);
     setName(m.name);
@@ -126,6 +173,7 @@ export function PlanPage({ flownSlot }: { flownSlot?: MissionFlownSlot } = {}) {
           wind: { speedMps: fromDisplay(Number(form.windSpeed) || 0, 'speed', system), fromDeg: ((Number(form.windFrom) || 0) % 360 + 360) % 360 },
           returnToBase: form.returnToBase,
           objective: form.objective,
+          ...(form.perchPoints.length ? { perchPoints: form.perchPoints } : {}),
         }
       : null;
 
@@ -256,6 +304,18 @@ export function PlanPage({ flownSlot }: { flownSlot?: MissionFlownSlot } = {}) {
               <ChargeChart plan={plan} reservePercent={drone?.reservePercent} />
               <LegsTable plan={plan} system={system} />
               <PerchTable plan={plan} lines={lines.data ?? []} offset={offset} system={system} />
+              {canPlan && request && (
+                <MovePerchPoint
+                  plan={plan}
+                  system={system}
+                  onMove={(spanId, alongM) => {
+                    const perchPoints = [...form.perchPoints.filter((pp) => pp.spanId !== spanId), ...(alongM === null ? [] : [{ spanId, alongM }])];
+                    setForm((f) => ({ ...f, perchPoints }));
+                    const { perchPoints: _old, ...rest } = request;
+                    planIt.mutate(perchPoints.length ? { ...rest, perchPoints } : rest);
+                  }}
+                />
+              )}
               <p className="text-xs text-ink-700">Times in UTC{offset}, the departure's own offset.</p>
               <Caution mission compact />
             </section>

@@ -166,6 +166,12 @@ export function PerchTable({ plan, lines, offset, system, links = true }: { plan
                     {' · '}
                     {links ? <Link className="underline" to={`/lines/${p.lineId}`}>{p.lineName ?? line?.name ?? 'Line'}</Link> : (p.lineName ?? line?.name)}
                   </span>
+                  {p.alongM !== undefined && (
+                    <span className="block text-xs text-ink-700" data-testid="perch-point">
+                      {p.perchPoint === 'planner' ? 'Moved by the planner: ' : 'Mid-span: '}
+                      {formatQuantity(p.alongM, 'length', system, { digits: 1 })} from {p.fromStructureLabel ?? 'the from-structure'}
+                    </span>
+                  )}
                 </td>
                 <td className="text-right">{wallClock(p.arriveAt, offset)}</td>
                 <td className="text-right">{formatDuration(p.dwellS)}</td>

@@ -18,6 +18,8 @@ export interface PlanRequest {
   wind?: { speedMps: number; fromDeg: number };
   returnToBase?: boolean;
   objective?: MissionObjective;
+  /** Perch points moved off mid-span: metres along the span from its from-structure. */
+  perchPoints?: { spanId: string; alongM: number }[];
 }
 
 export interface PlanLeg {
@@ -50,6 +52,9 @@ export interface PlanPerch {
   socDepartPct: number;
   lineBearingDeg: number;
   conductorHeightM: number;
+  /** Where on the span: metres from the from-structure, mid-span unless the planner moved it. */
+  alongM?: number;
+  perchPoint?: 'mid-span' | 'planner';
   /** The perch point; the contract lets the server add it. */
   lat?: number;
   lon?: number;
