@@ -6,12 +6,12 @@
 // LOAD_CLIENTS and LOAD_SECONDS change the size of the run.
 import { spawn } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import sharp from 'sharp';
 import sqlite3 from 'sqlite3';
 import type { BenchRow } from './run.ts';
+import { freePort } from '../scripts/free-port.ts';
 
 const CLIENTS = Number(process.env.LOAD_CLIENTS ?? 50);
 const SECONDS = Number(process.env.LOAD_SECONDS ?? 60);
@@ -24,16 +24,6 @@ const MIX: [string, number][] = [
   ['sign-in', 5],
 ];
 
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as net.AddressInfo).port;
-      srv.close(() => resolve(port));
-    });
-    srv.on('error', reject);
-  });
-}
 
 function pick(r: number): string {
   const total = MIX.reduce((s, [, w]) => s + w, 0);

@@ -2,22 +2,12 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import net from 'node:net';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { freePort } from '../../scripts/free-port.ts';
 
 export const DEMO_PASSWORD = 'roostline-demo';
 const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
 
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as net.AddressInfo).port;
-      srv.close(() => resolve(port));
-    });
-    srv.on('error', reject);
-  });
-}
 
 export interface Harness {
   baseUrl: string;

@@ -2,9 +2,9 @@
 // authentication, fsync off (a test cluster need not survive a power cut). Nothing depends on a system service.
 import { execFileSync, spawnSync } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
+import { freePort } from '../../scripts/free-port.ts';
 
 /** The folder holding initdb/pg_ctl: PG_BIN, else Debian's /usr/lib/postgresql/<newest>/bin; null when absent. */
 export function postgresBinDir(): string | null {
@@ -17,16 +17,6 @@ export function postgresBinDir(): string | null {
   return candidates.find((dir) => fs.existsSync(path.join(dir, 'initdb')) && fs.existsSync(path.join(dir, 'pg_ctl'))) ?? null;
 }
 
-async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as net.AddressInfo).port;
-      srv.close(() => resolve(port));
-    });
-    srv.on('error', reject);
-  });
-}
 
 export interface Cluster {
   /** postgres://postgres@127.0.0.1:<port>/postgres (the maintenance database). */

@@ -2,21 +2,12 @@
 // that kill it, stop it or restart it on the same data.
 import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
-import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import sqlite3 from 'sqlite3';
+import { freePort } from '../../scripts/free-port.ts';
 
-export async function freePort(): Promise<number> {
-  return new Promise((resolve, reject) => {
-    const srv = net.createServer();
-    srv.listen(0, '127.0.0.1', () => {
-      const port = (srv.address() as net.AddressInfo).port;
-      srv.close(() => resolve(port));
-    });
-    srv.on('error', reject);
-  });
-}
+export { freePort };
 
 export interface ChildServer {
   baseUrl: string;
