@@ -5,17 +5,14 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { initORM } from '../server/db.ts';
-import { seedDemoUsers } from '../server/seeders/demo-users.ts';
 import { seedScaleInventory } from '../server/seeders/scale-inventory.ts';
-import { ensureAssessmentDefaults } from '../server/modules/assessment/profiles.service.ts';
 import { planContext, planMission } from '../server/modules/missions/plan.service.ts';
-import { User } from '../server/modules/auth/user.entity.ts';
 import { METHOD_VERSION } from '../shared/engineering/assessment.ts';
 import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import { impliedCurrentA } from '../shared/engineering/implied-current.ts';
 import { prng } from '../shared/prng.ts';
 import type { BenchRow } from './run.ts';
+import { openBenchDatabase } from './bench-db.ts';
 
 const SPANS = Number(process.env.BENCH_MISSION_SPANS ?? 100_000);
 const MISSIONS = Number(process.env.BENCH_MISSIONS ?? 30);
@@ -37,18 +34,13 @@ function offset(lat: number, lon: number, m: number, bearingDeg: number) {
 }
 
 export async function run(): Promise<BenchRow[]> {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-missions-'));
-  const orm = await initORM(path.join(dir, 'missions.sqlite'));
+  const db = await openBenchDatabase('missions');
+  const { orm } = db;
   const out: Record<string, string> = {};
   try {
-    const em = orm.em.fork();
-    await seedDemoUsers(em);
-    await em.flush();
-    await ensureAssessmentDefaults(em);
-    const surveyor = await em.findOneOrFail(User, { email: 'surveyor@roostline.test' });
     console.log(`  building ${SPANS.toLocaleString('en-GB')} spans…`);
     let t = performance.now();
-    const seeded = await seedScaleInventory(orm.em.fork(), { spans: SPANS, surveyorIds: [surveyor.id] });
+    const seeded = await seedScaleInventory(orm.em.fork(), { spans: SPANS, surveyorIds: [db.surveyorId] });
     const conn = orm.em.fork().getConnection();
     await conn.execute("update spans set status = 'approved'");
     // One row per span for the demo pair, as a rescore would leave it on the useful-harvest gate alone: perchable when
@@ -106,8 +98,7 @@ export async function run(): Promise<BenchRow[]> {
     out['perches near the route'] = `median ${f1(pct(considered, 50))} approved perchable spans in the search box, ${f1(pct(searched, 50))} searched after thinning`;
     out['RSS peak'] = `${mb(peakRss)} MB (bench and planner in one process)`;
   } finally {
-    await orm.close();
-    fs.rmSync(dir, { recursive: true, force: true });
+    await db.close();
   }
   const rows: BenchRow[] = Object.entries(out).map(([figure, value]) => ({ figure, value }));
   const section =

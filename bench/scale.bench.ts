@@ -6,19 +6,17 @@ import os from 'node:os';
 import path from 'node:path';
 import zlib from 'node:zlib';
 import type { AddressInfo } from 'node:net';
-import { initORM } from '../server/db.ts';
 import { createApp } from '../server/app.ts';
 import { testConfig } from '../server/env.ts';
-import { seedDemoUsers, DEMO_PASSWORD } from '../server/seeders/demo-users.ts';
+import { DEMO_PASSWORD } from '../server/seeders/demo-users.ts';
 import { seedScaleInventory } from '../server/seeders/scale-inventory.ts';
-import { ensureAssessmentDefaults } from '../server/modules/assessment/profiles.service.ts';
 import { assessSpans, assessSpansBulk } from '../server/modules/assessment/assessment.service.ts';
 import { SpanTileService } from '../server/modules/map/span-tiles.ts';
-import { User } from '../server/modules/auth/user.entity.ts';
 import { assessSpan, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS } from '../shared/engineering/assessment.ts';
 import { findConductor, thermalConductorOf } from '../shared/engineering/conductors.ts';
 import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import type { BenchRow } from './run.ts';
+import { openBenchDatabase } from './bench-db.ts';
 
 const asked = Number(process.env.BENCH_SCALE_SPANS ?? 10_000);
 const SIZES = [...new Set([...[10_000, 100_000, 1_000_000].filter((n) => n < asked), asked])];
@@ -85,17 +83,13 @@ function initialJsGzipKB(): string {
 }
 
 async function measure(spans: number): Promise<Record<string, string>> {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-scale-'));
-  const orm = await initORM(path.join(dir, 'scale.sqlite'));
+  const db = await openBenchDatabase('scale');
+  const { orm } = db;
   const out: Record<string, string> = {};
   try {
     const em = orm.em.fork();
-    await seedDemoUsers(em);
-    await em.flush();
-    await ensureAssessmentDefaults(em);
-    const surveyor = await em.findOneOrFail(User, { email: 'surveyor@roostline.test' });
     let t = performance.now();
-    const seeded = await seedScaleInventory(orm.em.fork(), { spans, surveyorIds: [surveyor.id] });
+    const seeded = await seedScaleInventory(orm.em.fork(), { spans, surveyorIds: [db.surveyorId] });
     out.seed = `${f1((performance.now() - t) / 1000)} s (${seeded.lines} lines, ${seeded.hazards} hazards)`;
 
     // Rescoring all spans × active pairs after a settings change: the bulk path (the background job's), beside the
@@ -115,7 +109,7 @@ async function measure(spans: number): Promise<Record<string, string>> {
     out['rescore baseline'] = `${f1(pureRate(20_000))} span·pairs/s pure`;
 
     // List API: filtered, sorted, page of 50, 10 concurrent clients, beside the bare prepared query.
-    const { app, close } = createApp({ orm, config: testConfig({ databasePath: path.join(dir, 'scale.sqlite') }) });
+    const { app, close } = createApp({ orm, config: testConfig({ databasePath: db.file }) });
     const server = app.listen(0);
     const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
     const signIn = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email: 'planner@roostline.test', password: DEMO_PASSWORD }) });
@@ -170,8 +164,7 @@ async function measure(spans: number): Promise<Record<string, string>> {
     service.close();
     out.import = 'not measured yet';
   } finally {
-    await orm.close();
-    fs.rmSync(dir, { recursive: true, force: true });
+    await db.close();
   }
   return out;
 }

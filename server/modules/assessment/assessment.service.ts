@@ -291,19 +291,24 @@ export async function countSpans(em: EntityManager, filter: { lineId?: string } 
   return em.count(Span, filter.lineId ? { lineId: filter.lineId } : {});
 }
 
-/**
- * Recomputes the stored assessments of the given spans (all spans when omitted, or a line's spans) for every
- * active harvester × drone pair. Replaces each span's rows; returns the number of spans assessed.
- */
-export async function assessSpans(em: EntityManager, spanIds?: readonly string[], opts: AssessOptions & { lineId?: string } = {}): Promise<number> {
-  const now = opts.now ?? new Date();
+/** What every rescoring run reads once before its batches: the active pairs, the current settings and the zones in force at `now`. */
+async function runInputs(em: EntityManager, now: Date) {
   const [harvesters, drones, { version: settingsVersion, settings }, zones] = await Promise.all([
     activeHarvesters(em),
     activeDrones(em),
     currentSettings(em),
     em.find(Zone, {}),
   ]);
-  const zonesOf = zoneIndex(zones, now);
+  return { harvesters, drones, settingsVersion, settings, zonesOf: zoneIndex(zones, now) };
+}
+
+/**
+ * Recomputes the stored assessments of the given spans (all spans when omitted, or a line's spans) for every
+ * active harvester × drone pair. Replaces each span's rows; returns the number of spans assessed.
+ */
+export async function assessSpans(em: EntityManager, spanIds?: readonly string[], opts: AssessOptions & { lineId?: string } = {}): Promise<number> {
+  const now = opts.now ?? new Date();
+  const { harvesters, drones, settingsVersion, settings, zonesOf } = await runInputs(em, now);
   const lineCache = new Map<string, Line>();
   let assessed = 0;
 
@@ -367,13 +372,7 @@ const BULK_BATCH = 500;
  */
 export async function assessSpansBulk(em: EntityManager, spanIds?: readonly string[], opts: AssessOptions & { lineId?: string } = {}): Promise<number> {
   const now = opts.now ?? new Date();
-  const [harvesters, drones, { version: settingsVersion, settings }, zones] = await Promise.all([
-    activeHarvesters(em),
-    activeDrones(em),
-    currentSettings(em),
-    em.find(Zone, {}),
-  ]);
-  const zonesOf = zoneIndex(zones, now);
+  const { harvesters, drones, settingsVersion, settings, zonesOf } = await runInputs(em, now);
   const lineCache = new Map<string, Line>();
   const fast = { pairs: pairModelsOf(harvesters, drones), memo: createAssessmentMemo() };
   let assessed = 0;
