@@ -10,7 +10,7 @@ import { Span } from '../modules/inventory/span.entity.ts';
 import { Structure } from '../modules/inventory/structure.entity.ts';
 import { Line } from '../modules/inventory/line.entity.ts';
 import { Zone } from '../modules/zones/zone.entity.ts';
-import { assessSpans, perchStandings, spansNear } from '../modules/assessment/index.ts';
+import { assessSpans, assessSpansBulk, perchStandings, spansNear } from '../modules/assessment/index.ts';
 import { newId } from '../modules/inventory/inventory.service.ts';
 import { ensureAssessmentDefaults } from '../modules/assessment/profiles.service.ts';
 import { DEMO_LINES } from './demo-inventory.ts';
@@ -48,7 +48,8 @@ export interface DemoDecisionsResult {
  */
 export async function seedDemoDecisions(em: EntityManager): Promise<DemoDecisionsResult> {
   await ensureAssessmentDefaults(em);
-  await assessSpans(em, undefined, { clearBetweenBatches: true });
+  // The whole inventory at once: the background rescoring's bulk path (its rows equal the per-span path's, tested).
+  await assessSpansBulk(em, undefined, { clearBetweenBatches: true });
   em.clear();
 
   const approved = await em.find(Span, { status: 'approved' }, { orderBy: { id: 'asc' } });
