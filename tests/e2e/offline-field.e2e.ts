@@ -59,6 +59,20 @@ async function counts(page: Page, lineId: string, surveyorId: string) {
   return { structures: structures.items, spans: spans.items.filter((s) => s.lineId === lineId) };
 }
 
+/**
+ * No signal, or signal back. Offline mode alone does not always cut a service worker's own fetches in Chromium, so
+ * while offline every API request that still leaves the browser is dropped as a lost connection too.
+ */
+async function signal(context: BrowserContext, on: boolean) {
+  if (on) {
+    await context.unroute('**/api/**');
+    await context.setOffline(false);
+  } else {
+    await context.setOffline(true);
+    await context.route('**/api/**', (route) => route.abort('internetdisconnected'));
+  }
+}
+
 describe('offline field work', () => {
   it('when a surveyor makes two structures, a span between them, a photo and an edit with no signal, then they survive a reload and reach the server exactly once', async () => {
     const { context, page } = await open();
@@ -86,7 +100,7 @@ describe('offline field work', () => {
     expect(before.spans).toHaveLength(1);
 
     // No signal from here.
-    await context.setOffline(true);
+    await signal(context, false);
     await page.reload();
     await page.getByLabel('Line', { exact: true }).selectOption(line.id);
     await addStructure(page, 0, '-30.2200', '-130.3200');
@@ -129,7 +143,7 @@ describe('offline field work', () => {
     expect(offlineCounts.structures).toHaveLength(2);
 
     // Signal back: everything goes, once.
-    await context.setOffline(false);
+    await signal(context, true);
     await expect.poll(() => indicator(page).getAttribute('data-waiting'), { timeout: 60_000 }).toBe('0');
     const after = await counts(page, line.id, me.user.id);
     expect(after.structures).toHaveLength(4);
@@ -205,7 +219,7 @@ describe('offline field work', () => {
     await page.getByLabel('Phase / position (optional)').waitFor();
     await page.waitForTimeout(1500); // the persisted cache is written a moment after the last read
 
-    await context.setOffline(true);
+    await signal(context, false);
     await page.getByLabel('Phase / position (optional)').fill(`mine ${RUN}`);
     await page.getByRole('button', { name: 'Save draft' }).click();
     await page.getByText('Kept on this device; it will be sent when there is a connection.', { exact: true }).waitFor();
@@ -216,7 +230,7 @@ describe('offline field work', () => {
     await api(other.page, 'patch', `/api/spans/${span.id}`, { version: span.version, phasePosition: `theirs ${RUN}` });
     await other.context.close();
 
-    await context.setOffline(false);
+    await signal(context, true);
     await page.goto('/field/outbox');
     await expect.poll(() => page.locator('[data-outbox-item="span.update"]').getAttribute('data-state'), { timeout: 60_000 }).toBe('conflict');
     // Kept, not dropped: the server still has the colleague's value until the surveyor decides.
