@@ -102,7 +102,7 @@ export async function run(): Promise<BenchRow[]> {
   }
   const rows: BenchRow[] = Object.entries(out).map(([figure, value]) => ({ figure, value }));
   const section =
-    `<!-- missions bench -->\n# Missions bench\n\n${new Date().toISOString().slice(0, 10)} · ${os.cpus().length} cores · load average ${os.loadavg()[0].toFixed(1)} at the end (shared machine, loaded figures). ` +
+    `<!-- missions bench -->\n# Missions bench\n\n${new Date().toISOString().slice(0, 10)} · ${os.cpus().length} cores · load average ${os.loadavg()[0].toFixed(1)} at the end${os.loadavg()[0] > os.cpus().length ? ' (shared machine, loaded figures)' : ' (quiet machine)'}. ` +
     '`npm run bench -- missions` (`BENCH_MISSION_SPANS`, `BENCH_MISSIONS`).\n\n| figure | value |\n|---|---|\n' +
     rows.map((r) => `| ${r.figure} | ${r.value} |`).join('\n') +
     '\n<!-- /missions bench -->\n';
