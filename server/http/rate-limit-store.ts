@@ -1,10 +1,9 @@
-// express-rate-limit's Store over the `rate_limit_hits` table, for PostgreSQL where several server processes share
-// one database: a client's failed sign-ins count across all of them. On SQLite (one process per database file) the
-// library's own memory store stays, so this returns undefined there.
+// express-rate-limit's Store over the `rate_limit_hits` table: every limiter (sign-in, password reset, photo uploads)
+// counts in the database, so several server processes on one PostgreSQL count a client's attempts together, and a
+// restart does not hand a client a fresh allowance. Same store and SQL on SQLite.
 import type { Store, Options, ClientRateLimitInfo } from 'express-rate-limit';
 import type { AppContext } from '../context.ts';
 import { sql } from '../sql/query.ts';
-import { isPostgres } from '../sql/dialect.ts';
 
 class DatabaseStore implements Store {
   windowMs = 60_000;
@@ -46,7 +45,7 @@ class DatabaseStore implements Store {
   }
 }
 
-/** A shared store on PostgreSQL; undefined (the library's memory store) on SQLite. */
-export function sharedRateLimitStore(ctx: AppContext, name: string): Store | undefined {
-  return isPostgres(ctx.orm.em) ? new DatabaseStore(ctx, `${name}:`) : undefined;
+/** The limiter `name`'s counts in the database (keys are prefixed with the name, so limiters never mix). */
+export function sharedRateLimitStore(ctx: AppContext, name: string): Store {
+  return new DatabaseStore(ctx, `${name}:`);
 }

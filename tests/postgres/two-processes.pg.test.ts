@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import fs from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
+import sharp from 'sharp';
 import { VectorTile } from '@mapbox/vector-tile';
 import { PbfReader } from 'pbf';
 import { newDataDir, startServer, type ChildServer } from '../server/child-server.ts';
@@ -15,27 +16,50 @@ let dataDir: string;
 let a: ChildServer;
 let b: ChildServer;
 
+/** A session cookie; two clients holding the same jar are one browser whose requests reach either process. */
+type Jar = { cookie: string };
+
 /** A cookie-keeping client of one child server, sending its own Origin. */
-function clientOf(server: ChildServer) {
-  let cookie = '';
-  const call = async (method: string, url: string, body?: unknown) => {
+function clientOf(server: ChildServer, jar: Jar = { cookie: '' }) {
+  const call = async (method: string, url: string, body?: unknown, headers: Record<string, string> = {}) => {
+    const form = body instanceof FormData;
     const res = await fetch(server.baseUrl + url, {
       method,
-      headers: { Origin: server.baseUrl, ...(cookie ? { Cookie: cookie } : {}), ...(body ? { 'Content-Type': 'application/json' } : {}) },
-      body: body ? JSON.stringify(body) : undefined,
+      headers: { Origin: server.baseUrl, ...(jar.cookie ? { Cookie: jar.cookie } : {}), ...(body && !form ? { 'Content-Type': 'application/json' } : {}), ...headers },
+      body: form ? body : body ? JSON.stringify(body) : undefined,
     });
     const set = res.headers.getSetCookie?.() ?? [];
-    if (set.length) cookie = set.map((c) => c.split(';')[0]).join('; ');
+    if (set.length) jar.cookie = set.map((c) => c.split(';')[0]).join('; ');
     return res;
   };
   return {
+    jar,
     get: (url: string) => call('GET', url),
-    post: (url: string, body?: unknown) => call('POST', url, body ?? {}),
+    post: (url: string, body?: unknown, headers?: Record<string, string>) => call('POST', url, body ?? {}, headers),
+    patch: (url: string, body: unknown) => call('PATCH', url, body),
     signIn: async (email: string) => {
       const res = await call('POST', '/api/auth/sign-in', { email, password: DEMO_PASSWORD });
       expect(res.status).toBe(200);
     },
   };
+}
+
+/** A small PNG as a multipart upload (no position: it links to nothing). */
+async function photoForm(name: string) {
+  const png = await sharp({ create: { width: 8, height: 8, channels: 3, background: '#336699' } }).png().toBuffer();
+  const form = new FormData();
+  form.append('photo', new Blob([png], { type: 'image/png' }), name);
+  return form;
+}
+
+async function queryDb<T = Record<string, unknown>>(text: string, params: unknown[] = []): Promise<T[]> {
+  const client = new pg.Client({ connectionString: dbUrl });
+  await client.connect();
+  try {
+    return (await client.query(text, params)).rows as T[];
+  } finally {
+    await client.end();
+  }
 }
 
 const lonToTileX = (lon: number, z: number) => Math.floor(((lon + 180) / 360) * 2 ** z);
@@ -44,8 +68,10 @@ const latToTileY = (lat: number, z: number) => {
   return Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z);
 };
 const AT = { lon: -131.615, lat: -31.4 };
-/** Failed sign-ins allowed per client address in the window, on both processes together. */
+/** Failed sign-ins (and password-reset requests) allowed per client address in the window, on both processes together. */
 const BURST = 4;
+/** Photo uploads allowed per user in the window, on both processes together. */
+const UPLOADS = 3;
 
 async function spansInTile(c: ReturnType<typeof clientOf>) {
   const res = await c.get(`/api/tiles/spans/14/${lonToTileX(AT.lon + 0.001, 14)}/${latToTileY(AT.lat, 14)}.mvt`);
@@ -58,7 +84,7 @@ async function spansInTile(c: ReturnType<typeof clientOf>) {
 beforeAll(async () => {
   dbUrl = (await freshPostgresDatabase())!;
   dataDir = newDataDir();
-  const env = { DATABASE_URL: dbUrl, UPLOADS_DIR: path.join(dataDir, 'uploads'), SEED_DEMO: 'true', SIGN_IN_BURST: String(BURST) };
+  const env = { DATABASE_URL: dbUrl, UPLOADS_DIR: path.join(dataDir, 'uploads'), SEED_DEMO: 'true', SIGN_IN_BURST: String(BURST), UPLOAD_BURST: String(UPLOADS) };
   // Both start at once: one applies the migrations and seeds, the other waits for its lock and finds it done.
   [a, b] = await Promise.all([startServer(dataDir, env), startServer(dataDir, env)]);
 }, 240_000);
@@ -110,6 +136,94 @@ describe('two server processes on one PostgreSQL', () => {
       await new Promise((r) => setTimeout(r, 200));
     }
     expect(seen).toContain(spanId);
+  });
+
+  it('when a browser signs in through A, then its session works on B; signing out through A ends it on B', async () => {
+    const jar: Jar = { cookie: '' };
+    const onA = clientOf(a, jar);
+    const onB = clientOf(b, jar);
+    await onA.signIn('surveyor@roostline.test');
+    const me = await onB.get('/api/me');
+    expect(me.status).toBe(200);
+    expect((await me.json()).user.email).toBe('surveyor@roostline.test');
+    const signedIn = jar.cookie;
+    expect((await onA.post('/api/auth/sign-out')).status).toBe(204);
+    // The old cookie, sent again to B (a tab that did not see the sign-out), finds no session there either.
+    jar.cookie = signedIn;
+    expect((await onB.get('/api/me')).status).toBe(401);
+    expect((await onA.get('/api/me')).status).toBe(401);
+  });
+
+  it('when a create sent to A with an Idempotency-Key is retried on B, then there is one record and the same answer', async () => {
+    const jar: Jar = { cookie: '' };
+    const onA = clientOf(a, jar);
+    const onB = clientOf(b, jar);
+    await onA.signIn('surveyor@roostline.test');
+    const body = { name: 'Retried line', owner: 'Harrow Vale Power Cooperative', voltageKv: 69, frequencyHz: 60, loadTypicalA: 300, loadMinA: 120, loadPeakA: 520 };
+    const key = { 'Idempotency-Key': 'two-process-retry-1' };
+    const first = await onA.post('/api/lines', body, key);
+    expect(first.status).toBe(201);
+    const retry = await onB.post('/api/lines', body, key);
+    expect(retry.status).toBe(201);
+    expect(retry.headers.get('Idempotent-Replayed')).toBe('true');
+    expect(await retry.json()).toEqual(await first.json());
+    expect((await queryDb<{ n: number }>('select count(*)::int as n from lines where name = $1', [body.name]))[0].n).toBe(1);
+  });
+
+  it('when the same keyed create reaches A and B at the same moment, then one record is made and both answers are the same', async () => {
+    const jar: Jar = { cookie: '' };
+    await clientOf(a, jar).signIn('surveyor@roostline.test');
+    const body = { name: 'Raced line', owner: 'Harrow Vale Power Cooperative', voltageKv: 69, frequencyHz: 60, loadTypicalA: 300, loadMinA: 120, loadPeakA: 520 };
+    for (let round = 0; round < 3; round++) {
+      const key = { 'Idempotency-Key': `two-process-race-${round}` };
+      const answers = await Promise.all([clientOf(a, jar).post('/api/lines', { ...body, name: `${body.name} ${round}` }, key), clientOf(b, jar).post('/api/lines', { ...body, name: `${body.name} ${round}` }, key)]);
+      expect(answers.map((r) => r.status)).toEqual([201, 201]);
+      const [x, y] = await Promise.all(answers.map((r) => r.json()));
+      expect(y).toEqual(x);
+      expect((await queryDb<{ n: number }>('select count(*)::int as n from lines where name = $1', [`${body.name} ${round}`]))[0].n).toBe(1);
+    }
+  });
+
+  it('when a perch span of a saved mission is edited through A, then B reads the mission as needing a new plan and refuses to authorise it', async () => {
+    const onA = clientOf(a);
+    const onB = clientOf(b);
+    await onA.signIn('surveyor@roostline.test');
+    await onB.signIn('safety@roostline.test');
+    const { items } = await (await onB.get('/api/missions')).json();
+    const listed = items.find((m: { stale: boolean }) => !m.stale);
+    expect(listed).toBeDefined();
+    const mission = await (await onB.get(`/api/missions/${listed.id}`)).json();
+    const spanId = mission.plan.perches[0].spanId as string;
+    const span = await (await onA.get(`/api/spans/${spanId}`)).json();
+    const edit = await onA.patch(`/api/spans/${spanId}`, { version: span.version, phasePosition: span.phasePosition === 'middle' ? 'outer' : 'middle' });
+    expect(edit.status).toBe(200);
+    const after = await (await onB.get(`/api/missions/${mission.id}`)).json();
+    expect(after.stale).toBe(true);
+    expect(after.staleReasons.map((r: { code: string }) => r.code)).toContain('span-edited');
+    const refused = await onB.post(`/api/missions/${mission.id}/authorise`, {});
+    expect(refused.status).toBe(409);
+    expect((await refused.json()).error.message).toMatch(/new plan/);
+  });
+
+  it('when password resets are asked for through A and B in turn, then the limit counts both together', async () => {
+    const ask = (server: ChildServer) => clientOf(server).post('/api/auth/request-password-reset', { email: 'planner@roostline.test' });
+    const statuses: number[] = [];
+    for (let i = 0; i < BURST; i++) statuses.push((await ask(i % 2 === 0 ? a : b)).status);
+    expect(statuses).toEqual(Array(BURST).fill(202));
+    expect((await ask(a)).status).toBe(429);
+    expect((await ask(b)).status).toBe(429);
+  });
+
+  it('when a user uploads photos through A and B in turn, then the upload limit counts both together', async () => {
+    const jar: Jar = { cookie: '' };
+    await clientOf(a, jar).signIn('surveyor@roostline.test');
+    const statuses: number[] = [];
+    for (let i = 0; i < UPLOADS; i++) statuses.push((await clientOf(i % 2 === 0 ? a : b, jar).post('/api/photos', await photoForm(`p${i}.png`))).status);
+    expect(statuses).toEqual(Array(UPLOADS).fill(201));
+    const overB = await clientOf(b, jar).post('/api/photos', await photoForm('over-b.png'));
+    expect(overB.status).toBe(429);
+    expect((await overB.json()).error.message).toMatch(/Too many photo uploads/);
+    expect((await clientOf(a, jar).post('/api/photos', await photoForm('over-a.png'))).status).toBe(429);
   });
 
   it('when the last two admins remove each other through A and B at the same moment, then one admin is left', async () => {

@@ -16,7 +16,7 @@ export function authRouter(ctx: AppContext) {
     windowMs: ctx.config.signInWindowMs,
     limit: ctx.config.signInBurst,
     skipSuccessfulRequests: true,
-    // Counted in the database on PostgreSQL, so every process behind the load balancer sees the same count.
+    // Counted in the database, so every process behind the load balancer sees the same count.
     store: sharedRateLimitStore(ctx, 'sign-in'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,

@@ -3,6 +3,7 @@ import { requestPasswordResetSchema, resetPasswordSchema } from '#shared/schemas
 import type { AppContext } from '../../context.ts';
 import { featureRouter } from '../../http/access.ts';
 import { errorBody, parse } from '../../http/errors.ts';
+import { sharedRateLimitStore } from '../../http/rate-limit-store.ts';
 import { linkOrigin, mailerFor } from '../mail/mail.service.ts';
 import { requestPasswordReset, resetPassword, RESET_REQUESTED } from './reset.service.ts';
 
@@ -14,6 +15,8 @@ export function resetRouter(ctx: AppContext) {
   const limiter = rateLimit({
     windowMs: ctx.config.signInWindowMs,
     limit: ctx.config.signInBurst,
+    // Counted in the database: every process behind the load balancer sees the same count.
+    store: sharedRateLimitStore(ctx, 'password-reset'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     handler: (_req, res) => {

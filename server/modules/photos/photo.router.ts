@@ -2,6 +2,7 @@ import { pipeline } from 'node:stream/promises';
 import type { RequestHandler } from 'express';
 import multer from 'multer';
 import { rateLimit } from 'express-rate-limit';
+import { sharedRateLimitStore } from '../../http/rate-limit-store.ts';
 import { z } from 'zod';
 import type { AppContext } from '../../context.ts';
 import { currentUser, hasRole, featureRouter } from '../../http/access.ts';
@@ -127,6 +128,8 @@ export function photosRouter(ctx: AppContext, storage: PhotoStorage = localDiskS
     windowMs: ctx.config.uploadWindowMs,
     limit: ctx.config.uploadBurst,
     keyGenerator: (req) => currentUser(req).id,
+    // Counted in the database: a user's uploads through every process count together.
+    store: sharedRateLimitStore(ctx, 'photo-upload'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     handler: (_req, res) => {
