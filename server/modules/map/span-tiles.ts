@@ -49,6 +49,11 @@ interface Snapshot {
   lat0: number[];
   lon1: number[];
   lat1: number[];
+  /** Web-mercator positions (0–1) of the two ends, as the tiles use them. */
+  mx0: number[];
+  my0: number[];
+  mx1: number[];
+  my1: number[];
   lengthM: number[];
   /** NaN = no assessment. */
   score: number[];
@@ -56,6 +61,10 @@ interface Snapshot {
   /** -1 = no assessment. */
   perchable: number[];
   grid: Map<number, number[]>;
+  /** Span entries per line (a line filter reads only these). */
+  lineSpans: Map<string, number[]>;
+  /** Generalised zooms (below FULL_DETAIL_ZOOM), built on first use and patched with the snapshot. */
+  layers: (GeneralLayer | undefined)[];
   structures: { id: string; lineId: string; lon: number; lat: number; kind: string; label: string }[];
   structureIndex: Map<string, number>;
   structureGrid: Map<number, number[]>;
@@ -101,6 +110,8 @@ export interface TileStats {
   builds: number;
   hits: number;
   snapshotLoads: number;
+  /** Generalised zoom layers built whole (edits patch them instead). */
+  layerBuilds: number;
 }
 
 type VtFeature = { type: 1 | 2; geometry: unknown; tags: Record<string, unknown> };
@@ -117,7 +128,7 @@ export class SpanTileService {
   private watcher: NodeJS.Timeout | null = null;
   private closed = false;
   private defaultPair: Promise<TilePair | null> | null = null;
-  readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0 };
+  readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0, layerBuilds: 0 };
 
   constructor(private readonly orm: MikroORM) {}
 
@@ -295,11 +306,17 @@ export class SpanTileService {
       lat0: [],
       lon1: [],
       lat1: [],
+      mx0: [],
+      my0: [],
+      mx1: [],
+      my1: [],
       lengthM: [],
       score: [],
       harvestW: [],
       perchable: [],
       grid: new Map(),
+      lineSpans: new Map(),
+      layers: [],
       structures: [],
       structureIndex: new Map(),
       structureGrid: new Map(),
@@ -348,7 +365,7 @@ export class SpanTileService {
       return hit;
     }
     const snap = await this.loadSnapshot(resolved);
-    const bytes = Buffer.from(buildTile(snap, z, x, y, filters));
+    const bytes = Buffer.from(buildTile(snap, z, x, y, filters, false, this.stats));
     this.stats.builds += 1;
     if (version === this.version) {
       while (this.cache.size && (this.cache.size >= MAX_CACHED_TILES || this.cacheBytes + bytes.length > MAX_CACHED_BYTES)) {
@@ -363,6 +380,15 @@ export class SpanTileService {
     }
     return bytes;
   }
+
+  /**
+   * The same tile by the plain path (every span of the snapshot looked at for this one tile; never cached): the
+   * reference the fast path is tested and benched against.
+   */
+  async plainTile(z: number, x: number, y: number, pair: Partial<TilePair> = {}, filters: SpanMapFilters = {}): Promise<Buffer> {
+    const snap = await this.loadSnapshot(await this.resolvePair(this.orm.em.fork(), pair));
+    return Buffer.from(buildTile(snap, z, x, y, filters, true));
+  }
 }
 
 function gridCellsOf(lonA: number, latA: number, lonB: number, latB: number): number[] {
@@ -371,7 +397,7 @@ function gridCellsOf(lonA: number, latA: number, lonB: number, latB: number): nu
   return keys;
 }
 
-function addToGrid(grid: Map<number, number[]>, keys: number[], i: number) {
+function addToGrid<K>(grid: Map<K, number[]>, keys: K[], i: number) {
   for (const k of keys) {
     const list = grid.get(k);
     if (list) list.push(i);
@@ -388,30 +414,46 @@ function removeFromGrid(grid: Map<number, number[]>, keys: number[], i: number) 
   }
 }
 
-/** Adds a span row to the snapshot, or replaces the entry of the same id (moving it on the grid if need be). */
+/** Adds a span row to the snapshot, or replaces the entry of the same id (moving it on the grid, its line and its layers' cells if need be). */
 function upsertSpan(snap: Snapshot, r: any) {
   let i = snap.index.get(r.id);
+  const fresh = i === undefined;
   if (i === undefined) {
     i = snap.n++;
     snap.index.set(r.id, i);
     snap.ids[i] = r.id;
-  } else if (snap.lon0[i] !== r.lon0 || snap.lat0[i] !== r.lat0 || snap.lon1[i] !== r.lon1 || snap.lat1[i] !== r.lat1) {
-    removeFromGrid(snap.grid, gridCellsOf(snap.lon0[i], snap.lat0[i], snap.lon1[i], snap.lat1[i]), i);
   } else {
-    i = -1 - i; // same place: no grid change
+    for (const layer of snap.layers) layer?.remove(i);
+    if (snap.lon0[i] !== r.lon0 || snap.lat0[i] !== r.lat0 || snap.lon1[i] !== r.lon1 || snap.lat1[i] !== r.lat1) {
+      removeFromGrid(snap.grid, gridCellsOf(snap.lon0[i], snap.lat0[i], snap.lon1[i], snap.lat1[i]), i);
+      addToGrid(snap.grid, gridCellsOf(r.lon0, r.lat0, r.lon1, r.lat1), i);
+    }
+    if (snap.lineIds[i] !== r.line_id) {
+      const list = snap.lineSpans.get(snap.lineIds[i]);
+      const at = list ? list.indexOf(i) : -1;
+      if (at >= 0) list!.splice(at, 1);
+      addToGrid(snap.lineSpans, [r.line_id], i);
+    }
   }
-  const at = i < 0 ? -1 - i : i;
-  snap.lineIds[at] = r.line_id;
-  snap.statuses[at] = r.status;
-  snap.lon0[at] = r.lon0;
-  snap.lat0[at] = r.lat0;
-  snap.lon1[at] = r.lon1;
-  snap.lat1[at] = r.lat1;
-  snap.lengthM[at] = r.length_m;
-  snap.score[at] = r.score ?? NaN;
-  snap.harvestW[at] = r.harvest_w ?? NaN;
-  snap.perchable[at] = r.perchable === null || r.perchable === undefined ? -1 : r.perchable ? 1 : 0;
-  if (i >= 0) addToGrid(snap.grid, gridCellsOf(r.lon0, r.lat0, r.lon1, r.lat1), at);
+  snap.lineIds[i] = r.line_id;
+  snap.statuses[i] = r.status;
+  snap.lon0[i] = r.lon0;
+  snap.lat0[i] = r.lat0;
+  snap.lon1[i] = r.lon1;
+  snap.lat1[i] = r.lat1;
+  snap.mx0[i] = mercX(r.lon0);
+  snap.my0[i] = mercY(r.lat0);
+  snap.mx1[i] = mercX(r.lon1);
+  snap.my1[i] = mercY(r.lat1);
+  snap.lengthM[i] = r.length_m;
+  snap.score[i] = r.score ?? NaN;
+  snap.harvestW[i] = r.harvest_w ?? NaN;
+  snap.perchable[i] = r.perchable === null || r.perchable === undefined ? -1 : r.perchable ? 1 : 0;
+  if (fresh) {
+    addToGrid(snap.grid, gridCellsOf(r.lon0, r.lat0, r.lon1, r.lat1), i);
+    addToGrid(snap.lineSpans, [r.line_id], i);
+  }
+  for (const layer of snap.layers) layer?.add(i);
 }
 
 function upsertStructure(snap: Snapshot, t: any) {
@@ -443,91 +485,327 @@ function passes(snap: Snapshot, i: number, f: SpanMapFilters) {
   return true;
 }
 
-function buildTile(snap: Snapshot, z: number, x: number, y: number, filters: SpanMapFilters = {}): Uint8Array {
-  const filtered = !!(filters.status || filters.lineId || filters.minHarvestW !== undefined || filters.minScore !== undefined);
-  const scale = 2 ** z;
-  const pad = TILE_BUFFER / TILE_EXTENT;
-  const west = tileLon(x - pad, z);
-  const east = tileLon(x + 1 + pad, z);
-  const north = tileLat(y - pad, z);
-  const south = tileLat(y + 1 + pad, z);
-  const px = (lon: number) => Math.round((mercX(lon) * scale - x) * TILE_EXTENT);
-  const py = (lat: number) => Math.round((mercY(lat) * scale - y) * TILE_EXTENT);
+// ---- Tile geometry -------------------------------------------------------------------------------------------
+// Positions are world pixels at the tile's zoom: round(mercator × 2^z × TILE_EXTENT). A tile (x, y) covers
+// [x·EXTENT − BUFFER, (x+1)·EXTENT + BUFFER] on each axis; a span is in a tile when its pixel box meets that.
 
-  const seen = new Set<number>();
-  const candidates: number[] = [];
-  const gx0 = gx(west);
-  const gx1 = gx(east);
-  const gy0 = gy(south);
-  const gy1 = gy(north);
-  const cells = (gx1 - gx0 + 1) * (gy1 - gy0 + 1);
-  if (cells > snap.grid.size) {
-    for (let i = 0; i < snap.n; i++) candidates.push(i);
-  } else {
-    for (let a = gx0; a <= gx1; a++) {
-      for (let b = gy0; b <= gy1; b++) {
-        const list = snap.grid.get(gridKey(a, b));
-        if (!list) continue;
-        for (const i of list) if (!seen.has(i)) (seen.add(i), candidates.push(i));
+/** Generalisation cell at zoom z, tile units (z ≥ FULL_DETAIL_ZOOM: none). */
+export const cellSizeAt = (z: number) => (z <= 10 ? GENERAL_CELL * 2 : GENERAL_CELL);
+const worldScale = (z: number) => 2 ** z * TILE_EXTENT;
+const pxOf = (m: number, scale: number) => Math.round(m * scale);
+/** Whether the pixel range [lo, hi] meets tile t's buffered range on one axis. */
+const meets = (lo: number, hi: number, t: number) => hi >= t * TILE_EXTENT - TILE_BUFFER && lo <= (t + 1) * TILE_EXTENT + TILE_BUFFER;
+/** The tiles (one axis) whose buffered range meets [lo, hi]. */
+const firstTile = (lo: number) => Math.ceil((lo - TILE_EXTENT - TILE_BUFFER) / TILE_EXTENT);
+const lastTile = (hi: number) => Math.floor((hi + TILE_BUFFER) / TILE_EXTENT);
+
+function spanTags(snap: Snapshot, i: number): Record<string, unknown> {
+  const tags: Record<string, unknown> = { id: snap.ids[i], lineId: snap.lineIds[i], status: snap.statuses[i], lengthM: Math.round(snap.lengthM[i] * 10) / 10 };
+  const score = snap.score[i];
+  const harvestW = snap.harvestW[i];
+  if (!Number.isNaN(score)) tags.score = Math.round(score * 10) / 10;
+  if (!Number.isNaN(harvestW)) tags.harvestW = Math.round(harvestW * 100) / 100;
+  if (snap.perchable[i] >= 0) tags.perchable = snap.perchable[i] === 1;
+  return tags;
+}
+
+function spanFeature(snap: Snapshot, i: number, scale: number, x: number, y: number, tags = spanTags(snap, i)): VtFeature {
+  const ox = x * TILE_EXTENT;
+  const oy = y * TILE_EXTENT;
+  return {
+    type: 2,
+    geometry: [[[pxOf(snap.mx0[i], scale) - ox, pxOf(snap.my0[i], scale) - oy], [pxOf(snap.mx1[i], scale) - ox, pxOf(snap.my1[i], scale) - oy]]],
+    tags,
+  };
+}
+
+function spanMeetsTile(snap: Snapshot, i: number, scale: number, x: number, y: number) {
+  const x0 = pxOf(snap.mx0[i], scale);
+  const x1 = pxOf(snap.mx1[i], scale);
+  if (!meets(Math.min(x0, x1), Math.max(x0, x1), x)) return false;
+  const y0 = pxOf(snap.my0[i], scale);
+  const y1 = pxOf(snap.my1[i], scale);
+  return meets(Math.min(y0, y1), Math.max(y0, y1), y);
+}
+
+/** Harvest (and score) as compared when choosing a cell's representative: no assessment ranks lowest. */
+const rank = (v: number) => (Number.isNaN(v) ? -Infinity : v);
+
+/** The generalised feature of one cell: its representative span, carrying the count and the cell's best figures. */
+function cellFeature(snap: Snapshot, rep: number, count: number, maxH: number, maxS: number, scale: number, x: number, y: number): VtFeature {
+  const tags: Record<string, unknown> = { ...spanTags(snap, rep), count };
+  if (count > 1) {
+    if (maxH > -Infinity) tags.harvestW = Math.round(maxH * 100) / 100;
+    if (maxS > -Infinity) tags.score = Math.round(maxS * 10) / 10;
+  }
+  return spanFeature(snap, rep, scale, x, y, tags);
+}
+
+/** The cell key of span i at a generalised zoom: status, then the cell of its midpoint. */
+function cellKey(snap: Snapshot, i: number, scale: number, cs: number) {
+  const cx = Math.floor((pxOf(snap.mx0[i], scale) + pxOf(snap.mx1[i], scale)) / 2 / cs);
+  const cy = Math.floor((pxOf(snap.my0[i], scale) + pxOf(snap.my1[i], scale)) / 2 / cs);
+  return (STATUS_INDEX[snap.statuses[i]] ?? 7) * 2 ** 34 + (cx + 1) * 2 ** 17 + (cy + 1);
+}
+
+/**
+ * The plain path: every span (or the given candidates) looked at for this one tile. Below FULL_DETAIL_ZOOM, spans
+ * of one status whose midpoints share a cell are one feature (the best-harvesting span, ties to the first read,
+ * with the cell's count, best harvest and best score); a cell is in every tile its spans meet. The fast path below
+ * gives the same features from layers built once per data version; a test compares the two.
+ */
+function plainSpanFeatures(snap: Snapshot, z: number, x: number, y: number, filters: SpanMapFilters, candidates?: number[]): VtFeature[] {
+  const scale = worldScale(z);
+  const list = candidates ?? Array.from({ length: snap.n }, (_, i) => i);
+  const out: VtFeature[] = [];
+  if (z >= FULL_DETAIL_ZOOM) {
+    for (const i of list) if (passes(snap, i, filters) && spanMeetsTile(snap, i, scale, x, y)) out.push(spanFeature(snap, i, scale, x, y));
+    return out;
+  }
+  const cs = cellSizeAt(z);
+  const cells = new Map<number, { rep: number; count: number; maxH: number; maxS: number; meets: boolean }>();
+  for (const i of [...list].sort((a, b) => a - b)) {
+    if (!passes(snap, i, filters)) continue;
+    const key = cellKey(snap, i, scale, cs);
+    const h = rank(snap.harvestW[i]);
+    const s = rank(snap.score[i]);
+    const m = spanMeetsTile(snap, i, scale, x, y);
+    const c = cells.get(key);
+    if (!c) cells.set(key, { rep: i, count: 1, maxH: h, maxS: s, meets: m });
+    else {
+      if (h > c.maxH) c.rep = i;
+      c.maxH = Math.max(c.maxH, h);
+      c.maxS = Math.max(c.maxS, s);
+      c.count += 1;
+      c.meets ||= m;
+    }
+  }
+  for (const c of cells.values()) if (c.meets) out.push(cellFeature(snap, c.rep, c.count, c.maxH, c.maxS, scale, x, y));
+  return out;
+}
+
+/**
+ * One generalised zoom of a snapshot, built once per data version and patched on edits: every span's cell (by
+ * status and midpoint), each cell's members as a linked list, its aggregate (representative, count, best harvest
+ * and score, pixel box) and, per tile, the cells whose box meets it. A cold tile reads only its own cells.
+ */
+class GeneralLayer {
+  readonly scale: number;
+  readonly cs: number;
+  private cellOf = new Int32Array(0);
+  private next = new Int32Array(0);
+  private keys = new Map<number, number>();
+  private head: number[] = [];
+  private status: number[] = [];
+  private count: number[] = [];
+  private rep: number[] = [];
+  private maxH: number[] = [];
+  private maxS: number[] = [];
+  private box: number[] = []; // minX, minY, maxX, maxY per cell
+  private reg: number[] = []; // registered tile range tx0, ty0, tx1, ty1 per cell (tx1 < tx0: none)
+  private tiles = new Map<number, number[]>();
+  private dirty = new Set<number>();
+
+  constructor(
+    readonly z: number,
+    private readonly snap: Snapshot,
+  ) {
+    this.scale = worldScale(z);
+    this.cs = cellSizeAt(z);
+    for (let i = 0; i < snap.n; i++) this.add(i);
+    this.refresh();
+  }
+
+  private grow(n: number) {
+    if (n <= this.cellOf.length) return;
+    const size = Math.max(n, Math.ceil(this.cellOf.length * 1.5), 1024);
+    const cellOf = new Int32Array(size).fill(-1);
+    cellOf.set(this.cellOf);
+    const next = new Int32Array(size).fill(-1);
+    next.set(this.next);
+    this.cellOf = cellOf;
+    this.next = next;
+  }
+
+  /** Links span i into its cell (after the snapshot entry is written). */
+  add(i: number) {
+    this.grow(i + 1);
+    const key = cellKey(this.snap, i, this.scale, this.cs);
+    let c = this.keys.get(key);
+    if (c === undefined) {
+      c = this.head.length;
+      this.keys.set(key, c);
+      this.head.push(-1);
+      this.status.push(STATUS_INDEX[this.snap.statuses[i]] ?? 7);
+      this.count.push(0);
+      this.rep.push(-1);
+      this.maxH.push(-Infinity);
+      this.maxS.push(-Infinity);
+      this.box.push(0, 0, 0, 0);
+      this.reg.push(0, 0, -1, -1);
+    }
+    this.cellOf[i] = c;
+    this.next[i] = this.head[c];
+    this.head[c] = i;
+    this.dirty.add(c);
+  }
+
+  /** Unlinks span i from its cell (before the snapshot entry changes). */
+  remove(i: number) {
+    if (i >= this.cellOf.length) return;
+    const c = this.cellOf[i];
+    if (c < 0) return;
+    if (this.head[c] === i) this.head[c] = this.next[i];
+    else {
+      let p = this.head[c];
+      while (p >= 0 && this.next[p] !== i) p = this.next[p];
+      if (p >= 0) this.next[p] = this.next[i];
+    }
+    this.cellOf[i] = -1;
+    this.next[i] = -1;
+    this.dirty.add(c);
+  }
+
+  /** Recomputes the cells changed since the last refresh and files them under the tiles they now meet. */
+  refresh() {
+    if (this.dirty.size === 0) return;
+    const { snap, scale } = this;
+    const max = 2 ** this.z - 1;
+    for (const c of this.dirty) {
+      let count = 0;
+      let rep = -1;
+      let maxH = -Infinity;
+      let maxS = -Infinity;
+      let minX = Infinity;
+      let minY = Infinity;
+      let maxX = -Infinity;
+      let maxY = -Infinity;
+      for (let i = this.head[c]; i >= 0; i = this.next[i]) {
+        count++;
+        const h = rank(snap.harvestW[i]);
+        if (rep < 0 || h > maxH || (h === maxH && i < rep)) rep = i;
+        maxH = Math.max(maxH, h);
+        maxS = Math.max(maxS, rank(snap.score[i]));
+        const x0 = pxOf(snap.mx0[i], scale);
+        const x1 = pxOf(snap.mx1[i], scale);
+        const y0 = pxOf(snap.my0[i], scale);
+        const y1 = pxOf(snap.my1[i], scale);
+        minX = Math.min(minX, x0, x1);
+        maxX = Math.max(maxX, x0, x1);
+        minY = Math.min(minY, y0, y1);
+        maxY = Math.max(maxY, y0, y1);
+      }
+      this.count[c] = count;
+      this.rep[c] = rep;
+      this.maxH[c] = maxH;
+      this.maxS[c] = maxS;
+      if (count === 0) continue;
+      this.box[4 * c] = minX;
+      this.box[4 * c + 1] = minY;
+      this.box[4 * c + 2] = maxX;
+      this.box[4 * c + 3] = maxY;
+      const tx0 = Math.max(0, firstTile(minX));
+      const ty0 = Math.max(0, firstTile(minY));
+      const tx1 = Math.min(max, lastTile(maxX));
+      const ty1 = Math.min(max, lastTile(maxY));
+      const r = 4 * c;
+      const had = this.reg[r + 2] >= this.reg[r];
+      for (let tx = tx0; tx <= tx1; tx++) {
+        for (let ty = ty0; ty <= ty1; ty++) {
+          if (had && tx >= this.reg[r] && tx <= this.reg[r + 2] && ty >= this.reg[r + 1] && ty <= this.reg[r + 3]) continue;
+          const key = tx * 2 ** 22 + ty;
+          const list = this.tiles.get(key);
+          if (list) list.push(c);
+          else this.tiles.set(key, [c]);
+        }
+      }
+      if (had) {
+        this.reg[r] = Math.min(this.reg[r], tx0);
+        this.reg[r + 1] = Math.min(this.reg[r + 1], ty0);
+        this.reg[r + 2] = Math.max(this.reg[r + 2], tx1);
+        this.reg[r + 3] = Math.max(this.reg[r + 3], ty1);
+      } else {
+        this.reg[r] = tx0;
+        this.reg[r + 1] = ty0;
+        this.reg[r + 2] = tx1;
+        this.reg[r + 3] = ty1;
       }
     }
+    this.dirty.clear();
   }
 
-  const spans: VtFeature[] = [];
-  const general = z < FULL_DETAIL_ZOOM;
-  const buckets = new Map<number, { feature: VtFeature; harvestW: number; score: number; count: number }>();
-  const cellSize = z <= 10 ? GENERAL_CELL * 2 : GENERAL_CELL;
-  for (const i of candidates) {
-    const minLon = Math.min(snap.lon0[i], snap.lon1[i]);
-    const maxLon = Math.max(snap.lon0[i], snap.lon1[i]);
-    const minLat = Math.min(snap.lat0[i], snap.lat1[i]);
-    const maxLat = Math.max(snap.lat0[i], snap.lat1[i]);
-    if (maxLon < west || minLon > east || maxLat < south || minLat > north) continue;
-    if (filtered && !passes(snap, i, filters)) continue;
-    const x0 = px(snap.lon0[i]);
-    const y0 = py(snap.lat0[i]);
-    const x1 = px(snap.lon1[i]);
-    const y1 = py(snap.lat1[i]);
-    const tags: Record<string, unknown> = { id: snap.ids[i], lineId: snap.lineIds[i], status: snap.statuses[i], lengthM: Math.round(snap.lengthM[i] * 10) / 10 };
-    const score = snap.score[i];
-    const harvestW = snap.harvestW[i];
-    if (!Number.isNaN(score)) tags.score = Math.round(score * 10) / 10;
-    if (!Number.isNaN(harvestW)) tags.harvestW = Math.round(harvestW * 100) / 100;
-    if (snap.perchable[i] >= 0) tags.perchable = snap.perchable[i] === 1;
-    const feature: VtFeature = { type: 2, geometry: [[[x0, y0], [x1, y1]]], tags };
-    if (!general) {
-      spans.push(feature);
-      continue;
+  /** The generalised features of tile (x, y); `status` keeps the cells of that status only. */
+  features(x: number, y: number, status?: string): VtFeature[] {
+    this.refresh();
+    const only = status ? (STATUS_INDEX[status] ?? -1) : -1;
+    const out: VtFeature[] = [];
+    for (const c of this.tiles.get(x * 2 ** 22 + y) ?? []) {
+      if (this.count[c] === 0 || (only >= 0 && this.status[c] !== only)) continue;
+      // A cell once filed here may have moved off since (an edit): its box decides.
+      if (!meets(this.box[4 * c], this.box[4 * c + 2], x) || !meets(this.box[4 * c + 1], this.box[4 * c + 3], y)) continue;
+      out.push(cellFeature(this.snap, this.rep[c], this.count[c], this.maxH[c], this.maxS[c], this.scale, x, y));
     }
-    // Generalised: per status and cell one representative span carrying the best harvest and score of its cell,
-    // so the client's minimum-harvest / minimum-score filters keep every cell that has a qualifying span.
-    // (A line filter is applied above, before this, when the tile URL carries it.)
-    const cell = (STATUS_INDEX[snap.statuses[i]] ?? 7) * 1e8 + (Math.floor((x0 + x1) / 2 / cellSize) + 1000) * 1e4 + (Math.floor((y0 + y1) / 2 / cellSize) + 1000);
-    const b = buckets.get(cell);
-    const h = Number.isNaN(harvestW) ? -Infinity : harvestW;
-    const s = Number.isNaN(score) ? -Infinity : score;
-    if (!b) buckets.set(cell, { feature, harvestW: h, score: s, count: 1 });
-    else {
-      if (h > b.harvestW) b.feature = feature;
-      b.harvestW = Math.max(b.harvestW, h);
-      b.score = Math.max(b.score, s);
-      b.count += 1;
-    }
+    return out;
   }
-  for (const b of buckets.values()) {
-    const tags: Record<string, unknown> = { ...b.feature.tags, count: b.count };
-    if (b.count > 1) {
-      if (b.harvestW > -Infinity) tags.harvestW = Math.round(b.harvestW * 100) / 100;
-      if (b.score > -Infinity) tags.score = Math.round(b.score * 10) / 10;
-    }
-    spans.push({ ...b.feature, tags });
-  }
+}
 
+/** The snapshot's layer for a generalised zoom, built on first use. */
+function layerOf(snap: Snapshot, z: number, stats?: TileStats): GeneralLayer {
+  let layer = snap.layers[z];
+  if (!layer) {
+    snap.layers[z] = layer = new GeneralLayer(z, snap);
+    if (stats) stats.layerBuilds += 1;
+  }
+  return layer;
+}
+
+/** Spans whose box may meet the tile, from the snapshot's grid (every span when the tile covers most of it). */
+function gridCandidates(snap: Snapshot, z: number, x: number, y: number): number[] {
+  const pad = TILE_BUFFER / TILE_EXTENT;
+  // One grid cell more on each side: the pixel test decides, the grid only narrows.
+  const gx0 = gx(tileLon(x - pad, z)) - 1;
+  const gx1 = gx(tileLon(x + 1 + pad, z)) + 1;
+  const gy0 = gy(tileLat(y + 1 + pad, z)) - 1;
+  const gy1 = gy(tileLat(y - pad, z)) + 1;
+  const out: number[] = [];
+  if ((gx1 - gx0 + 1) * (gy1 - gy0 + 1) > snap.grid.size) {
+    for (let i = 0; i < snap.n; i++) out.push(i);
+    return out;
+  }
+  const seen = new Set<number>();
+  for (let a = gx0; a <= gx1; a++) {
+    for (let b = gy0; b <= gy1; b++) {
+      const list = snap.grid.get(gridKey(a, b));
+      if (!list) continue;
+      for (const i of list) if (!seen.has(i)) (seen.add(i), out.push(i));
+    }
+  }
+  return out;
+}
+
+/** The fast path: generalised zooms from their layer, full-detail zooms from the grid; a line filter reads only that line. */
+function fastSpanFeatures(snap: Snapshot, z: number, x: number, y: number, filters: SpanMapFilters, stats?: TileStats): VtFeature[] {
+  const thresholds = filters.minHarvestW !== undefined || filters.minScore !== undefined;
+  if (filters.lineId) return plainSpanFeatures(snap, z, x, y, filters, snap.lineSpans.get(filters.lineId) ?? []);
+  // Thresholds in the tile URL (the map itself filters them on the client) generalise after filtering: plain path.
+  if (z < FULL_DETAIL_ZOOM) return thresholds ? plainSpanFeatures(snap, z, x, y, filters) : layerOf(snap, z, stats).features(x, y, filters.status);
+  return plainSpanFeatures(snap, z, x, y, filters, gridCandidates(snap, z, x, y));
+}
+
+function buildTile(snap: Snapshot, z: number, x: number, y: number, filters: SpanMapFilters = {}, plain = false, stats?: TileStats): Uint8Array {
+  const spans = plain ? plainSpanFeatures(snap, z, x, y, filters) : fastSpanFeatures(snap, z, x, y, filters, stats);
   const layers: Record<string, { features: VtFeature[] }> = { spans: { features: spans } };
   if (z >= STRUCTURE_MIN_ZOOM) {
+    const pad = TILE_BUFFER / TILE_EXTENT;
+    const west = tileLon(x - pad, z);
+    const east = tileLon(x + 1 + pad, z);
+    const north = tileLat(y - pad, z);
+    const south = tileLat(y + 1 + pad, z);
+    const px = (lon: number) => Math.round((mercX(lon) * 2 ** z - x) * TILE_EXTENT);
+    const py = (lat: number) => Math.round((mercY(lat) * 2 ** z - y) * TILE_EXTENT);
     const structures: VtFeature[] = [];
-    for (let a = gx0; a <= gx1; a++) {
-      for (let b = gy0; b <= gy1; b++) {
+    for (let a = gx(west); a <= gx(east); a++) {
+      for (let b = gy(south); b <= gy(north); b++) {
         for (const i of snap.structureGrid.get(gridKey(a, b)) ?? []) {
           const s = snap.structures[i];
           if (s.lon < west || s.lon > east || s.lat < south || s.lat > north) continue;
