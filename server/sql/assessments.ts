@@ -79,6 +79,27 @@ export async function deleteOrphanAssessments(em: EntityManager): Promise<void> 
   });
 }
 
+/** Which pairs of the given spans are stored and whether each perches (no JSON read), in the stored order. */
+export async function readPerchFlags(
+  em: EntityManager,
+  spanIds: readonly string[],
+  only: { harvesterIds: readonly string[]; droneIds: readonly string[] },
+): Promise<{ spanId: string; perchable: boolean }[]> {
+  const out: { spanId: string; perchable: boolean }[] = [];
+  const { harvesterIds: h, droneIds: d } = only;
+  if (!spanIds.length || !h.length || !d.length) return out;
+  for (let i = 0; i < spanIds.length; i += DELETE_CHUNK) {
+    const ids = spanIds.slice(i, i + DELETE_CHUNK);
+    const rows = await sql.all<{ span_id: string; perchable: unknown }>(
+      em,
+      `select span_id, perchable from assessments where span_id in (${marks(ids.length)}) and harvester_profile_id in (${marks(h.length)}) and drone_profile_id in (${marks(d.length)}) order by id`,
+      [...ids, ...h, ...d],
+    );
+    for (const r of rows) out.push({ spanId: r.span_id, perchable: !!r.perchable });
+  }
+  return out;
+}
+
 /** The stored columns a view reads (of the inputs only their load source), decoded to the entity's types; no identity map. */
 export type AssessmentSummaryRow = Omit<Assessment, 'id' | 'inputs'> & { inputs: { loadSource?: unknown } };
 

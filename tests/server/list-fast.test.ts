@@ -8,6 +8,8 @@ import { ensureAssessmentDefaults, defaultPair } from '../../server/modules/asse
 import { assessmentForSpans, assessmentView, assessSpansBulk } from '../../server/modules/assessment/assessment.service.ts';
 import { Assessment } from '../../server/modules/assessment/assessment.entity.ts';
 import { sql } from '../../server/sql/query.ts';
+import { activePairs, perchStandings, standingOf } from '../../server/modules/assessment/perchable.ts';
+import { listSpans, type SpanFilter } from '../../server/modules/inventory/spans.query.ts';
 
 let t: TestApp;
 let planner: Client;
@@ -82,5 +84,58 @@ describe('span views', () => {
     const expected = new Map(ids.map((id) => [id, null as unknown]));
     for (const r of rows) expected.set(r.spanId, assessmentView(r));
     expect(await assessmentForSpans(t.orm.em.fork(), ids)).toEqual(expected);
+  });
+});
+
+describe('span list pages', () => {
+  const filter = (over: Partial<SpanFilter> = {}): SpanFilter => ({ status: ['approved'], sort: '-updatedAt', page: 2, pageSize: 20, ...over });
+  const fresh = async (f: SpanFilter) => JSON.parse(JSON.stringify(await listSpans(t.orm.em.fork(), f)));
+
+  it('when a page is asked again and after writes, then it always equals the page read fresh from the database', async () => {
+    const url = '/api/spans?status=approved&sort=-updatedAt&page=2&pageSize=20';
+    const first = await planner.get(url);
+    expect(first.status).toBe(200);
+    expect(first.body).toEqual(await fresh(filter()));
+    expect((await planner.get(url)).body).toEqual(first.body); // served again, same answer
+    // A span of the page changes: the page read next shows it.
+    const id = first.body.items[3].id as string;
+    await sql.run(t.orm.em.fork(), 'update spans set clearance_m = 42.5 where id = ?', [id]);
+    const edited = await planner.get(url);
+    expect(edited.body.items.find((s: { id: string }) => s.id === id).clearanceM).toBe(42.5);
+    expect(edited.body).toEqual(await fresh(filter()));
+    // Assessments only change (a rescore batch): the page's figures follow.
+    await sql.run(t.orm.em.fork(), 'update assessments set score = score / 2 where span_id = ?', [id]);
+    const rescored = await planner.get(url);
+    expect(rescored.body).toEqual(await fresh(filter()));
+    expect(rescored.body.items.find((s: { id: string }) => s.id === id).assessment.score).not.toBe(edited.body.items.find((s: { id: string }) => s.id === id).assessment.score);
+    await assessSpansBulk(t.orm.em.fork(), [id]);
+    expect((await planner.get(url)).body).toEqual(await fresh(filter()));
+  });
+
+  it('when ten clients ask for pages at once, then each gets the page read fresh', async () => {
+    const asked = Array.from({ length: 10 }, (_, i) => filter({ page: 1 + (i % 4), status: i % 2 ? ['approved'] : ['submitted', 'returned'] }));
+    const bodies = await Promise.all(asked.map((f) => planner.get(`/api/spans?status=${f.status!.join(',')}&sort=-updatedAt&page=${f.page}&pageSize=20`).then((r) => r.body)));
+    for (let i = 0; i < asked.length; i++) expect(bodies[i]).toEqual(await fresh(asked[i]));
+  });
+
+  it('when standings are read the lean way, then they equal the rule applied to every stored row', async () => {
+    const em = t.orm.em.fork();
+    const ids = (await sql.all<{ id: string }>(em, 'select id from spans order by random() limit 200')).map((r) => r.id);
+    const { harvesterIds, droneIds, names } = await activePairs(em);
+    const rows = await em.find(Assessment, { spanId: { $in: ids }, harvesterProfileId: { $in: harvesterIds }, droneProfileId: { $in: droneIds } }, { orderBy: { id: 'asc' } });
+    const lean = await perchStandings(t.orm.em.fork(), ids);
+    let blocked = 0;
+    for (const id of ids) {
+      const own = rows.filter((r) => r.spanId === id);
+      if (!own.length) {
+        expect(lean.has(id)).toBe(false);
+        continue;
+      }
+      const plain = standingOf(own, names);
+      if (!plain.perchable) blocked++;
+      // A perchable span lists no failing gates (nothing reads them); otherwise every failing gate and pair.
+      expect(lean.get(id)).toEqual(plain.perchable ? { ...plain, failing: [] } : plain);
+    }
+    expect(blocked).toBeGreaterThan(0); // both kinds are in the sample
   });
 });

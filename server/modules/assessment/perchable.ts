@@ -8,7 +8,7 @@ import { Assessment } from './assessment.entity.ts';
 import { assessSpans } from './assessment.service.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { sql } from '../../sql/query.ts';
-import { readAssessmentSummaries } from '../../sql/assessments.ts';
+import { readAssessmentSummaries, readPerchFlags } from '../../sql/assessments.ts';
 
 /** The gate names a person reads (messages, the review desk); the ampacity flag is listed but never blocks. */
 export const GATE_WORDS: Record<string, string> = {
@@ -103,13 +103,14 @@ export interface PerchStanding {
   perchable: boolean;
   /** Active pairs assessed. */
   pairCount: number;
-  /** Blocking gates failed by a pair; when the span is not perchable every pair fails at least one of them. */
+  /** When the span is not perchable: the blocking gates each pair fails (every pair fails at least one). Empty when it is perchable. */
   failing: GateFailure[];
 }
 
 type Row = Pick<Assessment, 'spanId' | 'harvesterProfileId' | 'droneProfileId' | 'perchable' | 'result'>;
 
-function standingOf(rows: Row[], names: Map<string, string>): PerchStanding {
+/** A span's standing from all its stored rows of active pairs (the plain rule; perchStandings reads less). */
+export function standingOf(rows: Row[], names: Map<string, string>): PerchStanding {
   const failing = new Map<string, GateFailure>();
   for (const row of rows) {
     const pair = `${names.get(row.harvesterProfileId) ?? row.harvesterProfileId} with ${names.get(row.droneProfileId) ?? row.droneProfileId}`;
@@ -123,7 +124,7 @@ function standingOf(rows: Row[], names: Map<string, string>): PerchStanding {
   return { perchable: rows.some((r) => r.perchable), pairCount: rows.length, failing: [...failing.values()] };
 }
 
-async function activePairs(em: EntityManager) {
+export async function activePairs(em: EntityManager) {
   const [harvesters, drones] = await Promise.all([em.find(HarvesterProfile, { active: true }), em.find(DroneProfile, { active: true })]);
   const names = new Map<string, string>([...harvesters, ...drones].map((p) => [p.id, p.name]));
   return { harvesterIds: harvesters.map((h) => h.id), droneIds: drones.map((d) => d.id), names };
@@ -134,14 +135,24 @@ export async function perchStandings(em: EntityManager, spanIds: readonly string
   const out = new Map<string, PerchStanding>();
   if (!spanIds.length) return out;
   const { harvesterIds, droneIds, names } = await activePairs(em);
-  const bySpan = new Map<string, Row[]>();
-  if (harvesterIds.length && droneIds.length) {
-    // Only the columns a standing reads (no inputs), without the identity map.
-    for (const r of await readAssessmentSummaries(em, spanIds, { harvesterIds, droneIds })) bySpan.set(r.spanId, [...(bySpan.get(r.spanId) ?? []), r]);
+  if (!harvesterIds.length || !droneIds.length) return out;
+  // First which pairs perch (no JSON): a span that perches for some pair has no failing gates to list, and a pair
+  // that perches fails no blocking gate; only the spans that perch for no pair have their gates read.
+  const flags = new Map<string, { pairs: number; perchable: boolean }>();
+  for (const r of await readPerchFlags(em, spanIds, { harvesterIds, droneIds })) {
+    const f = flags.get(r.spanId) ?? { pairs: 0, perchable: false };
+    f.pairs++;
+    f.perchable ||= r.perchable;
+    flags.set(r.spanId, f);
   }
+  const blocked = [...flags].filter(([, f]) => !f.perchable).map(([id]) => id);
+  const bySpan = new Map<string, Row[]>();
+  // Only the columns a standing reads (no inputs), without the identity map.
+  for (const r of await readAssessmentSummaries(em, blocked, { harvesterIds, droneIds })) bySpan.set(r.spanId, [...(bySpan.get(r.spanId) ?? []), r]);
   for (const id of spanIds) {
-    const rows = bySpan.get(id);
-    if (rows?.length) out.set(id, standingOf(rows, names));
+    const f = flags.get(id);
+    if (!f) continue;
+    out.set(id, f.perchable ? { perchable: true, pairCount: f.pairs, failing: [] } : standingOf(bySpan.get(id) ?? [], names));
   }
   return out;
 }

@@ -27,7 +27,7 @@ import { Span } from './span.entity.ts';
 import { StaleVersionError, conductorCatalogueView, hazardKindView, lineView, spanViewOf, structureView } from './inventory.service.ts';
 import { createLine, createStructure, lineCounts, updateLine, updateStructure } from './lines.service.ts';
 import { createSpan, getSpanOr404, transitionSpan, updateSpan, type TransitionName } from './spans.service.ts';
-import { listSpans } from './spans.query.ts';
+import { listSpansJson } from './spans.query.ts';
 import { importExportRouter } from '../import-export/import-export.router.ts';
 import { assessmentReady } from '../assessment/rescore.ts';
 
@@ -108,8 +108,8 @@ export function inventoryRouter(ctx: AppContext) {
   spans.get('/', 'signed-in', async (req, res) => {
     const q = parse(spanListQuerySchema, req.query);
     const user = currentUser(req);
-    res.json(
-      await listSpans(req.em, {
+    res.type('application/json').send(
+      await listSpansJson(req.em, {
         status: q.status,
         lineId: q.lineId || undefined,
         surveyorId: q.mine ? user.id : q.surveyorId || undefined,
