@@ -184,41 +184,58 @@ describe('photo journey', () => {
     await context.close();
   }, 180_000);
 
-  // Skipped: it passes alone and with its file, but in the full `npm test` run the page goes to the field queue
-  // instead of staying on the saved span (seen twice on fresh clones; cause not found yet, see the closing note).
-  it.skip('when the photo picked before a first submit is refused by the server, then the form stays on the saved span and says so beside the photo', async () => {
-    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
-    await h.signIn(page, 'surveyor');
-    await page.waitForURL((u) => u.pathname === '/field');
-    const headers = { Origin: h.baseUrl };
-    const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
-    const line = await post('/api/lines', { name: `Photo refused feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
-    const a = await post('/api/structures', { lineId: line.id, lat: -30.22, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
-    const b = await post('/api/structures', { lineId: line.id, lat: -30.22, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
-    // Named like a photo, but not an image: the server judges by content and refuses it (415).
-    const notImage = path.join(tmp, 'not-a-photo.jpg');
-    fs.writeFileSync(notImage, 'this is a text file, not a picture\n'.repeat(50));
+  // The refusal may come before or after the submit's own answer (on a busy server the photo's 415 often wins):
+  // either way the form must hear of it. The browser holds back whichever request must go second.
+  for (const order of ['after', 'before'] as const) {
+    it(`when the photo picked before a first submit is refused by the server (the refusal arriving ${order} the submit's answer), then the form stays on the saved span and says so beside the photo`, async () => {
+      const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
+      await h.signIn(page, 'surveyor');
+      await page.waitForURL((u) => u.pathname === '/field');
+      const headers = { Origin: h.baseUrl };
+      const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
+      const line = await post('/api/lines', { name: `Photo refused feeder ${order} ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
+      const a = await post('/api/structures', { lineId: line.id, lat: -30.22, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
+      const b = await post('/api/structures', { lineId: line.id, lat: -30.22, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
+      // Named like a photo, but not an image: the server judges by content and refuses it (415).
+      const notImage = path.join(tmp, 'not-a-photo.jpg');
+      fs.writeFileSync(notImage, 'this is a text file, not a picture\n'.repeat(50));
 
-    await page.goto('/field/spans/new');
-    await page.getByLabel('Line', { exact: true }).selectOption(line.id);
-    await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
-    await page.locator('#fromStructureId').selectOption(a.id);
-    await page.locator('#toStructureId').selectOption(b.id);
-    await page.getByLabel('Code word').selectOption('Hawk');
-    await page.getByLabel(/^Ground clearance at the perch point/).fill('9.5');
-    await page.getByLabel('Terrain under the span').selectOption('road');
-    await page.getByTestId('photo-input').setInputFiles(notImage);
-    await page.getByTestId('photo-held').waitFor();
-    await page.getByRole('button', { name: 'Submit for review' }).click();
-    await page.waitForURL((u) => /^\/field\/spans\/[^/]+\/edit$/.test(u.pathname), { timeout: 30_000 });
-    await page.getByText('Span submitted for review, but a photo was not uploaded; see the photo below.').waitFor();
-    const row = page.getByTestId('photo-upload-row');
-    expect(await row.getAttribute('data-status')).toBe('failed');
-    await row.getByRole('alert').waitFor();
-    const listed = (await (await page.request.get(`/api/spans?lineId=${line.id}`)).json()).items as { status: string }[];
-    expect(listed.map((s) => s.status)).toEqual(['submitted']);
-    await context.close();
-  }, 180_000);
+      await page.goto('/field/spans/new');
+      await page.getByLabel('Line', { exact: true }).selectOption(line.id);
+      await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
+      await page.locator('#fromStructureId').selectOption(a.id);
+      await page.locator('#toStructureId').selectOption(b.id);
+      await page.getByLabel('Code word').selectOption('Hawk');
+      await page.getByLabel(/^Ground clearance at the perch point/).fill('9.5');
+      await page.getByLabel('Terrain under the span').selectOption('road');
+      await page.getByTestId('photo-input').setInputFiles(notImage);
+      await page.getByTestId('photo-held').waitFor();
+      const answered: string[] = [];
+      page.on('response', (r) => {
+        if (r.request().method() === 'POST' && /\/api\/(photos|spans\/[^/]+\/submit)$/.test(new URL(r.url()).pathname)) answered.push(r.url().endsWith('/submit') ? 'submit' : `photo ${r.status()}`);
+      });
+      // The upload starts once the draft exists, while the submit is on its way: one of the two is let through
+      // to the server only after the other has been answered.
+      const [first, second] = order === 'before' ? ['photo 415', '**/api/spans/*/submit'] : ['submit', '**/api/photos'];
+      await page.route(second, async (route) => {
+        if (route.request().method() === 'POST') await expect.poll(() => answered.includes(first), { timeout: 20_000 }).toBe(true);
+        await route.continue();
+      });
+      await page.getByRole('button', { name: 'Submit for review' }).click();
+      await page.waitForURL((u) => /^\/field\/spans\/[^/]+\/edit$/.test(u.pathname), { timeout: 30_000 });
+      await page.getByText('Span submitted for review, but a photo was not uploaded; see the photo below.').waitFor();
+      const row = page.getByTestId('photo-upload-row');
+      expect(await row.getAttribute('data-status')).toBe('failed');
+      await row.getByRole('alert').waitFor();
+      expect(answered).toEqual(order === 'before' ? ['photo 415', 'submit'] : ['submit', 'photo 415']);
+      expect(new URL(page.url()).pathname).not.toBe('/field');
+      // Nothing went to the field outbox: the refusal is the server's answer, not a lost connection.
+      expect(await page.getByTestId('waiting-count').count()).toBe(0);
+      const listed = (await (await page.request.get(`/api/spans?lineId=${line.id}`)).json()).items as { status: string }[];
+      expect(listed.map((s) => s.status)).toEqual(['submitted']);
+      await context.close();
+    }, 180_000);
+  }
 
   it('when a photo has no GPS, then the surveyor places it by clicking the map and it is marked as placed by hand', async () => {
     const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1100 } });

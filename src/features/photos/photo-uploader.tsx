@@ -54,15 +54,29 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
     setItems((all) => all.map((i) => (i.key === key ? { ...i, ...change } : i)));
   }, []);
 
-  // Each upload that follows a first save holds the page (the form waits for it before leaving).
+  // Each upload that follows a first save holds the page (the form waits for it before leaving). A failed one
+  // stays held, so the form learns of it even when the refusal comes before the save's own answer, until the
+  // surveyor tries it again or removes it.
   const waiters = useRef(new Map<string, (ok: boolean) => void>());
+  const failedHolds = useRef(new Map<string, () => void>());
+  const forgets = useRef(new Map<string, () => void>());
   const hold = useCallback((key: string) => {
     if (waiters.current.has(key)) return;
-    holdPage(new Promise<boolean>((resolve) => waiters.current.set(key, resolve)));
+    const work = new Promise<boolean>((resolve) => waiters.current.set(key, resolve));
+    forgets.current.set(key, holdPage(work));
   }, []);
   const release = useCallback((key: string, ok = true) => {
-    waiters.current.get(key)?.(ok);
+    const resolve = waiters.current.get(key);
+    if (!resolve) return;
     waiters.current.delete(key);
+    const forget = forgets.current.get(key);
+    forgets.current.delete(key);
+    if (!ok && forget) failedHolds.current.set(key, forget);
+    resolve(ok);
+  }, []);
+  const forgetFailure = useCallback((key: string) => {
+    failedHolds.current.get(key)?.();
+    failedHolds.current.delete(key);
   }, []);
 
   const refresh = useCallback(() => {
@@ -123,9 +137,11 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
   useEffect(() => {
     const map = handles.current;
     const held = waiters.current;
+    const failed = failedHolds.current;
     return () => {
       map.forEach((h) => h.abort());
       held.forEach((resolve) => resolve(true));
+      failed.forEach((forget) => forget());
     };
   }, []);
 
@@ -245,10 +261,14 @@ export function PhotoUploader({ spanId = null, onUploaded }: { spanId?: string |
               key={item.key}
               item={item}
               spanId={spanId}
-              onRetry={() => patch(item.key, { status: 'queued', progress: 0, error: null })}
+              onRetry={() => {
+                forgetFailure(item.key);
+                patch(item.key, { status: 'queued', progress: 0, error: null });
+              }}
               onRemove={() => {
                 handles.current.get(item.key)?.abort();
                 release(item.key);
+                forgetFailure(item.key);
                 setItems((all) => all.filter((i) => i.key !== item.key));
               }}
               onLink={(target) => item.photo && void link(item.key, item.photo.id, target)}
