@@ -8,7 +8,7 @@ const bin = postgresBinDir();
 if (!bin) console.log('PostgreSQL run skipped: no initdb/pg_ctl found (apt-get install -y postgresql-15, or set PG_BIN).');
 
 // Bounded on purpose: the files whose SQL differs most between the dialects (list filters and sorting, import,
-// assessments and bulk rescoring, zones, sign-in and accounts, idempotency keys, the audit's JSON, tiles, mission records).
+// assessments and bulk rescoring, zones, sign-in and accounts, idempotency keys, the audit's JSON, tiles, mission records, durable jobs through pg-boss).
 export const POSTGRES_API_TESTS = [
   'tests/postgres/**/*.pg.test.ts',
   'tests/server/inventory-list.test.ts',
@@ -23,6 +23,7 @@ export const POSTGRES_API_TESTS = [
   'tests/server/audit.test.ts',
   'tests/server/map.test.ts',
   'tests/server/missions-records.test.ts',
+  'tests/server/jobs.test.ts',
 ];
 
 export default defineConfig({

@@ -18,9 +18,10 @@ import { PhotoSchema } from './modules/photos/photo.entity.ts';
 import { LoadSeriesDaySchema, LoadSeriesSchema } from './modules/evidence/load-series.entity.ts';
 import { FlightRecordSchema, PerchEventSchema } from './modules/evidence/flight-record.entity.ts';
 import { PendingWorkSchema } from './modules/jobs/pending-work.entity.ts';
+import { JobSchema } from './modules/jobs/job.entity.ts';
 import { LinePermissionSchema } from './modules/line-permissions/line-permission.entity.ts';
 import { RateLimitHitSchema } from './http/rate-limit-hits.entity.ts';
 import { IdempotencyKeySchema } from './modules/idempotency/idempotency-key.entity.ts';
 import { MissionSchema, MissionPerchSchema } from './modules/missions/mission.entity.ts';
 
-export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema, FlightRecordSchema, PerchEventSchema, PendingWorkSchema, IdempotencyKeySchema, LinePermissionSchema, MissionSchema, MissionPerchSchema, RateLimitHitSchema];
+export const entities = [LineSchema, StructureSchema, SpanSchema, HazardSchema, HazardKindSchema, ConductorTypeSchema, UserSchema, CrewSchema, SessionSchema, AuditEntrySchema, HarvesterProfileSchema, DroneProfileSchema, BenchTestSchema, ScoringSettingsSchema, AssessmentSchema, ZoneSchema, OutboxMessageSchema, InvitationSchema, PasswordResetSchema, PhotoSchema, LoadSeriesDaySchema, LoadSeriesSchema, FlightRecordSchema, PerchEventSchema, PendingWorkSchema, JobSchema, IdempotencyKeySchema, LinePermissionSchema, MissionSchema, MissionPerchSchema, RateLimitHitSchema];

@@ -6,6 +6,7 @@ import { Migration20261203124918 } from './Migration20261203124918.ts';
 import { Migration20261203125243 } from './Migration20261203125243.ts';
 import { Migration20261203131056 } from './Migration20261203131056.ts';
 import { Migration20261203142915 } from './Migration20261203142915.ts';
+import { Migration20261203170800 } from './Migration20261203170800.ts';
 
 export const postgresMigrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203113808', class: Migration20261203113808 },
@@ -13,4 +14,5 @@ export const postgresMigrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203125243', class: Migration20261203125243 },
   { name: 'Migration20261203131056', class: Migration20261203131056 },
   { name: 'Migration20261203142915', class: Migration20261203142915 },
+  { name: 'Migration20261203170800', class: Migration20261203170800 },
 ];

@@ -9,13 +9,14 @@ import { registerSpanListener, type SpanChange } from '../inventory/inventory.se
 import { registerZoneListener, type ZoneChange } from '../zones/zone.service.ts';
 import { calcRouter } from '../calc/calc.router.ts';
 import { jobsRouter } from '../jobs/jobs.router.ts';
-import { enqueueDurable, listPending } from '../jobs/pending-work.ts';
+import { clearPending, listPending } from '../jobs/pending-work.ts';
+import { jobRunnerFor } from '../jobs/job-runner.ts';
 import { METHOD_VERSION } from '#shared/engineering/assessment.ts';
-import { assessSpansBulk } from './assessment.service.ts';
+import { assessSpansBulk, countSpans } from './assessment.service.ts';
 import { profilesRouter } from './profiles.router.ts';
 import { scoringSettingsRouter } from './settings.router.ts';
 import { spanAssessmentRouter } from './span-assessment.router.ts';
-import { assessmentReady, rescoreSpansNow, startRescore } from './rescore.ts';
+import { assessmentReady, registerRescoreWork, rescoreSpansNow, startRescore } from './rescore.ts';
 import { sql } from '../../sql/query.ts';
 
 export { assessmentForSpans, assessSpans, assessSpansBulk, defaultPairIds, registerAssessedListener } from './assessment.service.ts';
@@ -42,29 +43,44 @@ export async function spansNear(em: EntityManager, polygons: Polygon[]): Promise
   return [...ids];
 }
 
-/** Rescores a list of spans in the background (a line's load changed, a zone moved, an import landed); recorded for a restart. */
-function startRescoreOf(ctx: AppContext, reason: string, spanIds: string[], key = `rescore:spans:${randomUUID()}`) {
-  return enqueueDurable(ctx, {
-    key,
-    kind: 'rescore-spans',
-    reason,
-    payload: { spanIds },
-    work: async (progress) => {
-      await assessmentReady(ctx);
-      const em = ctx.orm.em.fork();
-      progress.setTotal(spanIds.length);
-      await assessSpansBulk(em, spanIds, { onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
-    },
+/** Rescores a list of spans in the background (a line's load changed, a zone moved, an import landed), as a durable job. */
+function startRescoreOf(ctx: AppContext, reason: string, spanIds: string[]) {
+  return jobRunnerFor(ctx).enqueue({ kind: 'rescore-spans', reason, payload: { spanIds } });
+}
+
+function registerRescoreOfWork(ctx: AppContext) {
+  jobRunnerFor(ctx).register('rescore-spans', async (job: { payload: { spanIds: string[] } }, progress) => {
+    const { spanIds } = job.payload;
+    await assessmentReady(ctx);
+    const em = ctx.orm.em.fork();
+    progress.setTotal(spanIds.length);
+    await assessSpansBulk(em, spanIds, { onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
   });
 }
 
-/** Rescoring a crash or a shutdown interrupted (its record is still in pending_work) runs again at start-up. */
+/** The daily pass: survey ages and zone validity dates move with the calendar, so every span is rescored once a day. */
+function registerDailyPass(ctx: AppContext) {
+  jobRunnerFor(ctx).register('daily-pass', async (job: { payload: { day: string } }, progress) => {
+    await assessmentReady(ctx);
+    const em = ctx.orm.em.fork();
+    progress.setTotal(await countSpans(em, {}));
+    await assessSpansBulk(em, undefined, { clearBetweenBatches: true, onBatch: (n) => progress.advance(n), shouldStop: () => progress.aborted });
+  });
+}
+
+/** Queues the daily pass of a UTC day; however many processes ask, the day has one job (its once key). */
+export function startDailyPass(ctx: AppContext, day: string) {
+  return jobRunnerFor(ctx).enqueue({ kind: 'daily-pass', reason: `daily refresh for ${day} (survey ages, zone validity)`, payload: { day }, onceKey: `daily-pass:${day}` });
+}
+
+/** Owed rescoring recorded by an older version (pending_work) becomes jobs at start-up. */
 async function resumePendingRescores(ctx: AppContext) {
   for (const row of await listPending(ctx)) {
     const reason = `${row.reason} (again after a restart)`;
-    if (row.kind === 'rescore-all') startRescore(ctx, reason);
-    else if (row.kind === 'rescore-line') startRescore(ctx, reason, row.payload as { lineId?: string });
-    else if (row.kind === 'rescore-spans') startRescoreOf(ctx, reason, (row.payload as { spanIds: string[] }).spanIds, row.key);
+    if (row.kind === 'rescore-all') await startRescore(ctx, reason);
+    else if (row.kind === 'rescore-line') await startRescore(ctx, reason, row.payload as { lineId?: string });
+    else if (row.kind === 'rescore-spans') await startRescoreOf(ctx, reason, (row.payload as { spanIds: string[] }).spanIds);
+    await clearPending(ctx, row.key);
   }
 }
 
@@ -78,10 +94,13 @@ async function rescoreStaleAtStart(ctx: AppContext) {
       '(select count(*) from assessments where method_version <> ?) as n',
     [METHOD_VERSION],
   );
-  if (Number(row?.n ?? 0) > 0) startRescore(ctx, 'spans without a current assessment at start-up');
+  if (Number(row?.n ?? 0) > 0) await startRescore(ctx, 'spans without a current assessment at start-up');
 }
 
 export function assessmentRouters(ctx: AppContext) {
+  registerRescoreWork(ctx);
+  registerRescoreOfWork(ctx);
+  registerDailyPass(ctx);
   void resumePendingRescores(ctx)
     .then(() => rescoreStaleAtStart(ctx))
     .catch((err) => console.error('start-up rescore check failed', err));
@@ -93,22 +112,23 @@ export function assessmentRouters(ctx: AppContext) {
     if (change.spanIds.length <= INLINE_LIMIT && change.action !== 'line-update' && change.action !== 'import') {
       await rescoreSpansNow(ctx, em, change.spanIds);
     } else {
-      startRescoreOf(ctx, `${change.action} of ${change.spanIds.length} span(s)`, change.spanIds);
+      await startRescoreOf(ctx, `${change.action} of ${change.spanIds.length} span(s)`, change.spanIds);
     }
   });
   const offZone = registerZoneListener(async (em: EntityManager, change: ZoneChange) => {
     if (!mine(em)) return;
     const polygons = [change.before, change.after].filter((p): p is Polygon => !!p);
     const ids = await spansNear(em, polygons);
-    if (ids.length) startRescoreOf(ctx, `no-perch zone ${change.action}`, ids);
+    if (ids.length) await startRescoreOf(ctx, `no-perch zone ${change.action}`, ids);
   });
-  // Survey ages and zone validity dates move with the calendar, not with an edit: rescore once per new UTC day.
+  // Survey ages and zone validity dates move with the calendar, not with an edit: one pass per new UTC day, queued
+  // by whichever process sees the day first (the others find the day's job and queue nothing).
   let day = new Date().toISOString().slice(0, 10);
   const daily = setInterval(() => {
     const today = new Date().toISOString().slice(0, 10);
     if (today === day) return;
     day = today;
-    startRescore(ctx, `daily refresh for ${today} (survey ages, zone validity)`);
+    startDailyPass(ctx, today).catch((err) => console.error('could not queue the daily pass', err));
   }, 10 * 60_000);
   daily.unref();
   ctx.onClose(() => {

@@ -49,7 +49,7 @@ function checkVersion(current: number, given: number) {
 export function profilesRouter(ctx: AppContext) {
   const r = featureRouter('/api/profiles');
   r.router.use(waitForAssessmentDefaults(ctx));
-  const rescore = (reason: string) => startRescore(ctx, reason).id;
+  const rescore = async (reason: string) => (await startRescore(ctx, reason)).id;
 
   // ——— harvesters ———
   r.get('/harvesters', 'signed-in', async (req, res) => {
@@ -80,7 +80,7 @@ export function profilesRouter(ctx: AppContext) {
     const p = req.em.create(HarvesterProfile, { ...input, id: generateIdFromEntropySize(10), version: 1, createdAt: now, updatedAt: now });
     audit(req.em, { actorId: currentUser(req).id, action: 'harvester-profile.create', recordType: 'harvester-profile', recordId: p.id, after: profileSnapshot(p) });
     await req.em.flush();
-    const jobId = p.active ? rescore(`harvester profile ${p.name} added`) : null;
+    const jobId = p.active ? await rescore(`harvester profile ${p.name} added`) : null;
     res.status(201).json({ ...harvesterView(p), rescoreJobId: jobId });
   });
 
@@ -96,7 +96,7 @@ export function profilesRouter(ctx: AppContext) {
     Object.assign(p, changes, { version: p.version + 1, updatedAt: new Date() });
     audit(req.em, { actorId: currentUser(req).id, action: 'harvester-profile.update', recordType: 'harvester-profile', recordId: p.id, before, after: profileSnapshot(p) });
     await req.em.flush();
-    res.json({ ...harvesterView(p), rescoreJobId: rescore(`harvester profile ${p.name} changed`) });
+    res.json({ ...harvesterView(p), rescoreJobId: await rescore(`harvester profile ${p.name} changed`) });
   });
 
   r.delete('/harvesters/:id', ['admin'], async (req, res) => {
@@ -173,7 +173,7 @@ export function profilesRouter(ctx: AppContext) {
         after: { ...profileSnapshot(p), fit: { points: points.length, rmsErrorW: fit.rmsErrorW } },
       });
       await req.em.flush();
-      rescoreJobId = rescore(`air gap of ${p.name} fitted to bench data`);
+      rescoreJobId = await rescore(`air gap of ${p.name} fitted to bench data`);
     }
     const result: FitGapResult & { rescoreJobId: string | null } = {
       airGapMm: fit.airGapMm,
@@ -205,7 +205,7 @@ export function profilesRouter(ctx: AppContext) {
     const p = req.em.create(DroneProfile, { ...input, id: generateIdFromEntropySize(10), version: 1, createdAt: now, updatedAt: now });
     audit(req.em, { actorId: currentUser(req).id, action: 'drone-profile.create', recordType: 'drone-profile', recordId: p.id, after: profileSnapshot(p) });
     await req.em.flush();
-    const jobId = p.active ? rescore(`drone profile ${p.name} added`) : null;
+    const jobId = p.active ? await rescore(`drone profile ${p.name} added`) : null;
     res.status(201).json({ ...droneView(p), rescoreJobId: jobId });
   });
 
@@ -218,7 +218,7 @@ export function profilesRouter(ctx: AppContext) {
     Object.assign(p, changes, { version: p.version + 1, updatedAt: new Date() });
     audit(req.em, { actorId: currentUser(req).id, action: 'drone-profile.update', recordType: 'drone-profile', recordId: p.id, before, after: profileSnapshot(p) });
     await req.em.flush();
-    res.json({ ...droneView(p), rescoreJobId: rescore(`drone profile ${p.name} changed`) });
+    res.json({ ...droneView(p), rescoreJobId: await rescore(`drone profile ${p.name} changed`) });
   });
 
   r.delete('/drones/:id', ['admin'], async (req, res) => {

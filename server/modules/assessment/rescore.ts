@@ -4,7 +4,8 @@ import type { EntityManager } from '@mikro-orm/core';
 import type { RequestHandler } from 'express';
 import type { JobView } from '#shared/schemas/assessment.ts';
 import type { AppContext } from '../../context.ts';
-import { enqueueDurable } from '../jobs/pending-work.ts';
+import type { JobProgress } from '../jobs/job-runner.ts';
+import { jobRunnerFor } from '../jobs/job-runner.ts';
 import { assessSpans, assessSpansBulk, countSpans } from './assessment.service.ts';
 import { ensureAssessmentDefaults } from './profiles.service.ts';
 
@@ -33,29 +34,31 @@ export function waitForAssessmentDefaults(ctx: AppContext): RequestHandler {
 }
 
 /**
- * Rescores every span (or one line's spans) in the background; a waiting job of the same scope is reused. The need
- * is recorded in the database first, so a crash or shutdown before the job ends reruns it on the next start.
+ * Rescores every span (or one line's spans) as a durable job; a queued job of the same scope is reused. The job is
+ * in the database before this answers, so a crash or a shutdown before it ends runs it again on the next start.
  */
-export function startRescore(ctx: AppContext, reason: string, scope: { lineId?: string } = {}): JobView {
+export function startRescore(ctx: AppContext, reason: string, scope: { lineId?: string } = {}): Promise<JobView> {
   const key = scope.lineId ? `rescore:line:${scope.lineId}` : 'rescore:all';
-  return enqueueDurable(ctx, {
-    key,
-    kind: scope.lineId ? 'rescore-line' : 'rescore-all',
-    reason,
-    payload: scope,
-    coalesce: true,
-    work: async (progress) => {
-      await assessmentReady(ctx);
-      const em = ctx.orm.em.fork();
-      progress.setTotal(await countSpans(em, scope));
-      await assessSpansBulk(em, undefined, {
-        lineId: scope.lineId,
-        clearBetweenBatches: true,
-        onBatch: (n) => progress.advance(n),
-        shouldStop: () => progress.aborted,
-      });
-    },
-  });
+  return jobRunnerFor(ctx).enqueue({ kind: scope.lineId ? 'rescore-line' : 'rescore-all', reason, payload: scope, coalesceKey: key });
+}
+
+/** The work of the rescore jobs: every span, or one line's (kinds rescore-all and rescore-line). */
+export function registerRescoreWork(ctx: AppContext) {
+  const queue = jobRunnerFor(ctx);
+  const work = async (job: { payload: { lineId?: string } | null }, progress: JobProgress) => {
+    const scope = job.payload ?? {};
+    await assessmentReady(ctx);
+    const em = ctx.orm.em.fork();
+    progress.setTotal(await countSpans(em, scope));
+    await assessSpansBulk(em, undefined, {
+      lineId: scope.lineId,
+      clearBetweenBatches: true,
+      onBatch: (n) => progress.advance(n),
+      shouldStop: () => progress.aborted,
+    });
+  };
+  queue.register('rescore-all', work);
+  queue.register('rescore-line', work);
 }
 
 /** Recomputes some spans now, in the caller's unit of work (used after a span write). */

@@ -34,7 +34,7 @@ export function scoringSettingsRouter(ctx: AppContext) {
     const row = req.em.create(ScoringSettingsVersion, { version: current.version + 1, settings, createdById: currentUser(req).id, createdAt: new Date() });
     audit(req.em, { actorId: currentUser(req).id, action: 'scoring-settings.update', recordType: 'scoring-settings', recordId: String(row.version), before: current.settings, after: settings });
     await req.em.flush();
-    const job = startRescore(ctx, `scoring settings version ${row.version}`);
+    const job = await startRescore(ctx, `scoring settings version ${row.version}`);
     res.json({ ...settingsView(row), rescoreJobId: job.id });
   });
 

@@ -5,15 +5,15 @@ import { jobRunnerFor } from './job-runner.ts';
 
 export function jobsRouter(ctx: AppContext) {
   const r = featureRouter('/api/jobs');
-  const runner = jobRunnerFor(ctx);
+  const queue = jobRunnerFor(ctx);
 
-  // Recent jobs, newest first (e.g. the rescore a zone change started).
-  r.get('/', 'signed-in', (_req, res) => {
-    res.json({ items: runner.list().slice(0, 50) });
+  // Recent jobs of every process, newest first (e.g. the rescore a zone change started).
+  r.get('/', 'signed-in', async (_req, res) => {
+    res.json({ items: await queue.list(50) });
   });
 
-  r.get('/:id', 'signed-in', (req, res) => {
-    const job = runner.get(String(req.params.id));
+  r.get('/:id', 'signed-in', async (req, res) => {
+    const job = await queue.get(String(req.params.id));
     if (!job) throw AppError.notFound('Job');
     res.json(job);
   });
