@@ -8,7 +8,8 @@ const bin = postgresBinDir();
 if (!bin) console.log('PostgreSQL run skipped: no initdb/pg_ctl found (apt-get install -y postgresql-15, or set PG_BIN).');
 
 // Bounded on purpose: the files whose SQL differs most between the dialects (list filters and sorting, import,
-// assessments and bulk rescoring, zones, sign-in and accounts, idempotency keys, the audit's JSON, tiles, mission records, durable jobs through pg-boss).
+// assessments and bulk rescoring, zones, sign-in and accounts, idempotency keys, the audit's JSON, tiles, mission records,
+// durable jobs through pg-boss, photos).
 export const POSTGRES_API_TESTS = [
   'tests/postgres/**/*.pg.test.ts',
   'tests/server/inventory-list.test.ts',
@@ -24,6 +25,7 @@ export const POSTGRES_API_TESTS = [
   'tests/server/map.test.ts',
   'tests/server/missions-records.test.ts',
   'tests/server/jobs.test.ts',
+  'tests/server/photos.test.ts',
 ];
 
 export default defineConfig({
@@ -32,6 +34,8 @@ export default defineConfig({
     include: bin ? POSTGRES_API_TESTS : [],
     passWithNoTests: !bin,
     environment: 'node',
+    // The production-like pair: PostgreSQL and photos in an object store (a local S3 fake per test app).
+    env: { ROOSTLINE_TEST_STORAGE: 's3', AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: 'true' },
     globalSetup: bin ? ['tests/postgres/global-setup.ts'] : [],
     pool: 'forks',
     maxWorkers: 2,

@@ -25,18 +25,21 @@ import { evidenceRouter } from './modules/evidence/evidence.router.ts';
 import { missionsRouter } from './modules/missions/missions.router.ts';
 import { missionExportsRouter } from './modules/missions/export.router.ts';
 import { linePermissionsRouter } from './modules/line-permissions/line-permissions.router.ts';
+import { storageFromConfig, type AppStorage } from './modules/photos/storage.ts';
 
 export interface CreateAppOptions {
   orm: MikroORM;
   config: AppConfig;
   /** Folder of the built client; served when it exists. */
   clientDir?: string;
+  /** The file store; default from the configuration (storageFromConfig). */
+  storage?: AppStorage;
 }
 
-export function createApp({ orm, config, clientDir = path.resolve('dist') }: CreateAppOptions) {
+export function createApp({ orm, config, clientDir = path.resolve('dist'), storage = storageFromConfig(config) }: CreateAppOptions) {
   const closers: (() => Promise<void> | void)[] = [];
   const lifecycle = new Lifecycle();
-  const ctx: AppContext = { orm, config, lucia: createLucia(orm, config.secureCookies), onClose: (fn) => closers.push(fn), lifecycle };
+  const ctx: AppContext = { orm, config, lucia: createLucia(orm, config.secureCookies), onClose: (fn) => closers.push(fn), lifecycle, storage };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');

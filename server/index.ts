@@ -2,7 +2,7 @@ import { databaseTarget, loadConfig } from './env.ts';
 import { initORM, whileHoldingStartLock } from './db.ts';
 import { createApp } from './app.ts';
 import { seedDemoIfEmpty } from './seeders/index.ts';
-import { localDiskStorage } from './modules/photos/photo.storage.ts';
+import { storageFromConfig } from './modules/photos/storage.ts';
 import { sweepOrphans } from './modules/photos/photo.service.ts';
 import { claimServerLock, releaseServerLock } from './server-lock.ts';
 import { scheduleDailyBackups } from './backup/schedule.ts';
@@ -17,18 +17,27 @@ const orm = await initORM(databaseTarget(config));
 // Several processes may start at once on one PostgreSQL: one seeds, the others wait for it and find it seeded.
 if (config.seedDemo && (await whileHoldingStartLock(orm, () => seedDemoIfEmpty(orm)))) console.log('Seeded the demo scenario into an empty database.');
 
+const storage = storageFromConfig(config);
+try {
+  await storage.check();
+} catch (err) {
+  console.error(`The file store ${storage.describe} cannot be reached: ${err instanceof Error ? err.message : err}. Check STORAGE_URL, S3_ENDPOINT and the credentials.`);
+  process.exit(1);
+}
+
 // Files written before this start that no photo row names were left by a crash mid-upload (files are written
-// before the row): nothing can still be on its way to use them, so they go before the first request.
-const removed = await sweepOrphans(orm.em.fork(), localDiskStorage(config.uploadsDir), 0, startedAt).catch((err) => {
+// before the row): with one process nothing can still be on its way to use them, so they go before the first
+// request. On PostgreSQL other processes may be uploading right now, so only files over an hour old go.
+const removed = await sweepOrphans(orm.em.fork(), storage, config.databaseUrl ? 60 * 60_000 : 0, startedAt).catch((err) => {
   console.error('photos: start-up orphan sweep failed', err);
   return [];
 });
 if (removed.length) console.log(`photos: removed ${removed.length} file(s) an interrupted upload left behind`);
 
-const { app, ctx, close, lifecycle } = createApp({ orm, config });
+const { app, ctx, close, lifecycle } = createApp({ orm, config, storage });
 const stopBackups = scheduleDailyBackups(ctx);
 const server = app.listen(config.port, () => {
-  console.log(`Roostline is listening on http://localhost:${config.port} (database ${config.databaseUrl ? 'PostgreSQL ' + redactUrl(config.databaseUrl) : config.databasePath})`);
+  console.log(`Roostline is listening on http://localhost:${config.port} (database ${config.databaseUrl ? 'PostgreSQL ' + redactUrl(config.databaseUrl) : config.databasePath}, files in ${storage.describe})`);
 });
 
 let stopping = false;

@@ -62,6 +62,10 @@ export function storageFault(err: unknown): AppError | null {
     return new AppError(507, 'insufficient_storage', "The server's disk is full, so this was not saved. Everything saved before is safe; ask your administrator to free space, then try again.");
   if (code === 'EROFS' || code === 'EACCES' || code === 'EPERM' || code === 'SQLITE_READONLY' || /SQLITE_READONLY/.test(text))
     return new AppError(503, 'unavailable', 'The server cannot write to its storage right now, so this was not saved. Everything saved before is safe; ask your administrator, then try again.');
+  if (code === 'ESTOREUNAVAILABLE')
+    return (err as { write?: boolean }).write
+      ? new AppError(503, 'unavailable', 'The server cannot write to its storage right now, so this was not saved. Everything saved before is safe; ask your administrator, then try again.')
+      : new AppError(503, 'unavailable', 'The server cannot reach its photo store right now. Nothing is lost; try again in a moment, or ask your administrator.');
   if (code === 'SQLITE_BUSY' || /SQLITE_BUSY/.test(text))
     return new AppError(503, 'unavailable', 'The server is busy and did not save this. Nothing was changed; try again in a moment.');
   return null;

@@ -149,6 +149,9 @@ describe('Idempotency-Key on photo uploads', () => {
     expect(answers.map((r) => r.status)).toEqual([201, 201, 201, 201]);
     expect(new Set(answers.map((r) => r.body.id)).size).toBe(1);
     expect(await count(Photo, {})).toBe(before + 1);
+    // One original, display and thumbnail in the store for the one photo, whichever store the app uses.
+    const keys = (await t.storage.list!('photos/')).map((k) => k.key).filter((k) => k.startsWith(`photos/${answers[0].body.id}.`));
+    expect(keys.sort()).toEqual([`photos/${answers[0].body.id}.display.jpg`, `photos/${answers[0].body.id}.original`, `photos/${answers[0].body.id}.thumb.jpg`]);
   });
 
   it('when the same key comes with another file, then 409 and no second photo', async () => {

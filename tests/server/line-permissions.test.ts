@@ -1,8 +1,6 @@
 // Line permissions (api.md "Line permissions"): who may enter them, the checks on their fields, the attached
 // document judged by its content, expiry, concurrent entries, the audit trail, and the check a mission's
 // authorisation makes.
-import fs from 'node:fs';
-import path from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type Client, type TestApp } from './helpers.ts';
@@ -157,7 +155,7 @@ describe('the owner’s document', () => {
     // Judged by its content, not its name.
     expect(res.body.documentContentType).toBe('image/png');
     expect(before.documentContentType).toBe('application/pdf');
-    const docs = fs.readdirSync(path.join(t.config.uploadsDir, 'documents')).filter((f) => f.startsWith(permissionId.toLowerCase()));
+    const docs = (await t.storage.list!('documents/')).map((k) => k.key.slice('documents/'.length)).filter((f) => f.startsWith(permissionId.toLowerCase()));
     expect(docs).toHaveLength(1);
     expect(docs[0]).toMatch(/\.png$/);
     const entries = await t.orm.em.fork().find(AuditEntry, { recordType: 'line-permission', recordId: permissionId, action: 'line-permission.document' });

@@ -1,4 +1,6 @@
-// Photos: upload, EXIF, derivatives, serving, nearest-span suggestion, links, deletion.
+// Photos: upload, EXIF, derivatives, serving, nearest-span suggestion, links, deletion, the orphan sweep.
+// The same file runs on the local folder (project `node`) and on an S3 bucket of a local S3 fake (project `node-s3`,
+// and the PostgreSQL run): every check reads the app's own store, whichever it is.
 // The GPS-tagged files were written by an independent tool (Debian's exiftool, scripts/make-photo-fixtures.ts) and are
 // committed in tests/fixtures/photos, so the tests need no EXIF tool; the code under test never wrote them.
 // A time zone far from UTC with a half-hour offset makes any leak of the server's zone into capture times visible.
@@ -21,7 +23,7 @@ import { Photo } from '../../server/modules/photos/photo.entity.ts';
 import { AuditEntry } from '../../server/modules/audit/audit.entity.ts';
 import { storePhotos, sweepOrphans } from '../../server/modules/photos/photo.service.ts';
 import { processPhoto } from '../../server/modules/photos/photo.pipeline.ts';
-import { localDiskStorage, type PhotoStorage } from '../../server/modules/photos/photo.storage.ts';
+import type { PhotoStorage } from '../../server/modules/photos/photo.storage.ts';
 
 const MiB = 1024 * 1024;
 const FIXTURES = path.resolve('tests/fixtures/photos');
@@ -42,10 +44,9 @@ const offset = (from: { lat: number; lon: number }, metres: number, bearingDeg: 
   return { lat, lon };
 };
 
-/** Files now in the uploads folder (recursively), as paths relative to it. */
-function storedFiles(): string[] {
-  if (!fs.existsSync(uploadsDir)) return [];
-  return (fs.readdirSync(uploadsDir, { recursive: true }) as string[]).filter((f) => fs.statSync(path.join(uploadsDir, f)).isFile()).sort();
+/** Keys now in the app's store under photos/ (files of the uploads folder, or objects of the bucket). */
+async function storedFiles(): Promise<string[]> {
+  return (await t.storage.list!('photos/')).map((k) => k.key).sort();
 }
 
 /** A JPEG from sharp (a smooth gradient, so it compresses like a photo), width × height. */
@@ -221,24 +222,24 @@ describe('refused files leave nothing behind', () => {
     { name: 'truncated', status: 400, contentType: 'image/jpeg', text: /truncated or damaged/ },
     { name: 'bomb', status: 413, contentType: 'image/png', text: /30000 × 30000 pixels.*megapixel limit/ },
   ])('when the upload is $name, then $status with a clear message and no file is stored', async ({ name, status, contentType, text }) => {
-    const before = storedFiles();
+    const before = await storedFiles();
     const rows = await t.orm.em.fork().count(Photo);
     const res = await upload(surveyor, name, { contentType });
     expect(res.status).toBe(status);
     expect(res.body.error.message).toMatch(text);
-    expect(storedFiles()).toEqual(before);
+    expect(await storedFiles()).toEqual(before);
     expect(await t.orm.em.fork().count(Photo)).toBe(rows);
   });
 
   it('when the file is over 25 MB, then 413 in the shared error shape and nothing is stored', async () => {
-    const before = storedFiles();
+    const before = await storedFiles();
     const big = Buffer.alloc(25 * MiB + 1, 0x5a);
     files.big = Buffer.concat([Buffer.from([0xff, 0xd8, 0xff, 0xe0]), big.subarray(4)]);
     const res = await upload(surveyor, 'big');
     expect(res.status).toBe(413);
     expect(res.body.error.code).toBe('payload_too_large');
     expect(res.body.error.message).toMatch(/larger than 25 MB/);
-    expect(storedFiles()).toEqual(before);
+    expect(await storedFiles()).toEqual(before);
   });
 
   it('when no file is attached, then 400 names the photo field', async () => {
@@ -248,59 +249,61 @@ describe('refused files leave nothing behind', () => {
   });
 
   it('when the span id does not exist, then 400 names spanId and nothing is stored', async () => {
-    const before = storedFiles();
+    const before = await storedFiles();
     const res = await upload(surveyor, 'ne', { spanId: 'no-such-span' });
     expect(res.status).toBe(400);
     expect(res.body.error.issues).toEqual([expect.objectContaining({ path: 'spanId' })]);
-    expect(storedFiles()).toEqual(before);
+    expect(await storedFiles()).toEqual(before);
   });
 
   it('when one of several files in a batch is bad, then the whole batch is refused and nothing is stored', async () => {
-    const before = storedFiles();
+    const before = await storedFiles();
     const res = await surveyor
       .upload('/api/photos')
       .attach('photos', files.ne, { filename: 'a.jpg', contentType: 'image/jpeg' })
       .attach('photos', files.text, { filename: 'b.jpg', contentType: 'image/jpeg' });
     expect(res.status).toBe(415);
-    expect(storedFiles()).toEqual(before);
+    expect(await storedFiles()).toEqual(before);
   });
 
   it('when storage fails half-way through writing a batch, then the files already written are deleted again', async () => {
-    const before = storedFiles();
-    const disk = localDiskStorage(uploadsDir);
+    const before = await storedFiles();
+    const store = t.storage;
     let puts = 0;
-    const flaky: PhotoStorage = { ...disk, put: async (k, d, c) => (++puts === 5 ? Promise.reject(new Error('disk full')) : disk.put(k, d, c)) };
+    const flaky: PhotoStorage = { ...store, put: async (k, d, c) => (++puts === 5 ? Promise.reject(new Error('disk full')) : store.put(k, d, c)) };
     const items = [await processPhoto(files.ne), await processPhoto(files.nw)];
     const em = t.orm.em.fork();
     const rows = await em.count(Photo);
     await expect(storePhotos(em, flaky, items, { uploaderId: 'someone', spanId: null, hazardId: null })).rejects.toThrow('disk full');
     expect(puts).toBe(5);
-    expect(storedFiles()).toEqual(before);
+    expect(await storedFiles()).toEqual(before);
     expect(await t.orm.em.fork().count(Photo)).toBe(rows);
   });
 
   it('when files without a photo row are older than an hour, then the orphan sweep removes them and keeps the rest', async () => {
     const ok = await upload(surveyor, 'plain');
-    const disk = localDiskStorage(uploadsDir);
-    await disk.put('photos/orphanold.original', files.plain, 'image/jpeg');
-    await disk.put('photos/orphanold.thumb.jpg', files.plain, 'image/jpeg');
-    await disk.put('photos/orphannew.original', files.plain, 'image/jpeg');
-    const hourAgo = new Date(Date.now() - 2 * 3600_000);
-    fs.utimesSync(path.join(uploadsDir, 'photos/orphanold.original'), hourAgo, hourAgo);
-    fs.utimesSync(path.join(uploadsDir, 'photos/orphanold.thumb.jpg'), hourAgo, hourAgo);
-    for (const suffix of ['.original', '.display.jpg', '.thumb.jpg']) fs.utimesSync(path.join(uploadsDir, `photos/${ok.body.id}${suffix}`), hourAgo, hourAgo);
-    const removed = await sweepOrphans(t.orm.em.fork(), disk);
-    expect(removed.sort()).toEqual(['photos/orphanold.original', 'photos/orphanold.thumb.jpg']);
-    const left = storedFiles();
-    expect(left).toContain('photos/orphannew.original');
+    const store = t.storage;
+    await store.put('photos/orphanold.original', files.plain, 'image/jpeg');
+    await store.put('photos/orphanold.thumb.jpg', files.plain, 'image/jpeg');
+    // Written just now: too young for the sweep, as an upload still on its way would be.
+    expect(await sweepOrphans(t.orm.em.fork(), store)).toEqual([]);
+    expect(await storedFiles()).toEqual(expect.arrayContaining(['photos/orphanold.original', 'photos/orphanold.thumb.jpg']));
+    // Two hours on (the sweep's clock, since an object store's times cannot be set back), both are orphans over an hour old.
+    const later = new Date(Date.now() + 2 * 3600_000);
+    await store.put('photos/orphannew.original', files.plain, 'image/jpeg');
+    const removed = await sweepOrphans(t.orm.em.fork(), store, 60 * 60_000, later);
+    expect(removed).toEqual(expect.arrayContaining(['photos/orphanold.original', 'photos/orphanold.thumb.jpg', 'photos/orphannew.original']));
+    expect(removed.every((k) => k.startsWith('photos/orphan'))).toBe(true);
+    const left = await storedFiles();
+    expect(left.some((k) => k.includes('orphan'))).toBe(false);
     expect(left).toEqual(expect.arrayContaining([`photos/${ok.body.id}.original`, `photos/${ok.body.id}.display.jpg`, `photos/${ok.body.id}.thumb.jpg`]));
-    await disk.delete('photos/orphannew.original');
+    expect((await surveyor.get(ok.body.originalUrl)).status).toBe(200);
   });
 
   it('when the client’s file name tries to climb out of the folder, then it never reaches the file system', async () => {
     const res = await upload(surveyor, 'plain', { filename: '../../escape-attempt.jpg' });
     expect(res.status).toBe(201);
-    const stored = storedFiles();
+    const stored = await storedFiles();
     expect(stored.some((f) => f.includes('escape'))).toBe(false);
     expect(fs.readdirSync(tmp).some((f) => f.includes('escape'))).toBe(false);
     for (const f of stored) expect(f).toMatch(/^photos\/[a-z0-9]+\.(original|display\.jpg|thumb\.jpg)$/);
@@ -368,7 +371,7 @@ describe('who may do what', () => {
     expect((await safety.delete(`/api/photos/${mine.body.id}`)).status).toBe(403);
     expect((await planner.delete(`/api/photos/${mine.body.id}`)).status).toBe(403);
     expect((await surveyor.delete(`/api/photos/${mine.body.id}`)).status).toBe(204);
-    expect(storedFiles().some((f) => f.includes(mine.body.id))).toBe(false);
+    expect((await storedFiles()).some((f) => f.includes(mine.body.id))).toBe(false);
     expect((await surveyor.get(mine.body.thumbnailUrl)).status).toBe(404);
     const theirs = await upload(safety, 'nw');
     expect((await admin.delete(`/api/photos/${theirs.body.id}`)).status).toBe(204);
@@ -457,5 +460,20 @@ describe('nearest span and links', () => {
     expect(range.body.error.issues[0].path).toBe('lat');
     expect((await planner.patch(`/api/photos/${up.body.id}`, { spanId: ids.ab })).status).toBe(403);
     expect((await surveyor.patch('/api/photos/no-such-photo', { spanId: ids.ab })).status).toBe(404);
+  });
+});
+
+describe('the store in use', () => {
+  it('when a photo is uploaded, then its files are in the configured store and nowhere else', async () => {
+    const res = await upload(surveyor, 'plain');
+    expect(t.storage.kind).toBe(process.env.ROOSTLINE_TEST_STORAGE === 's3' ? 's3' : 'local');
+    expect(t.storage.describe).toBe(t.config.storageUrl ? t.storage.describe : uploadsDir);
+    const onDisk = fs.existsSync(path.join(uploadsDir, 'photos', `${res.body.id}.original`));
+    expect(onDisk).toBe(t.storage.kind === 'local');
+    const obj = await t.storage.get(`photos/${res.body.id}.original`);
+    const chunks: Buffer[] = [];
+    for await (const c of obj!.body) chunks.push(c as Buffer);
+    expect(Buffer.compare(Buffer.concat(chunks), files.plain)).toBe(0);
+    expect(obj!.bytes).toBe(files.plain.length);
   });
 });

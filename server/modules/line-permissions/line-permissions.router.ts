@@ -6,7 +6,7 @@ import { linePermissionCreateSchema } from '#shared/schemas/line-permissions.ts'
 import type { AppContext } from '../../context.ts';
 import { currentUser, featureRouter } from '../../http/access.ts';
 import { AppError, parse } from '../../http/errors.ts';
-import { localDiskStorage, type PhotoStorage } from '../photos/photo.storage.ts';
+import type { PhotoStorage } from '../photos/photo.storage.ts';
 import { attachDocument, createPermission, lineOr404, listPermissions, permissionOr404, viewsOf } from './line-permissions.service.ts';
 
 const ENTER = ['admin', 'safety'] as const;
@@ -35,7 +35,7 @@ function receiveDocument(maxBytes: number): RequestHandler {
 }
 
 /** Mounted at /api/lines. */
-export function linePermissionsRouter(ctx: AppContext, storage: PhotoStorage = localDiskStorage(ctx.config.uploadsDir)) {
+export function linePermissionsRouter(ctx: AppContext, storage: PhotoStorage = ctx.storage) {
   const r = featureRouter('/api/lines');
 
   r.get('/:id/permissions', 'signed-in', async (req, res) => {

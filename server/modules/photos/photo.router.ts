@@ -11,7 +11,7 @@ import { audit } from '../audit/audit.service.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Hazard } from '../inventory/hazard.entity.ts';
 import { Photo } from './photo.entity.ts';
-import { localDiskStorage, type PhotoStorage } from './photo.storage.ts';
+import type { PhotoStorage } from './photo.storage.ts';
 import { processPhoto, type ProcessedPhoto } from './photo.pipeline.ts';
 import { deletePhoto, snapshot, storePhotos, suggestSpans, sweepOrphans, toApi, variantKey, type PhotoVariant } from './photo.service.ts';
 import type { EntityManager } from '@mikro-orm/core';
@@ -99,7 +99,7 @@ async function withSuggestions(em: EntityManager, p: Photo) {
   return { ...toApi(p), suggestedSpanIds: suggestions.map((s) => s.spanId), suggestions };
 }
 
-export function photosRouter(ctx: AppContext, storage: PhotoStorage = localDiskStorage(ctx.config.uploadsDir)) {
+export function photosRouter(ctx: AppContext, storage: PhotoStorage = ctx.storage) {
   const r = featureRouter('/api/photos');
 
   // Once after start-up: remove files a crash left without a photo row (older than an hour).
