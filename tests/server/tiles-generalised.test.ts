@@ -1,7 +1,8 @@
 // The fast span tiles (generalised layers built once per data version, patched on edits; the grid at full detail)
 // give the same features as the plain path that looks at every span for each tile, on a sample of tiles at
 // z6, z8, z11 and z14, before and after edits; and every approved span stays drawn at each of those zooms
-// (at a generalised zoom: by an approved feature of its own cell in a tile it crosses).
+// (at a generalised zoom: by an approved feature of its own cell in a tile it crosses). Right after a start, the
+// first tiles come from a box query before the spans are read into memory: those match the plain path too.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { PbfReader } from 'pbf';
 import { VectorTile } from '@mapbox/vector-tile';
@@ -13,6 +14,7 @@ import { ensureAssessmentDefaults } from '../../server/modules/assessment/profil
 import { assessSpansBulk } from '../../server/modules/assessment/assessment.service.ts';
 import { cellSizeAt, FULL_DETAIL_ZOOM, SpanTileService, TILE_EXTENT } from '../../server/modules/map/span-tiles.ts';
 import { sql } from '../../server/sql/query.ts';
+import { spanLengthM } from '../../server/modules/inventory/inventory.service.ts';
 
 interface Row {
   id: string;
@@ -119,6 +121,7 @@ beforeAll(async () => {
   const ids = (await sql.all<{ id: string }>(orm.em.fork(), 'select id from spans order by id')).map((r) => r.id).filter((_, i) => i % 3);
   await assessSpansBulk(orm.em.fork(), ids);
   service = new SpanTileService(orm);
+  await service.layersReady();
 }, 180_000);
 afterAll(async () => {
   service?.close();
@@ -144,7 +147,6 @@ describe('fast span tiles against the plain path', () => {
   });
 
   it('when spans are edited, moved and added, then the layers are patched (not rebuilt) and still match the plain path', async () => {
-    for (const z of ZOOMS) await service.tile(z, 0, 0); // every layer built
     const builds = service.stats.layerBuilds;
     const em = orm.em.fork();
     const rows = await spans();
@@ -156,6 +158,12 @@ describe('fast span tiles against the plain path', () => {
     // A structure moved about 3 km: its spans change cell at every zoom.
     const [moved] = await sql.all<{ id: string }>(em, 'select from_structure_id as id from spans where id = ?', [rows[10].id]);
     await sql.run(em, 'update structures set lon = lon + 0.04, lat = lat + 0.02, updated_at = (select max(updated_at) from structures) + 1 where id = ?', [moved.id]);
+    // Every writer keeps a span's length with its structures (the first tiles after a start rely on the longest).
+    const relength = async (id: string) => {
+      const [r] = await sql.all<Row>(em, 'select s.id, a.lon as lon0, a.lat as lat0, b.lon as lon1, b.lat as lat1 from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id where s.id = ?', [id]);
+      await sql.run(em, 'update spans set length_m = ? where id = ?', [spanLengthM({ lon: r.lon0, lat: r.lat0 }, { lon: r.lon1, lat: r.lat1 }), id]);
+    };
+    for (const r of await sql.all<{ id: string }>(em, 'select id from spans where from_structure_id = ? or to_structure_id = ?', [moved.id, moved.id])) await relength(r.id);
     // A new span between two structures of one line that no span joins yet.
     const [a, , b] = await sql.all<{ id: string; line_id: string }>(em, 'select id, line_id from structures where line_id = (select line_id from structures order by id limit 1) order by id limit 3');
     await sql.run(
@@ -164,6 +172,7 @@ describe('fast span tiles against the plain path', () => {
        values ('span-added-in-test', ?, ?, ?, 'approved', 1, 150, 'ACSR', 18.3, ${stamp}, ${stamp})`,
       [a.line_id, a.id, b.id],
     );
+    await relength('span-added-in-test');
     await service.syncNow();
     for (const z of ZOOMS) await compareSample(z);
     for (const z of ZOOMS) await everyApprovedSpanDrawn(z);
@@ -171,5 +180,22 @@ describe('fast span tiles against the plain path', () => {
     const z14 = (await spans()).find((r) => r.id === 'span-added-in-test')!;
     const tile = decode(await service.tile(14, Math.floor(mx(z14.lon0) * 2 ** 14), Math.floor(my(z14.lat0) * 2 ** 14)));
     expect(tile.some((f) => f.props.id === 'span-added-in-test')).toBe(true);
+  });
+
+  it('when tiles are asked for right after a start (nothing read into memory yet), then each is answered from its own box query with the plain path\'s features', async () => {
+    const rows = await spans();
+    for (const z of [10, 11, 14]) {
+      for (const [x, y] of sampleTiles(rows, z).slice(0, 12)) {
+        const fresh = new SpanTileService(orm);
+        try {
+          const first = await fresh.tile(z, x, y);
+          expect(fresh.stats.directTiles, `z${z}/${x}/${y}`).toBe(1);
+          expect(featureSet(first), `z${z}/${x}/${y}`).toEqual(featureSet(await service.plainTile(z, x, y)));
+          await fresh.layersReady(); // the snapshot is read after the first tile; let it finish before closing
+        } finally {
+          fresh.close();
+        }
+      }
+    }
   });
 });

@@ -19,6 +19,8 @@ export const StructureSchema = new EntitySchema<Structure>({
   class: Structure,
   tableName: 'structures',
   uniques: [{ properties: ['lineId', 'label'] }],
+  // Structures in a box (the map's first tiles after a start, before its in-memory index is read): covering, with the id.
+  indexes: [{ properties: ['lat', 'lon', 'id'] }],
   properties: {
     id: { type: 'string', primary: true },
     lineId: { type: 'string', index: true },

@@ -82,6 +82,56 @@ interface Fingerprint {
   au: unknown;
 }
 
+interface LonLatBox {
+  west: number;
+  south: number;
+  east: number;
+  north: number;
+}
+
+/** Spans (and cells) a generalised layer takes in per turn of the event loop while it is built. */
+const LAYER_CHUNK = 50_000;
+/** Rows per query while a snapshot is read. */
+const SNAPSHOT_CHUNK = 20_000;
+/** From this zoom up, a tile asked for before the snapshot is read is answered from its own box query. */
+export const DIRECT_MIN_ZOOM = 10;
+/** Metres to degrees of latitude, rounded down (a degree is 110.57–111.69 km), so boxes come out a little large. */
+const M_PER_DEG = 110_000;
+
+function emptySnapshot(pair: TilePair | null, fp: Fingerprint): Snapshot {
+  return {
+    n: 0,
+    ids: [],
+    index: new Map(),
+    lineIds: [],
+    statuses: [],
+    lon0: [],
+    lat0: [],
+    lon1: [],
+    lat1: [],
+    mx0: [],
+    my0: [],
+    mx1: [],
+    my1: [],
+    lengthM: [],
+    score: [],
+    harvestW: [],
+    perchable: [],
+    grid: new Map(),
+    lineSpans: new Map(),
+    layers: [],
+    structures: [],
+    structureIndex: new Map(),
+    structureGrid: new Map(),
+    pair,
+    fp,
+  };
+}
+
+/** Generalised zooms built in the background once a snapshot is read: those a planner opens the map at first. */
+const WARM_ZOOMS = [8, 9, 10, 11, 7, 6, 5, 4, 3, 2, 1, 0];
+const pairKey = (pair: TilePair | null) => (pair ? `${pair.harvesterProfileId}|${pair.droneProfileId}` : '-');
+
 const sameFp = (a: Fingerprint, b: Fingerprint) => JSON.stringify(a) === JSON.stringify(b);
 /** Above this many changed spans a snapshot is re-read whole rather than patched. */
 const PATCH_LIMIT = 20_000;
@@ -112,6 +162,8 @@ export interface TileStats {
   snapshotLoads: number;
   /** Generalised zoom layers built whole (edits patch them instead). */
   layerBuilds: number;
+  /** Tiles answered from their own box query while the snapshot (or that zoom's layer) was still being built. */
+  directTiles: number;
 }
 
 type VtFeature = { type: 1 | 2; geometry: unknown; tags: Record<string, unknown> };
@@ -120,6 +172,8 @@ type VtFeature = { type: 1 | 2; geometry: unknown; tags: Record<string, unknown>
 export class SpanTileService {
   private version = 1;
   private snapshots = new Map<string, Promise<Snapshot>>();
+  /** The snapshots of `snapshots` that are read (same keys). */
+  private loaded = new Map<string, Snapshot>();
   private cache = new Map<string, Buffer>();
   private cacheBytes = 0;
   /** The database's data version at the last sync: an unchanged version needs no fingerprint (its counts scan tables). */
@@ -128,7 +182,7 @@ export class SpanTileService {
   private watcher: NodeJS.Timeout | null = null;
   private closed = false;
   private defaultPair: Promise<TilePair | null> | null = null;
-  readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0, layerBuilds: 0 };
+  readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0, layerBuilds: 0, directTiles: 0 };
 
   constructor(private readonly orm: MikroORM) {}
 
@@ -136,6 +190,7 @@ export class SpanTileService {
   invalidate() {
     this.version += 1;
     this.snapshots.clear();
+    this.loaded.clear();
     this.clearCache();
     this.seenVersion = null;
     this.defaultPair = null;
@@ -183,7 +238,7 @@ export class SpanTileService {
       if (!snap || this.snapshots.get(key) !== promise || sameFp(snap.fp, next)) continue;
       changed = true;
       const ok = await this.patch(em, snap, next).catch(() => false);
-      if (!ok) this.snapshots.delete(key);
+      if (!ok) this.dropSnapshot(key);
     }
     if (changed) {
       this.version += 1;
@@ -234,18 +289,31 @@ export class SpanTileService {
     return snap.n === next.sc && snap.structures.length === next.tc;
   }
 
-  /** The rows a snapshot is made of: all spans, or the given ones. */
-  private async spanRows(em: EntityManager, pair: TilePair | null, ids?: string[]): Promise<any[]> {
+  /**
+   * The rows a snapshot is made of: the given spans; or one chunk of spans in id order after `after.id`; or the
+   * spans whose first structure lies in `box` (the covering index on structure positions finds them).
+   */
+  private async spanRows(em: EntityManager, pair: TilePair | null, ids?: string[], after?: { id: string; limit: number }, box?: LonLatBox): Promise<any[]> {
     const withAssessment = pair && (await tableExists(em, 'assessments'));
     const params: unknown[] = withAssessment ? [pair!.harvesterProfileId, pair!.droneProfileId] : [];
-    if (ids) params.push(...ids);
+    let where = '';
+    if (ids) {
+      where = ` where s.id in (${marks(ids.length)})`;
+      params.push(...ids);
+    } else if (after) {
+      where = ' where s.id > ? order by s.id limit ?';
+      params.push(after.id, after.limit);
+    } else if (box) {
+      where = ' where a.lat between ? and ? and a.lon between ? and ?';
+      params.push(box.south, box.north, box.west, box.east);
+    }
     return sql.all<any>(
       em,
       'select s.id, s.line_id, s.status, s.length_m, a.lon as lon0, a.lat as lat0, b.lon as lon1, b.lat as lat1' +
         (withAssessment ? ', x.score, x.harvest_w, x.perchable' : '') +
         ' from spans s join structures a on a.id = s.from_structure_id join structures b on b.id = s.to_structure_id' +
         (withAssessment ? ' left join assessments x on x.span_id = s.id and x.harvester_profile_id = ? and x.drone_profile_id = ?' : '') +
-        (ids ? ` where s.id in (${marks(ids.length)})` : ''),
+        where,
       params,
     );
   }
@@ -277,15 +345,73 @@ export class SpanTileService {
     return this.defaultPair;
   }
 
+  private dropSnapshot(key: string) {
+    this.snapshots.delete(key);
+    this.loaded.delete(key);
+  }
+
   private loadSnapshot(pair: TilePair | null): Promise<Snapshot> {
-    const key = pair ? `${pair.harvesterProfileId}|${pair.droneProfileId}` : '-';
+    const key = pairKey(pair);
     let p = this.snapshots.get(key);
     if (!p) {
-      p = this.readSnapshot(pair);
-      this.snapshots.set(key, p);
-      p.catch(() => this.snapshots.delete(key));
+      const promise = (p = this.readSnapshot(pair));
+      this.snapshots.set(key, promise);
+      promise.then(
+        (snap) => {
+          if (this.snapshots.get(key) !== promise) return;
+          this.loaded.set(key, snap);
+          void this.warmLayers(key, promise, snap);
+        },
+        () => {
+          if (this.snapshots.get(key) === promise) this.dropSnapshot(key);
+        },
+      );
     }
     return p;
+  }
+
+  /** Builds the generalised layers of a fresh snapshot in the background, one zoom after another (the map's usual zooms first). */
+  private async warmLayers(key: string, promise: Promise<Snapshot>, snap: Snapshot) {
+    for (const z of WARM_ZOOMS) {
+      if (this.closed || this.snapshots.get(key) !== promise) return;
+      await layerOf(snap, z, this.stats).ready;
+    }
+  }
+
+  /**
+   * A tile from its own box query, for the first tiles after a start while the snapshot is read: the spans whose
+   * first structure lies in the tile's buffered box widened by the longest span (and, at generalised zooms, by one
+   * cell) are all the spans that can meet the tile or share a cell with one that does, so the plain path over
+   * them gives the same features as over the whole snapshot (a test compares them).
+   */
+  private async directTile(pair: TilePair | null, z: number, x: number, y: number, filters: SpanMapFilters): Promise<Buffer> {
+    this.stats.directTiles += 1;
+    const em = this.orm.em.fork();
+    const statuses = Object.keys(STATUS_INDEX);
+    const [{ m }] = await sql.all<{ m: number | null }>(
+      em,
+      `select max(m) as m from (${statuses.map(() => 'select max(length_m) as m from spans where status = ?').join(' union all ')}) as t`,
+      statuses,
+    );
+    const widen = ((Number(m) || 0) * 1.1 + 10) / M_PER_DEG;
+    const pad = (TILE_BUFFER + (z < FULL_DETAIL_ZOOM ? cellSizeAt(z) : 0)) / TILE_EXTENT;
+    const north = tileLat(y - pad, z);
+    const south = tileLat(y + 1 + pad, z);
+    const cos = Math.cos((Math.min(89, Math.max(Math.abs(north), Math.abs(south)) + widen) * Math.PI) / 180);
+    const box = { west: tileLon(x - pad, z) - widen / cos, east: tileLon(x + 1 + pad, z) + widen / cos, south: south - widen, north: north + widen };
+    const snap = emptySnapshot(pair, { sc: 0, su: null, tc: 0, tu: null, ac: 0, au: null });
+    for (const r of await this.spanRows(em, pair, undefined, undefined, box)) upsertSpan(snap, r);
+    if (z >= STRUCTURE_MIN_ZOOM) {
+      const tp = TILE_BUFFER / TILE_EXTENT;
+      const rows = await sql.all<any>(em, 'select id, line_id, lon, lat, kind, label from structures where lat between ? and ? and lon between ? and ?', [
+        tileLat(y + 1 + tp, z),
+        tileLat(y - tp, z),
+        tileLon(x - tp, z),
+        tileLon(x + 1 + tp, z),
+      ]);
+      for (const t of rows) upsertStructure(snap, t);
+    }
+    return Buffer.from(buildTile(snap, z, x, y, filters, true));
   }
 
   private async readSnapshot(pair: TilePair | null): Promise<Snapshot> {
@@ -294,37 +420,21 @@ export class SpanTileService {
     // The fingerprint is read first: anything written after it is picked up by the next sync.
     const fp = await this.readFingerprint(em);
     this.ensureWatcher();
-    const rows = await this.spanRows(em, pair);
-    const structures = await sql.all<any>(em, 'select id, line_id, lon, lat, kind, label from structures');
-    const snap: Snapshot = {
-      n: 0,
-      ids: [],
-      index: new Map(),
-      lineIds: [],
-      statuses: [],
-      lon0: [],
-      lat0: [],
-      lon1: [],
-      lat1: [],
-      mx0: [],
-      my0: [],
-      mx1: [],
-      my1: [],
-      lengthM: [],
-      score: [],
-      harvestW: [],
-      perchable: [],
-      grid: new Map(),
-      lineSpans: new Map(),
-      layers: [],
-      structures: [],
-      structureIndex: new Map(),
-      structureGrid: new Map(),
-      pair,
-      fp,
-    };
-    for (const r of rows) upsertSpan(snap, r);
-    for (const t of structures) upsertStructure(snap, t);
+    const snap = emptySnapshot(pair, fp);
+    // Read in chunks in id order, so the first tiles' own queries (and every other request) get the connection
+    // between chunks instead of waiting for the whole read.
+    for (let after = ''; ; ) {
+      const rows = await this.spanRows(em, pair, undefined, { id: after, limit: SNAPSHOT_CHUNK });
+      for (const r of rows) upsertSpan(snap, r);
+      if (rows.length < SNAPSHOT_CHUNK) break;
+      after = rows[rows.length - 1].id;
+    }
+    for (let after = ''; ; ) {
+      const rows = await sql.all<any>(em, 'select id, line_id, lon, lat, kind, label from structures where id > ? order by id limit ?', [after, SNAPSHOT_CHUNK]);
+      for (const t of rows) upsertStructure(snap, t);
+      if (rows.length < SNAPSHOT_CHUNK) break;
+      after = rows[rows.length - 1].id;
+    }
     return snap;
   }
 
@@ -354,7 +464,8 @@ export class SpanTileService {
    */
   async tile(z: number, x: number, y: number, pair: Partial<TilePair> = {}, filters: SpanMapFilters = {}): Promise<Buffer> {
     const resolved = await this.resolvePair(this.orm.em.fork(), pair);
-    const key = `${resolved ? `${resolved.harvesterProfileId}|${resolved.droneProfileId}` : '-'}/${filterKey(filters)}/${z}/${x}/${y}`;
+    const snapKey = pairKey(resolved);
+    const key = `${snapKey}/${filterKey(filters)}/${z}/${x}/${y}`;
     const version = this.version;
     const hit = this.cache.get(key);
     if (hit) {
@@ -364,7 +475,18 @@ export class SpanTileService {
       this.cache.set(key, hit);
       return hit;
     }
-    const snap = await this.loadSnapshot(resolved);
+    let snap = this.loaded.get(snapKey);
+    const layered = z < FULL_DETAIL_ZOOM && !filters.lineId && filters.minHarvestW === undefined && filters.minScore === undefined;
+    // Not read yet (a start) or this zoom's layer still building: from its own query, not cached (no sync watches
+    // the database before a snapshot is read), and the snapshot is read meanwhile.
+    if (z >= DIRECT_MIN_ZOOM && (!snap || (layered && !snap.layers[z]?.isBuilt))) {
+      const bytes = await this.directTile(resolved, z, x, y, filters);
+      if (!snap) void this.loadSnapshot(resolved).catch(() => undefined);
+      else void layerOf(snap, z, this.stats);
+      return bytes;
+    }
+    snap ??= await this.loadSnapshot(resolved);
+    if (layered) await layerOf(snap, z, this.stats).ready;
     const bytes = Buffer.from(buildTile(snap, z, x, y, filters, false, this.stats));
     this.stats.builds += 1;
     if (version === this.version) {
@@ -379,6 +501,12 @@ export class SpanTileService {
       this.cacheBytes += bytes.length;
     }
     return bytes;
+  }
+
+  /** Resolves when this pair's snapshot is read and all its generalised layers are built. */
+  async layersReady(pair: Partial<TilePair> = {}): Promise<void> {
+    const snap = await this.loadSnapshot(await this.resolvePair(this.orm.em.fork(), pair));
+    for (const z of WARM_ZOOMS) await layerOf(snap, z, this.stats).ready;
   }
 
   /**
@@ -550,7 +678,7 @@ function cellKey(snap: Snapshot, i: number, scale: number, cs: number) {
 
 /**
  * The plain path: every span (or the given candidates) looked at for this one tile. Below FULL_DETAIL_ZOOM, spans
- * of one status whose midpoints share a cell are one feature (the best-harvesting span, ties to the first read,
+ * of one status whose midpoints share a cell are one feature (the best-harvesting span, ties to the lowest id,
  * with the cell's count, best harvest and best score); a cell is in every tile its spans meet. The fast path below
  * gives the same features from layers built once per data version; a test compares the two.
  */
@@ -564,7 +692,7 @@ function plainSpanFeatures(snap: Snapshot, z: number, x: number, y: number, filt
   }
   const cs = cellSizeAt(z);
   const cells = new Map<number, { rep: number; count: number; maxH: number; maxS: number; meets: boolean }>();
-  for (const i of [...list].sort((a, b) => a - b)) {
+  for (const i of list) {
     if (!passes(snap, i, filters)) continue;
     const key = cellKey(snap, i, scale, cs);
     const h = rank(snap.harvestW[i]);
@@ -573,7 +701,7 @@ function plainSpanFeatures(snap: Snapshot, z: number, x: number, y: number, filt
     const c = cells.get(key);
     if (!c) cells.set(key, { rep: i, count: 1, maxH: h, maxS: s, meets: m });
     else {
-      if (h > c.maxH) c.rep = i;
+      if (h > c.maxH || (h === c.maxH && snap.ids[i] < snap.ids[c.rep])) c.rep = i;
       c.maxH = Math.max(c.maxH, h);
       c.maxS = Math.max(c.maxS, s);
       c.count += 1;
@@ -605,6 +733,14 @@ class GeneralLayer {
   private reg: number[] = []; // registered tile range tx0, ty0, tx1, ty1 per cell (tx1 < tx0: none)
   private tiles = new Map<number, number[]>();
   private dirty = new Set<number>();
+  /** Spans below this entry are linked (the build goes in chunks, yielding between them). */
+  private cursor = 0;
+  private built = false;
+  get isBuilt() {
+    return this.built;
+  }
+  /** Resolves when every span is in its cell and every cell filed; edits meanwhile are taken in as they come. */
+  readonly ready: Promise<void>;
 
   constructor(
     readonly z: number,
@@ -612,8 +748,20 @@ class GeneralLayer {
   ) {
     this.scale = worldScale(z);
     this.cs = cellSizeAt(z);
-    for (let i = 0; i < snap.n; i++) this.add(i);
-    this.refresh();
+    this.ready = this.build();
+  }
+
+  private async build() {
+    for (;;) {
+      if (this.cursor < this.snap.n) {
+        const end = Math.min(this.snap.n, this.cursor + LAYER_CHUNK);
+        this.grow(end);
+        while (this.cursor < end) this.link(this.cursor++);
+      } else if (this.dirty.size) this.refresh(LAYER_CHUNK);
+      else break;
+      await new Promise((r) => setImmediate(r));
+    }
+    this.built = true;
   }
 
   private grow(n: number) {
@@ -627,9 +775,14 @@ class GeneralLayer {
     this.next = next;
   }
 
-  /** Links span i into its cell (after the snapshot entry is written). */
+  /** Links span i into its cell (after the snapshot entry is written); spans the build has not reached yet wait for it. */
   add(i: number) {
+    if (!this.built && i >= this.cursor) return;
     this.grow(i + 1);
+    this.link(i);
+  }
+
+  private link(i: number) {
     const key = cellKey(this.snap, i, this.scale, this.cs);
     let c = this.keys.get(key);
     if (c === undefined) {
@@ -667,11 +820,14 @@ class GeneralLayer {
   }
 
   /** Recomputes the cells changed since the last refresh and files them under the tiles they now meet. */
-  refresh() {
+  refresh(limit = Infinity) {
     if (this.dirty.size === 0) return;
     const { snap, scale } = this;
     const max = 2 ** this.z - 1;
+    let done = 0;
     for (const c of this.dirty) {
+      if (done++ >= limit) break;
+      this.dirty.delete(c);
       let count = 0;
       let rep = -1;
       let maxH = -Infinity;
@@ -683,7 +839,7 @@ class GeneralLayer {
       for (let i = this.head[c]; i >= 0; i = this.next[i]) {
         count++;
         const h = rank(snap.harvestW[i]);
-        if (rep < 0 || h > maxH || (h === maxH && i < rep)) rep = i;
+        if (rep < 0 || h > maxH || (h === maxH && snap.ids[i] < snap.ids[rep])) rep = i;
         maxH = Math.max(maxH, h);
         maxS = Math.max(maxS, rank(snap.score[i]));
         const x0 = pxOf(snap.mx0[i], scale);
@@ -731,7 +887,6 @@ class GeneralLayer {
         this.reg[r + 3] = ty1;
       }
     }
-    this.dirty.clear();
   }
 
   /** The generalised features of tile (x, y); `status` keeps the cells of that status only. */
