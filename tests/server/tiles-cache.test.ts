@@ -36,6 +36,8 @@ beforeAll(async () => {
   const r = (row.lat * Math.PI) / 180;
   at = { z, x: Math.floor(((row.lon + 180) / 360) * 2 ** z), y: Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z) };
   service = new SpanTileService(orm);
+  // Read into memory first (tiles asked for before that come from their own query, uncached: tiles-generalised.test.ts).
+  await service.layersReady();
 }, 120_000);
 afterAll(async () => {
   service?.close();
