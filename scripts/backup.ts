@@ -2,6 +2,7 @@
 // npm run backup -- --verify DIR   checks a backup against its manifest (checksums, integrity check)
 import { loadConfig } from '../server/env.ts';
 import { createBackup, verifyBackup } from '../server/backup/backup.ts';
+import { storageFromConfig } from '../server/modules/photos/storage.ts';
 
 const args = process.argv.slice(2);
 const arg = (name: string) => (args.indexOf(name) >= 0 ? args[args.indexOf(name) + 1] : undefined);
@@ -22,7 +23,7 @@ try {
     }
     console.log(`The backup of ${manifest!.createdAt} verifies: ${manifest!.database.rows.spans ?? 0} spans, ${manifest!.files.length} photo files, integrity ok.`);
   } else if (arg('--out')) {
-    const m = await createBackup({ databasePath: config.databasePath, uploadsDir: config.uploadsDir, outDir: arg('--out')! });
+    const m = await createBackup({ databasePath: config.databasePath, storage: storageFromConfig(config), outDir: arg('--out')! });
     console.log(`Backed up ${config.databasePath} to ${arg('--out')}: ${m.database.rows.spans ?? 0} spans, ${m.database.rows.photos ?? 0} photos (${m.files.length} files).`);
     if (m.photosDeletedDuringBackup.length) console.log(`${m.photosDeletedDuringBackup.length} photo(s) deleted while the copy ran are left out.`);
   } else {

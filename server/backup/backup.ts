@@ -1,4 +1,5 @@
-// Online backup and restore of the database and the photo files.
+// Online backup and restore of the database and the stored files (photos and line-permission documents), from and
+// to either store: the uploads folder or an S3 bucket (STORAGE_URL); the backup folder itself is always local.
 // Backup: `VACUUM INTO` copies one consistent snapshot of the database while the server goes on writing (in WAL
 // mode it is a reader and blocks no writer); then every file the snapshot's photo rows name is copied. A photo
 // deleted while the copy ran has no files left to copy: its row is removed from the copy and named in the manifest.
@@ -6,9 +7,12 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
+import { pipeline } from 'node:stream/promises';
 import sqlite3 from 'sqlite3';
 import { BUSY_TIMEOUT_MS } from '../db.ts';
 import { runningServer } from '../server-lock.ts';
+import type { PhotoStorage } from '../modules/photos/photo.storage.ts';
+import { localDiskStorage } from '../modules/photos/photo.storage.ts';
 
 export const DB_FILE = 'roostline.sqlite';
 export const MANIFEST = 'manifest.json';
@@ -70,8 +74,25 @@ async function fsyncFile(file: string) {
   }
 }
 
-/** Writes a complete backup into `outDir` (created; must not hold one already). Safe while the server runs. */
-export async function createBackup(opts: { databasePath: string; uploadsDir: string; outDir: string }): Promise<Manifest> {
+/** Copies one stored file into the backup folder; false when the store has no such key. */
+async function copyOut(storage: PhotoStorage, key: string, to: string): Promise<boolean> {
+  const obj = await storage.get(key);
+  if (!obj) return false;
+  fs.mkdirSync(path.dirname(to), { recursive: true });
+  await pipeline(obj.body, fs.createWriteStream(to));
+  return true;
+}
+
+const DOCUMENT_TYPES: Record<string, string> = { pdf: 'application/pdf', jpg: 'image/jpeg', png: 'image/png', webp: 'image/webp' };
+const contentTypeOf = (key: string) =>
+  key.endsWith('.original') ? 'application/octet-stream' : key.endsWith('.jpg') ? 'image/jpeg' : (DOCUMENT_TYPES[key.split('.').pop() ?? ''] ?? 'application/octet-stream');
+
+/**
+ * Writes a complete backup into `outDir` (created; must not hold one already). Safe while the server runs. Files are
+ * read from `storage` (the app's store), or from the folder `uploadsDir` when no store is given.
+ */
+export async function createBackup(opts: { databasePath: string; uploadsDir?: string; storage?: PhotoStorage; outDir: string }): Promise<Manifest> {
+  const storage = opts.storage ?? localDiskStorage(opts.uploadsDir ?? 'uploads');
   const out = path.resolve(opts.outDir);
   if (fs.existsSync(path.join(out, MANIFEST))) throw new Error(`${out} already holds a backup; choose a new folder`);
   const work = `${out}.partial-${process.pid}`;
@@ -95,16 +116,8 @@ export async function createBackup(opts: { databasePath: string; uploadsDir: str
       let missing = false;
       for (const v of VARIANTS) {
         const key = p.storage_key + v;
-        const from = path.join(opts.uploadsDir, key);
-        const to = path.join(work, 'uploads', key);
-        fs.mkdirSync(path.dirname(to), { recursive: true });
-        try {
-          await fs.promises.copyFile(from, to);
-          copied.push(key);
-        } catch (err) {
-          if ((err as NodeJS.ErrnoException).code !== 'ENOENT') throw err;
-          missing = true;
-        }
+        if (await copyOut(storage, key, path.join(work, 'uploads', key))) copied.push(key);
+        else missing = true;
       }
       if (missing) {
         deleted.push(p.id);
@@ -113,6 +126,18 @@ export async function createBackup(opts: { databasePath: string; uploadsDir: str
         continue;
       }
       for (const key of copied) files.push({ key, ...(await sha256(path.join(work, 'uploads', key))) });
+    }
+    // Attached permission documents: one file each. One replaced while the copy ran is gone from the store; the
+    // copy then keeps the permission without a document (the replacement is newer than the snapshot anyway).
+    const docs = await copy.all<{ id: string; document_key: string }>('select id, document_key from line_permissions where document_key is not null order by id');
+    for (const d of docs) {
+      const to = path.join(work, 'uploads', d.document_key);
+      if (await copyOut(storage, d.document_key, to)) files.push({ key: d.document_key, ...(await sha256(to)) });
+      else
+        await copy.run(
+          'update line_permissions set document_key = null, document_name = null, document_content_type = null, document_bytes = null where id = ?',
+          [d.id],
+        );
     }
     const rows = await rowCounts(copy);
     const check = (await copy.all<{ integrity_check: string }>('PRAGMA integrity_check')).map((r) => r.integrity_check).join('\n');
@@ -175,7 +200,7 @@ export async function verifyBackup(dir: string): Promise<{ manifest: Manifest | 
  * Puts a backup back: the server must be stopped; an existing database is only replaced with `force` (the replaced
  * database and uploads are kept beside them as `*.before-restore-<time>`).
  */
-export async function restoreBackup(opts: { from: string; databasePath: string; uploadsDir: string; force?: boolean }): Promise<Manifest> {
+export async function restoreBackup(opts: { from: string; databasePath: string; uploadsDir: string; storage?: PhotoStorage & { kind?: string }; force?: boolean }): Promise<Manifest> {
   const pid = runningServer(opts.databasePath);
   if (pid) throw new Error(`A Roostline server (pid ${pid}) is running on ${opts.databasePath}; stop it before restoring`);
   const { manifest, problems } = await verifyBackup(opts.from);
@@ -187,13 +212,20 @@ export async function restoreBackup(opts: { from: string; databasePath: string; 
   const tmpDb = `${opts.databasePath}.restoring`;
   fs.copyFileSync(path.join(opts.from, manifest.database.file), tmpDb);
   await fsyncFile(tmpDb);
+  // An object store gets every file put back under its key (keys are unique ids; objects the restored database does
+  // not name are left to the orphan sweep). The uploads folder is rebuilt beside the old one and swapped in below.
+  const toBucket = opts.storage && opts.storage.kind === 's3' ? opts.storage : null;
   const tmpUploads = `${opts.uploadsDir}.restoring`;
-  fs.rmSync(tmpUploads, { recursive: true, force: true });
-  fs.mkdirSync(tmpUploads, { recursive: true });
-  for (const f of manifest.files) {
-    const to = path.join(tmpUploads, f.key);
-    fs.mkdirSync(path.dirname(to), { recursive: true });
-    fs.copyFileSync(path.join(opts.from, 'uploads', f.key), to);
+  if (toBucket) {
+    for (const f of manifest.files) await toBucket.put(f.key, fs.createReadStream(path.join(opts.from, 'uploads', f.key)), contentTypeOf(f.key));
+  } else {
+    fs.rmSync(tmpUploads, { recursive: true, force: true });
+    fs.mkdirSync(tmpUploads, { recursive: true });
+    for (const f of manifest.files) {
+      const to = path.join(tmpUploads, f.key);
+      fs.mkdirSync(path.dirname(to), { recursive: true });
+      fs.copyFileSync(path.join(opts.from, 'uploads', f.key), to);
+    }
   }
   if (exists) {
     fs.renameSync(opts.databasePath, `${opts.databasePath}.before-restore-${stamp}`);
@@ -201,8 +233,10 @@ export async function restoreBackup(opts: { from: string; databasePath: string; 
   // A write-ahead log of the old database must never be replayed into the restored one.
   for (const suffix of ['-wal', '-shm']) fs.rmSync(opts.databasePath + suffix, { force: true });
   fs.renameSync(tmpDb, opts.databasePath);
-  if (fs.existsSync(opts.uploadsDir)) fs.renameSync(opts.uploadsDir, `${opts.uploadsDir}.before-restore-${stamp}`);
-  fs.renameSync(tmpUploads, opts.uploadsDir);
+  if (!toBucket) {
+    if (fs.existsSync(opts.uploadsDir)) fs.renameSync(opts.uploadsDir, `${opts.uploadsDir}.before-restore-${stamp}`);
+    fs.renameSync(tmpUploads, opts.uploadsDir);
+  }
   return manifest;
 }
 

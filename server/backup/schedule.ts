@@ -28,7 +28,7 @@ export function scheduleDailyBackups(ctx: AppContext): () => void {
   const check = () => {
     if (running || ctx.lifecycle.draining || !backupDue(dir, ctx.config.backupHourUtc)) return;
     const out = path.join(dir, backupName());
-    running = createBackup({ databasePath: ctx.config.databasePath, uploadsDir: ctx.config.uploadsDir, outDir: out })
+    running = createBackup({ databasePath: ctx.config.databasePath, storage: ctx.storage, outDir: out })
       .then((m) => {
         const gone = pruneBackups(dir, ctx.config.backupKeep);
         console.log(`backup: wrote ${out} (${m.files.length} photo files)${gone.length ? `; removed ${gone.length} older` : ''}`);

@@ -52,7 +52,7 @@ export const testStorageKind = (): 'local' | 's3' => (process.env.ROOSTLINE_TEST
  * A fresh app on its own in-memory database, with the four demo accounts. Under the PostgreSQL run
  * (vitest.postgres.config.ts) the database is a fresh one on the throwaway cluster instead.
  */
-export async function makeTestApp(overrides: Partial<AppConfig> = {}, opts: { seed?: (orm: MikroORM) => Promise<void> } = {}): Promise<TestApp> {
+export async function makeTestApp(overrides: Partial<AppConfig> = {}, opts: { seed?: (orm: MikroORM) => Promise<void>; demoUsers?: boolean } = {}): Promise<TestApp> {
   const pg = overrides.databaseUrl === undefined ? await freshPostgresDatabase() : null;
   const s3 = overrides.storageUrl === undefined && testStorageKind() === 's3' ? await startS3Fake() : null;
   const config = testConfig({
@@ -61,7 +61,8 @@ export async function makeTestApp(overrides: Partial<AppConfig> = {}, opts: { se
     ...(s3 ? { storageUrl: `s3://${s3.bucket}/app-${process.pid}`, s3Endpoint: s3.endpoint, s3Credentials: S3_FAKE_CREDENTIALS } : {}),
   });
   const orm = await initORM(databaseTarget(config));
-  await seedDemoUsers(orm.em.fork());
+  // Off for a database that already holds them (a restored or copied one).
+  if (opts.demoUsers !== false) await seedDemoUsers(orm.em.fork());
   if (opts.seed) await opts.seed(orm);
   const { app, close, ctx } = createApp({ orm, config, clientDir: '/nonexistent' });
   const client = () => makeClient(app);
