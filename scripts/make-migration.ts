@@ -11,6 +11,7 @@ import path from 'node:path';
 import { MikroORM } from '@mikro-orm/sqlite';
 import { MikroORM as PostgresORM } from '@mikro-orm/postgresql';
 import { ormOptions, postgresOrmOptions } from '../server/db.ts';
+import { postgisStatement } from '../server/sql/postgis.ts';
 import { postgresBinDir, startCluster } from '../tests/postgres/cluster.ts';
 
 const tablesArg = process.argv.indexOf('--tables');
@@ -25,6 +26,8 @@ function statementsOf(sql: string, quote: string) {
     .split(/;\s*\n/)
     .map((s) => s.trim())
     .filter((s) => s && !/^set /i.test(s))
+    // PostGIS's geometry columns live only in the PostgreSQL database (server/sql/postgis.ts), never in the entities.
+    .filter((s) => quote !== '"' || !postgisStatement(s))
     .filter((s) => !tables || tables.some((t) => new RegExp(`(table|on) ${quote}${t}${quote}`).test(s)))
     .map((s) => `    this.addSql(${JSON.stringify(s.replace(/;$/, ''))});`)
     .join('\n');

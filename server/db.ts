@@ -10,6 +10,7 @@ import { migrationsList } from './migrations/index.ts';
 import { BoundSqliteDriver } from './sql/sqlite-driver.ts';
 import { sql } from './sql/query.ts';
 import { postgresMigrationsList } from './migrations/postgres/index.ts';
+import { ensurePostgis, POSTGIS_TABLES } from './sql/postgis.ts';
 
 /** A `postgres://` or `postgresql://` address (DATABASE_URL) rather than an SQLite file path. */
 export const isPostgresUrl = (target: string) => /^postgres(ql)?:\/\//i.test(target);
@@ -66,6 +67,8 @@ export function postgresOrmOptions(url: string): PostgresOptions {
     // Timestamps are `timestamptz` and always read and written in UTC, whatever the server's time zone.
     forceUtcTimezone: true,
     pool: { min: 0, max: POSTGRES_POOL_MAX },
+    // PostGIS's own table (spatial reference systems) is not the app's: the schema generator leaves it alone.
+    schemaGenerator: { skipTables: POSTGIS_TABLES },
     migrations: { migrationsList: postgresMigrationsList, snapshot: false, silent: true, transactional: true, allOrNothing: true, tableName: 'mikro_orm_migrations' },
   };
 }
@@ -83,6 +86,8 @@ export async function initORM(target: string): Promise<MikroORM> {
     await knex.transaction(async (trx) => {
       await trx.raw('select pg_advisory_xact_lock(?)', [MIGRATION_LOCK]);
       await orm.getMigrator().up();
+      // PostGIS installed after a start with POSTGIS=off: its columns are added now.
+      await ensurePostgis(orm.em as never);
     });
     return orm as unknown as MikroORM;
   }

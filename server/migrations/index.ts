@@ -19,6 +19,7 @@ import { Migration20261203125243 } from './Migration20261203125243.ts';
 import { Migration20261203131056 } from './Migration20261203131056.ts';
 import { Migration20261203142915 } from './Migration20261203142915.ts';
 import { Migration20261203170800 } from './Migration20261203170800.ts';
+import { Migration20261203172000 } from './Migration20261203172000.ts';
 import { Migration20261203173214 } from './Migration20261203173214.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
@@ -41,5 +42,6 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203131056', class: Migration20261203131056 },
   { name: 'Migration20261203142915', class: Migration20261203142915 },
   { name: 'Migration20261203170800', class: Migration20261203170800 },
+  { name: 'Migration20261203172000', class: Migration20261203172000 },
   { name: 'Migration20261203173214', class: Migration20261203173214 },
 ];

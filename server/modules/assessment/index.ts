@@ -18,6 +18,7 @@ import { scoringSettingsRouter } from './settings.router.ts';
 import { spanAssessmentRouter } from './span-assessment.router.ts';
 import { assessmentReady, registerRescoreWork, rescoreSpansNow, startRescore } from './rescore.ts';
 import { sql } from '../../sql/query.ts';
+import { usesPostgis } from '../../sql/postgis.ts';
 
 export { assessmentForSpans, assessSpans, assessSpansBulk, defaultPairIds, registerAssessedListener } from './assessment.service.ts';
 export { startRescore } from './rescore.ts';
@@ -26,10 +27,25 @@ export { perchableSpanIds, perchableSql, perchStandings, freshPerchStanding, ref
 /** Up to this many spans are recomputed within the request that changed them; more go to a background job. */
 const INLINE_LIMIT = 50;
 
-/** Spans whose segment's bounding box overlaps the polygon's: the only ones a zone change can affect. */
+/**
+ * Spans whose segment's bounding box overlaps the polygon's: the only ones a zone change can affect (a superset
+ * on purpose: rescoring a span the zone misses costs little, missing one it touches would leave a stale gate).
+ * With PostGIS the same box test runs on the spans' GiST index; otherwise on the structures' coordinates.
+ */
 export async function spansNear(em: EntityManager, polygons: Polygon[]): Promise<string[]> {
+  const near = (await usesPostgis(em)) ? spansNearBy.postgis : spansNearBy.javascript;
   const ids = new Set<string>();
-  for (const p of polygons) {
+  for (const p of polygons) for (const id of await near(em, p)) ids.add(id);
+  return [...ids];
+}
+
+/** Both paths of spansNear for one polygon (the test holds them equal on the same data). */
+export const spansNearBy = {
+  async postgis(em: EntityManager, p: Polygon): Promise<string[]> {
+    const [x0, y0, x1, y1] = turfBbox(p);
+    return (await sql.all<{ id: string }>(em, 'select id from spans where geom && ST_MakeEnvelope(?, ?, ?, ?, 4326)', [x0, y0, x1, y1])).map((r) => r.id);
+  },
+  async javascript(em: EntityManager, p: Polygon): Promise<string[]> {
     const [x0, y0, x1, y1] = turfBbox(p);
     const rows = await sql.all<{ id: string }>(
       em,
@@ -38,10 +54,9 @@ export async function spansNear(em: EntityManager, polygons: Polygon[]): Promise
         'where (a.lon <= ? or b.lon <= ?) and (a.lon >= ? or b.lon >= ?) and (a.lat <= ? or b.lat <= ?) and (a.lat >= ? or b.lat >= ?)',
       [x1, x1, x0, x0, y1, y1, y0, y0],
     );
-    for (const r of rows) ids.add(r.id);
-  }
-  return [...ids];
-}
+    return rows.map((r) => r.id);
+  },
+};
 
 /** Rescores a list of spans in the background (a line's load changed, a zone moved, an import landed), as a durable job. */
 function startRescoreOf(ctx: AppContext, reason: string, spanIds: string[]) {

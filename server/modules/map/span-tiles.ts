@@ -7,6 +7,8 @@ import vtpbf from 'vt-pbf';
 import { defaultAssessmentPair, tableExists } from '../inventory/inventory.service.ts';
 import { dataVersion } from '../../sql/data-version.ts';
 import { marks, sql } from '../../sql/query.ts';
+import { usesPostgis } from '../../sql/postgis.ts';
+import { postgisSpanTile } from './postgis-tiles.ts';
 
 export const TILE_EXTENT = 4096;
 /** Tile buffer in tile units (as in the basemap): features this close outside the tile are included. */
@@ -182,6 +184,8 @@ export class SpanTileService {
   private watcher: NodeJS.Timeout | null = null;
   private closed = false;
   private defaultPair: Promise<TilePair | null> | null = null;
+  /** The fingerprint the cached PostGIS tiles are current with (null: none made since the last new version). */
+  private postgisFp: Fingerprint | null = null;
   readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0, layerBuilds: 0, directTiles: 0 };
 
   constructor(private readonly orm: MikroORM) {}
@@ -194,6 +198,7 @@ export class SpanTileService {
     this.clearCache();
     this.seenVersion = null;
     this.defaultPair = null;
+    this.postgisFp = null;
   }
 
   get dataVersion() {
@@ -225,7 +230,7 @@ export class SpanTileService {
   }
 
   private async sync() {
-    if (this.closed || this.snapshots.size === 0) return;
+    if (this.closed || (this.snapshots.size === 0 && this.postgisFp === null)) return;
     const em = this.orm.em.fork();
     // Read before the fingerprint: a write after it moves the version again, so the next sync looks.
     const version = await dataVersion(em);
@@ -240,6 +245,8 @@ export class SpanTileService {
       const ok = await this.patch(em, snap, next).catch(() => false);
       if (!ok) this.dropSnapshot(key);
     }
+    if (this.postgisFp && !sameFp(this.postgisFp, next)) changed = true;
+    if (this.postgisFp) this.postgisFp = next;
     if (changed) {
       this.version += 1;
       this.clearCache();
@@ -475,19 +482,24 @@ export class SpanTileService {
       this.cache.set(key, hit);
       return hit;
     }
+    // Full-detail zooms on PostGIS come from the database's spatial index (cached like the others), no snapshot needed.
+    const viaPostgis = z >= FULL_DETAIL_ZOOM ? await this.postgisTile(resolved, z, x, y, filters) : null;
     let snap = this.loaded.get(snapKey);
     const layered = z < FULL_DETAIL_ZOOM && !filters.lineId && filters.minHarvestW === undefined && filters.minScore === undefined;
     // Not read yet (a start) or this zoom's layer still building: from its own query, not cached (no sync watches
     // the database before a snapshot is read), and the snapshot is read meanwhile.
-    if (z >= DIRECT_MIN_ZOOM && (!snap || (layered && !snap.layers[z]?.isBuilt))) {
+    if (!viaPostgis && z >= DIRECT_MIN_ZOOM && (!snap || (layered && !snap.layers[z]?.isBuilt))) {
       const bytes = await this.directTile(resolved, z, x, y, filters);
       if (!snap) void this.loadSnapshot(resolved).catch(() => undefined);
       else void layerOf(snap, z, this.stats);
       return bytes;
     }
-    snap ??= await this.loadSnapshot(resolved);
-    if (layered) await layerOf(snap, z, this.stats).ready;
-    const bytes = Buffer.from(buildTile(snap, z, x, y, filters, false, this.stats));
+    let bytes = viaPostgis;
+    if (!bytes) {
+      snap ??= await this.loadSnapshot(resolved);
+      if (layered) await layerOf(snap, z, this.stats).ready;
+      bytes = Buffer.from(buildTile(snap, z, x, y, filters, false, this.stats));
+    }
     this.stats.builds += 1;
     if (version === this.version) {
       while (this.cache.size && (this.cache.size >= MAX_CACHED_TILES || this.cacheBytes + bytes.length > MAX_CACHED_BYTES)) {
@@ -516,6 +528,22 @@ export class SpanTileService {
   async plainTile(z: number, x: number, y: number, pair: Partial<TilePair> = {}, filters: SpanMapFilters = {}): Promise<Buffer> {
     const snap = await this.loadSnapshot(await this.resolvePair(this.orm.em.fork(), pair));
     return Buffer.from(buildTile(snap, z, x, y, filters, true));
+  }
+
+  /** A full-detail tile made by PostGIS (ST_AsMVT); null where PostGIS is not in use (SQLite, POSTGIS=off). */
+  async postgisTile(pair: TilePair | null, z: number, x: number, y: number, filters: SpanMapFilters = {}): Promise<Buffer | null> {
+    const em = this.orm.em.fork();
+    if (!(await usesPostgis(em))) return null;
+    // Read before the tile: a write after it shows as a new fingerprint to the watcher, which drops the cache.
+    if (this.postgisFp === null) this.postgisFp = await this.readFingerprint(em);
+    this.ensureWatcher();
+    const assessed = pair && (await tableExists(em, 'assessments')) ? pair : null;
+    return postgisSpanTile(em, { z, x, y, extent: TILE_EXTENT, buffer: TILE_BUFFER, pair: assessed, filters, withStructures: z >= STRUCTURE_MIN_ZOOM });
+  }
+
+  /** The pair tiles carry when the request names none. */
+  pairFor(pair: Partial<TilePair> = {}): Promise<TilePair | null> {
+    return this.resolvePair(this.orm.em.fork(), pair);
   }
 }
 

@@ -4,6 +4,8 @@ import { distance, lineString, point, pointToLineDistance } from '@turf/turf';
 import { Span } from '../inventory/span.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
 import { audit } from '../audit/audit.service.ts';
+import { usesPostgis } from '../../sql/postgis.ts';
+import { sql } from '../../sql/query.ts';
 import { Photo } from './photo.entity.ts';
 import type { PhotoStorage } from './photo.storage.ts';
 import type { ProcessedPhoto } from './photo.pipeline.ts';
@@ -48,13 +50,35 @@ export function toApi(p: Photo): PhotoApi {
 }
 
 /**
- * Spans whose line between their two structures passes within SUGGEST_WITHIN_M of the point, nearest first
- * (geodesic point-to-segment distance, turf).
+ * Spans whose line between their two structures passes within SUGGEST_WITHIN_M of the point, nearest first.
+ * Distances are on the sphere both ways: with PostGIS, ST_DWithin/ST_Distance on geography (spheroid off) over the
+ * spans' GiST index; otherwise turf's great-circle point-to-segment distance over the structures near the point.
  */
 export async function suggestSpans(em: EntityManager, lat: number, lon: number): Promise<{ spanId: string; distanceM: number }[]> {
-  const reachM = LONGEST_SPAN_M + SUGGEST_WITHIN_M;
-  const dLat = reachM / 111_000;
-  const dLon = reachM / (111_000 * Math.max(Math.cos((lat * Math.PI) / 180), 0.01));
+  const out = (await usesPostgis(em)) ? await spansNearPointPostgis(em, lat, lon) : await spansNearPointJs(em, lat, lon);
+  return out.sort((x, y) => x.distanceM - y.distanceM || x.spanId.localeCompare(y.spanId));
+}
+
+/** Degrees of latitude and longitude that cover `m` metres around `lat` (a prefilter box; the distance test is exact). */
+function boxDegrees(lat: number, m: number) {
+  return { dLat: m / 111_000, dLon: m / (111_000 * Math.max(Math.cos((lat * Math.PI) / 180), 0.01)) };
+}
+
+async function spansNearPointPostgis(em: EntityManager, lat: number, lon: number) {
+  // The box is a little wider than the reach (111 km per degree is a round figure); ST_DWithin decides.
+  const { dLat, dLon } = boxDegrees(lat, SUGGEST_WITHIN_M * 1.5);
+  const rows = await sql.all<{ id: string; d: number }>(
+    em,
+    'with p as (select ST_SetSRID(ST_MakePoint(?, ?), 4326) as g) ' +
+      'select s.id, ST_Distance(s.geom::geography, p.g::geography, false) as d from spans s, p ' +
+      'where s.geom && ST_Expand(p.g, ?, ?) and ST_DWithin(s.geom::geography, p.g::geography, ?, false)',
+    [lon, lat, dLon, dLat, SUGGEST_WITHIN_M],
+  );
+  return rows.map((r) => ({ spanId: r.id, distanceM: Number(r.d) }));
+}
+
+async function spansNearPointJs(em: EntityManager, lat: number, lon: number) {
+  const { dLat, dLon } = boxDegrees(lat, LONGEST_SPAN_M + SUGGEST_WITHIN_M);
   const near = await em.find(Structure, { lat: { $gte: lat - dLat, $lte: lat + dLat }, lon: { $gte: lon - dLon, $lte: lon + dLon } });
   if (!near.length) return [];
   const ids = near.map((s) => s.id);
@@ -74,8 +98,11 @@ export async function suggestSpans(em: EntityManager, lat: number, lon: number):
         : pointToLineDistance(pt, lineString([[a.lon, a.lat], [b.lon, b.lat]]), { units: 'meters', method: 'geodesic' });
     if (distanceM <= SUGGEST_WITHIN_M) out.push({ spanId: span.id, distanceM });
   }
-  return out.sort((x, y) => x.distanceM - y.distanceM || x.spanId.localeCompare(y.spanId));
+  return out;
 }
+
+/** Both paths, for the test that holds them equal on the same data. */
+export const suggestSpansBy = { postgis: spansNearPointPostgis, javascript: spansNearPointJs };
 
 /**
  * Writes the files, then the rows (with their audit entries) in one flush. When anything fails, every file

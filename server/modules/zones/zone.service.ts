@@ -2,6 +2,8 @@ import type { EntityManager } from '@mikro-orm/core';
 import type { Feature, FeatureCollection, LineString, Polygon } from 'geojson';
 import { booleanIntersects } from '@turf/turf';
 import { Zone } from './zone.entity.ts';
+import { usesPostgis } from '../../sql/postgis.ts';
+import { sql } from '../../sql/query.ts';
 
 /** UTC calendar date of an instant, YYYY-MM-DD (zones are valid for whole days). */
 export function isoDay(at: Date): string {
@@ -18,7 +20,9 @@ export function isZoneActive(zone: Pick<Zone, 'validFrom' | 'validTo'>, at: Date
 
 /**
  * The zones active at `at` whose polygon touches or crosses the line (a span between its structures).
- * Used to block approval inside an exclude zone and by the assessment.
+ * Used to block approval inside an exclude zone and by the assessment. With PostGIS the polygons are searched
+ * on their GiST index (ST_Intersects); otherwise every zone is read and tested here (turf). Both test the
+ * polygon and the line in plain longitude/latitude, so they give the same zones.
  */
 export async function activeZonesForGeometry(
   em: EntityManager,
@@ -26,7 +30,21 @@ export async function activeZonesForGeometry(
   at: Date = new Date(),
   opts: { severity?: Zone['severity'] } = {},
 ): Promise<Zone[]> {
-  const zones = await em.find(Zone, opts.severity ? { severity: opts.severity } : {}, { orderBy: { createdAt: 'asc' } });
+  if (await usesPostgis(em)) {
+    const rows = await sql.all<{ id: string }>(
+      em,
+      'select id from zones where ST_Intersects(geom, ST_SetSRID(ST_GeomFromGeoJSON(?::text), 4326))' + (opts.severity ? ' and severity = ?' : ''),
+      opts.severity ? [JSON.stringify(lineString), opts.severity] : [JSON.stringify(lineString)],
+    );
+    if (!rows.length) return [];
+    const zones = await em.find(Zone, { id: { $in: rows.map((r) => r.id) } }, { orderBy: { createdAt: 'asc', id: 'asc' } });
+    return zones.filter((z) => isZoneActive(z, at));
+  }
+  return zonesTouching(await em.find(Zone, opts.severity ? { severity: opts.severity } : {}, { orderBy: { createdAt: 'asc', id: 'asc' } }), lineString, at);
+}
+
+/** The JavaScript rule on zones already read: active at `at` and touching or crossing the line. */
+export function zonesTouching(zones: Zone[], lineString: LineString, at: Date = new Date()): Zone[] {
   return zones.filter((z) => isZoneActive(z, at) && booleanIntersects(z.geometry, lineString));
 }
 
