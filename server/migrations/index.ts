@@ -21,6 +21,7 @@ import { Migration20261203142915 } from './Migration20261203142915.ts';
 import { Migration20261203170800 } from './Migration20261203170800.ts';
 import { Migration20261203172000 } from './Migration20261203172000.ts';
 import { Migration20261203173214 } from './Migration20261203173214.ts';
+import { Migration20261203180000 } from './Migration20261203180000.ts';
 
 export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261202031719', class: Migration20261202031719 },
@@ -44,4 +45,5 @@ export const migrationsList: { name: string; class: any }[] = [
   { name: 'Migration20261203170800', class: Migration20261203170800 },
   { name: 'Migration20261203172000', class: Migration20261203172000 },
   { name: 'Migration20261203173214', class: Migration20261203173214 },
+  { name: 'Migration20261203180000', class: Migration20261203180000 },
 ];

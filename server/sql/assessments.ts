@@ -7,6 +7,7 @@ import { inTransaction, marks, rowsPerStatement } from './bulk.ts';
 import { changeCounter, noteAssessmentOnlyChanges } from './data-version.ts';
 import { sql } from './query.ts';
 import { isPostgres, jsonTextField } from './dialect.ts';
+import { encodeResult, readStoredResult } from '../modules/assessment/result-codec.ts';
 
 const COLUMNS: [string, keyof Assessment][] = [
   ['span_id', 'spanId'],
@@ -27,11 +28,18 @@ const COLUMNS: [string, keyof Assessment][] = [
   ['computed_at', 'computedAt'],
 ];
 
-function encode(v: unknown, pg: boolean): unknown {
+/** JSON text of an object, once per object: the rows of one span share their inputs object. */
+type TextCache = WeakMap<object, string>;
+
+function encode(v: unknown, pg: boolean, texts: TextCache): unknown {
   if (v === undefined || v === null) return null;
   if (typeof v === 'boolean') return pg ? v : v ? 1 : 0;
   if (v instanceof Date) return pg ? v.toISOString() : v.getTime();
-  if (typeof v === 'object') return JSON.stringify(v);
+  if (typeof v === 'object') {
+    let text = texts.get(v);
+    if (text === undefined) texts.set(v, (text = JSON.stringify(v)));
+    return text;
+  }
   return v;
 }
 
@@ -48,6 +56,7 @@ export async function replaceAssessmentRows(em: EntityManager, spanIds: readonly
     `insert into "assessments" (${COLUMNS.map(([c]) => `"${c}"`).join(',')}) values ${Array.from({ length: n }, () => `(${marks(COLUMNS.length)})`).join(',')}`;
   const full = insertOf(per);
   const pg = isPostgres(em);
+  const texts: TextCache = new WeakMap();
   await inTransaction(em, async (run) => {
     // Writers of the same spans' rows (a request, a background rescore, another process) take turns on PostgreSQL;
     // on SQLite the one connection already serialises them.
@@ -62,7 +71,8 @@ export async function replaceAssessmentRows(em: EntityManager, spanIds: readonly
       const chunk = rows.slice(i, i + per);
       const params: unknown[] = new Array(chunk.length * COLUMNS.length);
       let k = 0;
-      for (const r of chunk) for (const [, prop] of COLUMNS) params[k++] = encode(r[prop], pg);
+      // The result in its stored (compact) form, as the entity's column type writes it.
+      for (const r of chunk) for (const [, prop] of COLUMNS) params[k++] = encode(prop === 'result' ? encodeResult(r.result) : r[prop], pg, texts);
       await run(chunk.length === per ? full : insertOf(chunk.length), params);
     }
     if (!pg) noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
@@ -139,7 +149,7 @@ export async function readAssessmentSummaries(
         chargeTimeMin: r.charge_time_min,
         conductorTempC: r.conductor_temp_c,
         ampacityA: r.ampacity_a,
-        result: typeof r.result === 'string' ? JSON.parse(r.result) : r.result,
+        result: readStoredResult(r.result),
         methodVersion: r.method_version,
         settingsVersion: r.settings_version,
         harvesterVersion: r.harvester_version,

@@ -12,6 +12,8 @@ import { User } from '../../server/modules/auth/user.entity.ts';
 import { assessSpan, createAssessmentMemo, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS, type SpanAssessmentInput } from '../../shared/engineering/assessment.ts';
 import { ACSR_CONDUCTORS, thermalConductorOf } from '../../shared/engineering/conductors.ts';
 import { CLAMP_S, LIGHT_QUAD } from '../../shared/engineering/demo-profiles.ts';
+import { Assessment } from '../../server/modules/assessment/assessment.entity.ts';
+import { decodeResult, encodeResult, readStoredResult } from '../../server/modules/assessment/result-codec.ts';
 
 const NOW = new Date('2026-07-01T12:00:00Z');
 let orm: MikroORM;
@@ -96,4 +98,59 @@ describe('assessment memo', () => {
     }
     expect(memo.thermal.size).toBeLessThan(3000 * 2); // repeats were served from the memo
   }, 60_000);
+});
+
+describe('stored result form', () => {
+  it('when 3 000 random results are put in their stored form and read back, then each is the same object with the same keys in the same order', () => {
+    let seed = 5;
+    const rand = () => ((seed = (seed * 16807) % 2147483647) / 2147483647);
+    let before = 0;
+    let after = 0;
+    for (let i = 0; i < 3000; i++) {
+      const c = thermalConductorOf(ACSR_CONDUCTORS[Math.floor(rand() * ACSR_CONDUCTORS.length)]);
+      const typical = rand() < 0.05 ? 0 : 20 + rand() * 1200;
+      const result = assessSpan(
+        {
+          conductor: c,
+          clearanceM: rand() < 0.1 ? null : 2 + rand() * 14,
+          loadCurrentA: { min: typical * 0.4, typical, peak: typical * 1.5 },
+          voltageKv: [12.47, 34.5, 69, 138, 230][Math.floor(rand() * 5)],
+          frequencyHz: rand() < 0.2 ? 50 : 60,
+          lengthM: 30 + rand() * 700,
+          hazards: rand() < 0.3 ? [{ severity: rand() < 0.5 ? 'high' : 'low' }] : [],
+          completeness: { a: true, b: rand() < 0.5 },
+          surveyAgeDays: rand() < 0.1 ? null : Math.floor(rand() * 4000),
+          zones: { inExclude: rand() < 0.1, inCautionCount: rand() < 0.2 ? 2 : 0 },
+        },
+        CLAMP_S,
+        LIGHT_QUAD,
+        DEFAULT_DESIGN_WEATHER,
+        DEFAULT_SCORING_SETTINGS,
+      );
+      // What the stored JSON gives back without the compact form is the reference (JSON drops non-finite numbers).
+      const plain = JSON.stringify(result);
+      const stored = JSON.stringify(encodeResult(JSON.parse(plain)));
+      expect(JSON.stringify(decodeResult(JSON.parse(stored)))).toBe(plain);
+      before += plain.length;
+      after += stored.length;
+    }
+    expect(after).toBeLessThan(before * 0.7); // the point of the form: far fewer bytes per stored row
+  });
+
+  it('when rows are read through the entity and through hand-written SQL, then both give the decoded result; a result stored in the earlier form reads as it is', async () => {
+    const em = orm.em.fork();
+    const raw = await em.getConnection().execute<{ id: number; result: string }[]>('select id, result from assessments order by random() limit 100');
+    expect(raw.every((r) => r.result.includes('"~c":1'))).toBe(true); // written in the compact form
+    const rows = await em.find(Assessment, { id: { $in: raw.map((r) => r.id) } });
+    for (const row of rows) {
+      const text = raw.find((r) => r.id === row.id)!.result;
+      expect(row.result).toEqual(readStoredResult(text));
+      const gates = (row.result as { gates: { detail: string; parts: unknown[] }[] }).gates;
+      expect(gates.length).toBeGreaterThan(0);
+      for (const g of gates) expect(typeof g.detail).toBe('string');
+    }
+    const earlier = { perchable: false, score: 1, gates: [{ id: 'clearance', passed: false, blocking: true, detail: 'clearance 4.00 m' }], factors: [] };
+    await em.getConnection().execute('update assessments set result = ? where id = ?', [JSON.stringify(earlier), raw[0].id]);
+    expect((await orm.em.fork().findOneOrFail(Assessment, { id: raw[0].id })).result).toEqual(earlier);
+  });
 });

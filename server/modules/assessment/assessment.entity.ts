@@ -1,4 +1,5 @@
 import { EntitySchema } from '@mikro-orm/core';
+import { AssessmentResultType } from './result-codec.ts';
 
 /** The stored assessment of one span for one harvester × drone pair, with the inputs and method version used. */
 export class Assessment {
@@ -29,7 +30,8 @@ export const AssessmentSchema = new EntitySchema<Assessment>({
   indexes: [{ properties: ['harvesterProfileId', 'droneProfileId', 'harvestW'] }],
   properties: {
     id: { type: 'number', primary: true, autoincrement: true },
-    spanId: { type: 'string', index: true },
+    // No index of its own: the unique (span, harvester, drone) index serves every lookup by span.
+    spanId: { type: 'string' },
     harvesterProfileId: { type: 'string' },
     droneProfileId: { type: 'string' },
     perchable: { type: 'boolean' },
@@ -38,7 +40,8 @@ export const AssessmentSchema = new EntitySchema<Assessment>({
     chargeTimeMin: { type: 'double', nullable: true },
     conductorTempC: { type: 'double' },
     ampacityA: { type: 'double' },
-    result: { type: 'json' },
+    // Stored in its compact form (result-codec.ts); the entity holds the full result.
+    result: { type: AssessmentResultType },
     inputs: { type: 'json' },
     methodVersion: { type: 'string' },
     settingsVersion: { type: 'integer' },

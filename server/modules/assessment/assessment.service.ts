@@ -223,6 +223,8 @@ function assessmentRows(
   for (const rec of records) {
     // The inputs are the same for every pair of a span; the per-span path builds them once per pair.
     const built = fast ? spanInputOf(rec, now) : undefined;
+    // One inputs object for all the span's rows on the fast path (written as one JSON text).
+    const shared = built ? inputsOf(rec, built) : undefined;
     for (const p of pairs) {
       const { input, result, conductorSource, loadSource } = fast
         ? assessBuilt(rec, built!, p, settings, fast.memo)
@@ -239,7 +241,7 @@ function assessmentRows(
         conductorTempC: result.conductorTempC,
         ampacityA: result.ampacityA,
         result: { ...result, chargeTimeMin },
-        inputs: { span: input, designWeather: DEFAULT_DESIGN_WEATHER, conductorSource, loadSource, zoneIds: rec.zones.zoneIds, spanVersion: rec.span.version, lineVersion: rec.line.version },
+        inputs: shared ?? inputsOf(rec, { input, conductorSource, loadSource }),
         methodVersion: METHOD_VERSION,
         settingsVersion,
         harvesterVersion: p.harvester.version,
@@ -249,6 +251,11 @@ function assessmentRows(
     }
   }
   return rows;
+}
+
+/** The stored inputs of a span's assessment (the same for every pair). */
+function inputsOf(rec: SpanRecords, built: Pick<ReturnType<typeof spanInputOf>, 'input' | 'conductorSource' | 'loadSource'>) {
+  return { span: built.input, designWeather: DEFAULT_DESIGN_WEATHER, conductorSource: built.conductorSource, loadSource: built.loadSource, zoneIds: rec.zones.zoneIds, spanVersion: rec.span.version, lineVersion: rec.line.version };
 }
 
 /** assessRecords with the inputs built once and the memo (the fast path); same result. */

@@ -13,6 +13,7 @@ import { User } from '../auth/user.entity.ts';
 import { Span } from '../inventory/span.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
 import { gateWord } from '../assessment/perchable.ts';
+import { readStoredResult } from '../assessment/result-codec.ts';
 import { linesLackingPermission } from '../line-permissions/line-permissions.service.ts';
 import { Mission, MissionPerch, type MissionStaleReason } from './mission.entity.ts';
 import { activeZonesOn, planContext, planMission, zonesOnLeg } from './plan.service.ts';
@@ -303,7 +304,7 @@ async function reasonsFor(em: EntityManager, m: Mission): Promise<MissionStaleRe
     const rows = (await sql.all(em, 'select perchable, result from assessments where span_id = ? and harvester_profile_id = ? and drone_profile_id = ?', [p.spanId, m.harvesterProfileId, m.droneProfileId])) as { perchable: number; result: unknown }[];
     const row = rows[0];
     if (!row || !row.perchable) {
-      const result = row ? (typeof row.result === 'string' ? JSON.parse(row.result) : row.result) : null;
+      const result = row ? (readStoredResult(row.result) as { gates?: unknown[] } | null) : null;
       const gates = ((result?.gates ?? []) as { id: string; passed: boolean; blocking?: boolean }[]).filter((g) => !g.passed && g.blocking !== false).map((g) => gateWord(g.id));
       reasons.push({ code: 'span-not-perchable', spanId: p.spanId, message: `the perch span ${name} no longer passes its gates for this drone and harvester${gates.length ? ` (${gates.join(', ')})` : ''}` });
     }

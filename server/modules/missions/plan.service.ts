@@ -21,6 +21,7 @@ import { isZoneActive } from '../zones/zone.service.ts';
 import { DroneProfile, HarvesterProfile } from '../assessment/profile.entity.ts';
 import { harvesterModel } from '../assessment/profiles.service.ts';
 import { gateWord } from '../assessment/perchable.ts';
+import { readStoredResult } from '../assessment/result-codec.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
 import { isoAt } from '../evidence/load-series.parse.ts';
 import { buildIndex, searchRoute, type Point, type SearchInput, type SearchResult } from './route-search.ts';
@@ -537,7 +538,7 @@ async function bridgingSpans(em: EntityManager, ctx: PlanContext, from: Point, t
     const row = await sql.get<{ perchable: number; result: unknown }>(em, 'select perchable, result from assessments where span_id = ? and harvester_profile_id = ? and drone_profile_id = ?', [r.id, ctx.harvester.id, ctx.drone.id]);
     const gates: string[] = [];
     if (row) {
-      const result = typeof row.result === 'string' ? JSON.parse(row.result) : row.result;
+      const result = readStoredResult(row.result) as { gates?: unknown[] } | null;
       for (const g of (result?.gates ?? []) as { id: string; passed: boolean; blocking?: boolean; detail: string }[]) if (!g.passed && g.blocking !== false) gates.push(`${gateWord(g.id)} (${g.detail})`);
     }
     const why: string[] = [];
