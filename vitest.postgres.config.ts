@@ -26,6 +26,7 @@ export const POSTGRES_API_TESTS = [
   'tests/server/missions-records.test.ts',
   'tests/server/jobs.test.ts',
   'tests/server/photos.test.ts',
+  'tests/server/rate-limits.test.ts',
 ];
 
 export default defineConfig({

@@ -2,6 +2,7 @@
 // counts in the database, so several server processes on one PostgreSQL count a client's attempts together, and a
 // restart does not hand a client a fresh allowance. Same store and SQL on SQLite.
 import type { Store, Options, ClientRateLimitInfo } from 'express-rate-limit';
+import type { EntityManager } from '@mikro-orm/core';
 import type { AppContext } from '../context.ts';
 import { sql } from '../sql/query.ts';
 
@@ -45,7 +46,22 @@ class DatabaseStore implements Store {
   }
 }
 
+/** Rows whose window has ended (a client that never came back) are removed this often. */
+const SWEEP_EVERY_MS = 60 * 60 * 1000;
+const sweeping = new WeakSet<AppContext>();
+
+/** Removes the counts whose window ended before `now`; answers how many. */
+export async function sweepRateLimitHits(em: EntityManager, now = Date.now()): Promise<number> {
+  return (await sql.run(em, 'delete from rate_limit_hits where reset_at <= ?', [now])).affectedRows;
+}
+
 /** The limiter `name`'s counts in the database (keys are prefixed with the name, so limiters never mix). */
 export function sharedRateLimitStore(ctx: AppContext, name: string): Store {
+  if (!sweeping.has(ctx)) {
+    sweeping.add(ctx);
+    const timer = setInterval(() => void sweepRateLimitHits(ctx.orm.em.fork()).catch(() => undefined), SWEEP_EVERY_MS);
+    timer.unref();
+    ctx.onClose(() => clearInterval(timer));
+  }
   return new DatabaseStore(ctx, `${name}:`);
 }
