@@ -3,9 +3,7 @@ import os from 'node:os';
 import path from 'node:path';
 import type { MikroORM } from '@mikro-orm/sqlite';
 import { initORM } from '../server/db.ts';
-import { seedDemoUsers } from '../server/seeders/demo-users.ts';
-import { ensureAssessmentDefaults } from '../server/modules/assessment/profiles.service.ts';
-import { User } from '../server/modules/auth/user.entity.ts';
+import { seedScaleAccounts } from '../server/seeders/index.ts';
 
 export interface BenchDatabase {
   orm: MikroORM;
@@ -27,12 +25,7 @@ export async function openBenchDatabase(name: string): Promise<BenchDatabase> {
     fs.rmSync(dir, { recursive: true, force: true });
   };
   try {
-    const em = orm.em.fork();
-    await seedDemoUsers(em);
-    await em.flush();
-    await ensureAssessmentDefaults(em);
-    const surveyor = await em.findOneOrFail(User, { email: 'surveyor@roostline.test' });
-    return { orm, file, surveyorId: surveyor.id, close };
+    return { orm, file, surveyorId: await seedScaleAccounts(orm.em.fork()), close };
   } catch (err) {
     await close();
     throw err;

@@ -24,6 +24,8 @@ export interface AppConfig {
   /** Vector basemap served to the map (PMTiles v3 file); drop in your own region's file. */
   basemapPath: string;
   seedDemo: boolean;
+  /** SEED_SCALE_SPANS=n: an empty database gets the demo accounts and an invented inventory of n spans instead of the demo scenario (0 = off). */
+  seedScaleSpans: number;
   smtpUrl: string | null;
   /** Port of the built-in local mail catcher used when SMTP_URL is unset (0 = any free port). */
   mailCatcherPort: number;
@@ -70,6 +72,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     maxUploadBytes: Number(env.MAX_UPLOAD_BYTES ?? 25 * 1024 * 1024),
     basemapPath: path.resolve(env.BASEMAP_PATH ?? './server/map-assets/basemap.pmtiles'),
     seedDemo: (env.SEED_DEMO ?? 'true') !== 'false',
+    seedScaleSpans: Math.max(0, Math.floor(Number(env.SEED_SCALE_SPANS ?? 0)) || 0),
     smtpUrl: env.SMTP_URL || null,
     mailCatcherPort: Number(env.MAIL_CATCHER_PORT ?? 0),
     mailFrom: env.MAIL_FROM || 'Roostline <no-reply@roostline.local>',

@@ -1,7 +1,7 @@
 import { databaseTarget, loadConfig } from './env.ts';
 import { initORM, whileHoldingStartLock } from './db.ts';
 import { createApp } from './app.ts';
-import { seedDemoIfEmpty } from './seeders/index.ts';
+import { seedDemoIfEmpty, seedScaleIfEmpty } from './seeders/index.ts';
 import { storageFromConfig } from './modules/photos/storage.ts';
 import { sweepOrphans } from './modules/photos/photo.service.ts';
 import { claimServerLock, releaseServerLock } from './server-lock.ts';
@@ -15,7 +15,10 @@ const config = loadConfig();
 if (!config.databaseUrl) claimServerLock(config.databasePath);
 const orm = await initORM(databaseTarget(config));
 // Several processes may start at once on one PostgreSQL: one seeds, the others wait for it and find it seeded.
-if (config.seedDemo && (await whileHoldingStartLock(orm, () => seedDemoIfEmpty(orm)))) console.log('Seeded the demo scenario into an empty database.');
+if (config.seedScaleSpans > 0) {
+  const seeded = await whileHoldingStartLock(orm, () => seedScaleIfEmpty(orm, config.seedScaleSpans));
+  if (seeded) console.log(`Seeded the demo accounts and an invented inventory of ${seeded.spans} spans into an empty database.`);
+} else if (config.seedDemo && (await whileHoldingStartLock(orm, () => seedDemoIfEmpty(orm)))) console.log('Seeded the demo scenario into an empty database.');
 
 const storage = storageFromConfig(config);
 try {

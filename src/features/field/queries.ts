@@ -1,7 +1,5 @@
 // The field feature's queries: the surveyor's own spans, on the shared span list keys (same invalidation).
-import { infiniteQueryOptions } from '@tanstack/react-query';
 import type { SpanStatus } from '#shared/schemas/inventory.ts';
-import { spanApi } from '../spans/api.ts';
 import { spanQueries } from '../spans/queries.ts';
 
 /** Spans fetched per page while the surveyor scrolls their queue. */
@@ -11,11 +9,6 @@ export const fieldQueries = {
   mySpans: (surveyorId: string) => spanQueries.list({ surveyorId, pageSize: QUEUE_PAGE, sort: '-updatedAt' }),
   /** One queue group (its statuses), most recently changed first, page after page: every record, no cap. */
   queueGroup: (surveyorId: string, statuses: readonly SpanStatus[]) =>
-    infiniteQueryOptions({
-      queryKey: [...spanQueries.lists(), 'queue', surveyorId, statuses.join(',')],
-      queryFn: ({ pageParam }) => spanApi.list({ surveyorId, // the API reads a comma-separated list of statuses
-        status: statuses.join(',') as SpanStatus, sort: '-updatedAt', page: pageParam, pageSize: QUEUE_PAGE }),
-      initialPageParam: 1,
-      getNextPageParam: (last) => (last.page * last.pageSize < last.total ? last.page + 1 : undefined),
-    }),
+    // the API reads a comma-separated list of statuses
+    spanQueries.pages({ surveyorId, status: statuses.join(',') as SpanStatus, sort: '-updatedAt' }, QUEUE_PAGE),
 };

@@ -1,5 +1,5 @@
 // One queryOptions factory per record kind, shared by loaders, components and invalidation.
-import { keepPreviousData, queryOptions } from '@tanstack/react-query';
+import { infiniteQueryOptions, keepPreviousData, queryOptions } from '@tanstack/react-query';
 import { inventoryApi, spanApi } from './api.ts';
 import type { SpanListQuery } from './table-url-state.ts';
 
@@ -8,6 +8,15 @@ export const spanQueries = {
   lists: () => [...spanQueries.all(), 'list'] as const,
   list: (q: SpanListQuery) =>
     queryOptions({ queryKey: [...spanQueries.lists(), q], queryFn: () => spanApi.list(q), placeholderData: keepPreviousData }),
+  /** Every span matching `q`, page after page of `pageSize` as the reader scrolls (no cap); on the list keys, so list invalidation reaches it. */
+  pages: (q: Omit<SpanListQuery, 'page' | 'pageSize'>, pageSize: number) =>
+    infiniteQueryOptions({
+      queryKey: [...spanQueries.lists(), 'pages', q, pageSize],
+      queryFn: ({ pageParam }) => spanApi.list({ ...q, page: pageParam, pageSize }),
+      initialPageParam: 1,
+      getNextPageParam: (last) => (last.page * last.pageSize < last.total ? last.page + 1 : undefined),
+      placeholderData: keepPreviousData,
+    }),
   detail: (id: string) => queryOptions({ queryKey: [...spanQueries.all(), 'detail', id], queryFn: () => spanApi.get(id) }),
   history: (id: string) => queryOptions({ queryKey: [...spanQueries.all(), 'history', id], queryFn: () => spanApi.audit(id), staleTime: 0 }),
 };

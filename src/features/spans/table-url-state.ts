@@ -1,6 +1,7 @@
-// Spans-table state ⇄ URL search params, so a view (filters, sort, page, columns) can be shared as a link.
+// Spans-table state ⇄ URL search params, so a view (filters, sort, columns) can be shared as a link. The table
+// scrolls through every matching record, so there is no page to keep (an old link's `page` is ignored).
 // Pure functions: the table page reads the URL, renders from it, and writes every change back to it.
-import type { ColumnSort, PaginationState, SortingState, VisibilityState } from '@tanstack/react-table';
+import type { ColumnSort, SortingState, VisibilityState } from '@tanstack/react-table';
 import { isSpanStatus, type SpanStatus } from './status.ts';
 
 export interface SpanFilters {
@@ -14,12 +15,9 @@ export interface SpanFilters {
 export interface SpansTableState {
   filters: SpanFilters;
   sorting: SortingState;
-  pagination: PaginationState; // pageIndex is 0-based here, `page` is 1-based in the URL and the API
   columnVisibility: VisibilityState;
 }
 
-export const PAGE_SIZES = [25, 50, 100] as const;
-export const DEFAULT_PAGE_SIZE = 25;
 export const DEFAULT_SORTING: SortingState = [{ id: 'updatedAt', desc: true }];
 
 /** Columns the table can show; `defaultVisible` ones show when the URL names none. */
@@ -77,9 +75,6 @@ export function formatSort(sorting: SortingState): string {
 /** Reads table state from the URL; anything invalid falls back to its default rather than failing. */
 export function tableStateFromSearch(params: URLSearchParams): SpansTableState {
   const status = params.get('status');
-  const page = Math.floor(positiveNumber(params.get('page')) ?? 1);
-  const sizeRaw = Math.floor(positiveNumber(params.get('pageSize')) ?? DEFAULT_PAGE_SIZE);
-  const pageSize = (PAGE_SIZES as readonly number[]).includes(sizeRaw) ? sizeRaw : DEFAULT_PAGE_SIZE;
   const columnVisibility = defaultVisibility();
   const cols = params.get('cols');
   if (cols !== null) {
@@ -95,7 +90,6 @@ export function tableStateFromSearch(params: URLSearchParams): SpansTableState {
       minScore: positiveNumber(params.get('minScore')),
     },
     sorting: parseSort(params.get('sort')),
-    pagination: { pageIndex: Math.max(0, page - 1), pageSize },
     columnVisibility,
   };
 }
@@ -111,8 +105,6 @@ export function searchFromTableState(state: SpansTableState): URLSearchParams {
   if (f.minScore !== undefined) p.set('minScore', String(f.minScore));
   const sort = formatSort(state.sorting);
   if (sort && sort !== formatSort(DEFAULT_SORTING)) p.set('sort', sort);
-  if (state.pagination.pageIndex > 0) p.set('page', String(state.pagination.pageIndex + 1));
-  if (state.pagination.pageSize !== DEFAULT_PAGE_SIZE) p.set('pageSize', String(state.pagination.pageSize));
   const defaults = defaultVisibility();
   const visible = SPAN_COLUMNS.filter((c) => state.columnVisibility[c.id] ?? defaults[c.id]).map((c) => c.id);
   const defaultVisible = SPAN_COLUMNS.filter((c) => c.defaultVisible).map((c) => c.id);
@@ -120,14 +112,9 @@ export function searchFromTableState(state: SpansTableState): URLSearchParams {
   return p;
 }
 
-/** The list query the API takes (GET /api/spans): filters, sort and 1-based page. */
-export function apiQueryFromTableState(state: SpansTableState): SpanListQuery {
-  return {
-    ...state.filters,
-    sort: formatSort(state.sorting) || undefined,
-    page: state.pagination.pageIndex + 1,
-    pageSize: state.pagination.pageSize,
-  };
+/** The list query the API takes (GET /api/spans): filters and sort; the table asks for its pages itself. */
+export function apiQueryFromTableState(state: SpansTableState): Omit<SpanListQuery, 'page' | 'pageSize'> {
+  return { ...state.filters, sort: formatSort(state.sorting) || undefined };
 }
 
 export interface SpanListQuery extends SpanFilters {
@@ -139,7 +126,7 @@ export interface SpanListQuery extends SpanFilters {
   perchable?: boolean;
 }
 
-/** A filter change sends the user back to page 1 (the old page may not exist in the new result). */
+/** A filter change: the table starts again at its first row. */
 export function withFilters(state: SpansTableState, patch: Partial<SpanFilters>): SpansTableState {
-  return { ...state, filters: { ...state.filters, ...patch }, pagination: { ...state.pagination, pageIndex: 0 } };
+  return { ...state, filters: { ...state.filters, ...patch } };
 }

@@ -11,7 +11,7 @@ import { useMe } from '../../auth/queries.ts';
 import { fieldQueries } from '../queries.ts';
 import { StatusBadge } from '../../spans/components/status-badge.tsx';
 import { QUEUE_GROUPS } from '../queue.ts';
-import { date } from '../../../lib/format.ts';
+import { count, date } from '../../../lib/format.ts';
 import { useOutbox } from '../../../lib/use-outbox.ts';
 import { WaitingBadge } from '../../../components/waiting-badge.tsx';
 
@@ -103,6 +103,11 @@ export function MySpansQueue() {
       )}
       {pending && <p className="text-ink-700">Loading your spans…</p>}
       {error && <p className="field-error" role="alert">Your spans did not load: {error.message}</p>}
+      {!pending && !error && rows.length > 0 && (
+        <p className="text-ink-700" data-testid="queue-total">
+          {count(groups.reduce((n, q) => n + (q.data?.pages[0]?.total ?? 0), 0))} spans of yours on the server; the queue loads more as you scroll.
+        </p>
+      )}
       {!pending && !error && rows.length === 0 && <p className="card">No spans yet. Start with “New span” when you reach the first structure.</p>}
       <div ref={listRef} role="list" aria-label="Your spans" style={{ height: virtualizer.getTotalSize(), position: 'relative' }}>
         {items.map((item) => {
@@ -118,7 +123,7 @@ export function MySpansQueue() {
             >
               {r.kind === 'header' && (
                 <h2 id={`queue-${r.group.id}`} className="pt-3 text-lg font-bold">
-                  {r.group.title} <span className="text-ink-500">({r.total})</span>
+                  {r.group.title} <span className="text-ink-500">({count(r.total)})</span>
                 </h2>
               )}
               {r.kind === 'more' && <p className="text-sm text-ink-700">Loading more of your spans…</p>}

@@ -1,14 +1,16 @@
-// The spans table for every role: server-side filters, sort and pages; the whole view lives in the URL.
-import { useEffect, useMemo, useRef, useState } from 'react';
+// The spans table for every role: server-side filters and sort; the whole view lives in the URL. Every matching
+// record is reachable by scrolling: pages load as the reader nears the end, and only the rows on screen (and a few
+// around them) are in the page, so a table of thousands scrolls like one of ten.
+import { useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
-import { useQuery } from '@tanstack/react-query';
+import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
+import { useWindowVirtualizer } from '@tanstack/react-virtual';
 import {
   createColumnHelper,
   flexRender,
   getCoreRowModel,
   useReactTable,
   type OnChangeFn,
-  type PaginationState,
   type SortingState,
   type VisibilityState,
 } from '@tanstack/react-table';
@@ -20,7 +22,6 @@ import { inventoryQueries, spanQueries } from '../queries.ts';
 import { SPAN_STATUSES, SPAN_STATUS_LOOK, isSpanStatus } from '../status.ts';
 import {
   apiQueryFromTableState,
-  PAGE_SIZES,
   searchFromTableState,
   SPAN_COLUMNS,
   tableStateFromSearch,
@@ -33,6 +34,9 @@ import { StatusBadge } from './status-badge.tsx';
 import { count, date, dateTime, score } from '../../../lib/format.ts';
 
 const col = createColumnHelper<Span>();
+/** Spans fetched per page as the reader scrolls; rows before the end of what is loaded at which the next page is asked for. */
+const TABLE_PAGE = 200;
+const LOAD_AHEAD = 40;
 
 function conductorText(s: Span, system: UnitSystem) {
   const c = s.conductor;
@@ -103,33 +107,29 @@ export function SpansTablePage() {
     setParams(searchFromTableState(latest.current));
   };
   const query = apiQueryFromTableState(state);
-  const spans = useQuery(spanQueries.list(query));
+  const spans = useInfiniteQuery(spanQueries.pages(query, TABLE_PAGE));
   const lines = useQuery(inventoryQueries.lines());
   const columns = useMemo(() => buildColumns(me.unitSystem), [me.unitSystem]);
-  const total = spans.data?.total ?? 0;
-  const pageCount = Math.max(1, Math.ceil(total / state.pagination.pageSize));
+  const total = spans.data?.pages[0]?.total ?? 0;
+  const data = useMemo(() => spans.data?.pages.flatMap((p) => p.items) ?? [], [spans.data]);
 
   const onSortingChange: OnChangeFn<SortingState> = (u) =>
-    setState((s) => ({ ...s, sorting: typeof u === 'function' ? u(s.sorting) : u, pagination: { ...s.pagination, pageIndex: 0 } }));
-  const onPaginationChange: OnChangeFn<PaginationState> = (u) => setState((s) => ({ ...s, pagination: typeof u === 'function' ? u(s.pagination) : u }));
+    setState((s) => ({ ...s, sorting: typeof u === 'function' ? u(s.sorting) : u }));
   const onColumnVisibilityChange: OnChangeFn<VisibilityState> = (u) =>
     setState((s) => ({ ...s, columnVisibility: typeof u === 'function' ? u(s.columnVisibility) : u }));
 
   const table = useReactTable({
-    data: spans.data?.items ?? [],
+    data,
     columns,
     getCoreRowModel: getCoreRowModel(),
     getRowId: (s) => s.id,
-    manualPagination: true,
     manualSorting: true,
     manualFiltering: true,
     enableMultiSort: false,
     enableSortingRemoval: false,
-    pageCount,
     rowCount: total,
-    state: { sorting: state.sorting, pagination: state.pagination, columnVisibility: state.columnVisibility },
+    state: { sorting: state.sorting, columnVisibility: state.columnVisibility },
     onSortingChange,
-    onPaginationChange,
     onColumnVisibilityChange,
   });
   // Columns the reader did not choose: below 1024 px the wide-only ones step aside so harvest and score fit.
@@ -137,6 +137,24 @@ export function SpansTablePage() {
   const narrowHidden = (id: string) => (!chosen && WIDE_ONLY_COLUMNS.has(id) ? 'hidden lg:table-cell' : '');
   const sortable = new Set<string>(SPAN_COLUMNS.filter((c) => c.sortable).map((c) => c.id));
   const setFilters = (patch: Partial<SpanFilters>) => setState((s) => withFilters(s, patch));
+
+  // Rows are windowed against the page's own scroll (the header and filters scroll away above them).
+  const rows = table.getRowModel().rows;
+  const visibleCount = table.getVisibleLeafColumns().length;
+  const bodyRef = useRef<HTMLTableSectionElement>(null);
+  const [margin, setMargin] = useState(0);
+  useLayoutEffect(() => setMargin((bodyRef.current?.getBoundingClientRect().top ?? 0) + window.scrollY), [spans.isPending, !!spans.error, visibleCount]);
+  const virtualizer = useWindowVirtualizer({ count: rows.length, estimateSize: () => 45, overscan: 12, scrollMargin: margin, getItemKey: (i) => rows[i]?.id ?? i });
+  const virtualRows = virtualizer.getVirtualItems();
+  // Offsets are measured from the top of the table's body.
+  const offset = virtualizer.options.scrollMargin ?? 0;
+  const padTop = virtualRows.length ? Math.max(0, virtualRows[0]!.start - offset) : 0;
+  const padBottom = virtualRows.length ? Math.max(0, virtualizer.getTotalSize() - (virtualRows[virtualRows.length - 1]!.end - offset)) : 0;
+  const lastShown = virtualRows.length ? virtualRows[virtualRows.length - 1]!.index : -1;
+  // Near the end of what is loaded: the next page.
+  useEffect(() => {
+    if (spans.hasNextPage && !spans.isFetchingNextPage && lastShown >= rows.length - LOAD_AHEAD) void spans.fetchNextPage();
+  }, [lastShown, rows.length, spans]);
 
   return (
     <div className="space-y-4">
@@ -153,6 +171,7 @@ export function SpansTablePage() {
       <div className="flex flex-wrap items-center justify-between gap-3">
         <p className="text-sm text-ink-700" role="status" aria-live="polite">
           {spans.isPending ? 'Loading spans…' : `${count(total)} span${total === 1 ? '' : 's'} match`}
+          {!spans.isPending && total > data.length ? ` · ${count(data.length)} loaded, more as you scroll` : ''}
           {spans.isFetching && !spans.isPending ? ' · updating…' : ''}
         </p>
         <ColumnChooser table={table} />
@@ -165,7 +184,7 @@ export function SpansTablePage() {
       )}
 
       <div className="card overflow-x-auto p-0">
-        <table className="w-full border-collapse text-left text-sm" aria-label="Spans">
+        <table className="w-full border-collapse text-left text-sm" aria-label="Spans" aria-rowcount={total + 1}>
           <thead className="bg-ink-50">
             {table.getHeaderGroups().map((hg) => (
               <tr key={hg.id}>
@@ -193,22 +212,42 @@ export function SpansTablePage() {
               </tr>
             ))}
           </thead>
-          <tbody>
-            {table.getRowModel().rows.map((row) => (
-              <tr key={row.id} className="border-b border-ink-100 hover:bg-ink-50" data-span-id={row.id}>
-                {row.getVisibleCells().map((cell) => {
-                  const numeric = (cell.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
-                  return (
-                    <td key={cell.id} className={`whitespace-nowrap px-3 py-2 ${numeric ? 'text-right tabular-nums' : ''} ${narrowHidden(cell.column.id)}`}>
-                      {flexRender(cell.column.columnDef.cell, cell.getContext())}
-                    </td>
-                  );
-                })}
+          <tbody ref={bodyRef}>
+            {padTop > 0 && (
+              <tr aria-hidden="true">
+                <td colSpan={visibleCount} style={{ height: padTop, padding: 0 }} />
               </tr>
-            ))}
-            {spans.data && spans.data.items.length === 0 && (
+            )}
+            {virtualRows.map((v) => {
+              const row = rows[v.index]!;
+              return (
+                <tr key={row.id} ref={virtualizer.measureElement} data-index={v.index} aria-rowindex={v.index + 2} className="border-b border-ink-100 hover:bg-ink-50" data-span-id={row.id}>
+                  {row.getVisibleCells().map((cell) => {
+                    const numeric = (cell.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
+                    return (
+                      <td key={cell.id} className={`whitespace-nowrap px-3 py-2 ${numeric ? 'text-right tabular-nums' : ''} ${narrowHidden(cell.column.id)}`}>
+                        {flexRender(cell.column.columnDef.cell, cell.getContext())}
+                      </td>
+                    );
+                  })}
+                </tr>
+              );
+            })}
+            {padBottom > 0 && (
+              <tr aria-hidden="true">
+                <td colSpan={visibleCount} style={{ height: padBottom, padding: 0 }} />
+              </tr>
+            )}
+            {spans.hasNextPage && (
               <tr>
-                <td colSpan={table.getVisibleLeafColumns().length} className="px-3 py-6 text-center text-ink-700">
+                <td colSpan={visibleCount} className="px-3 py-3 text-center text-ink-700" data-testid="spans-loading-more">
+                  {spans.isFetchingNextPage ? 'Loading more spans…' : `Scroll on for more (${count(data.length)} of ${count(total)} shown so far)`}
+                </td>
+              </tr>
+            )}
+            {spans.data && total === 0 && (
+              <tr>
+                <td colSpan={visibleCount} className="px-3 py-6 text-center text-ink-700">
                   No span matches these filters.
                 </td>
               </tr>
@@ -217,32 +256,6 @@ export function SpansTablePage() {
         </table>
       </div>
 
-      <nav aria-label="Pages" className="flex flex-wrap items-center gap-3">
-        <button type="button" className="btn-ghost" onClick={() => table.previousPage()} disabled={!table.getCanPreviousPage()}>
-          ← Previous
-        </button>
-        <span className="text-sm">
-          Page {state.pagination.pageIndex + 1} of {pageCount}
-        </span>
-        <button type="button" className="btn-ghost" onClick={() => table.nextPage()} disabled={!table.getCanNextPage()}>
-          Next →
-        </button>
-        <label className="ml-auto flex items-center gap-2 text-sm">
-          Rows per page
-          <select
-            className="field-input w-24"
-            value={state.pagination.pageSize}
-            onChange={(e) => {
-              const pageSize = Number(e.target.value);
-              setState((s) => ({ ...s, pagination: { pageIndex: 0, pageSize } }));
-            }}
-          >
-            {PAGE_SIZES.map((n) => (
-              <option key={n} value={n}>{n}</option>
-            ))}
-          </select>
-        </label>
-      </nav>
     </div>
   );
 }
