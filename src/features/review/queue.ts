@@ -1,4 +1,6 @@
 import type { Span, SpanStatus } from '#shared/schemas/inventory.ts';
+import type { UnitSystem } from '#shared/units.ts';
+import { gateDetail } from '../../lib/format.ts';
 
 export type QueueKind = 'submitted' | 'decision' | 'approved' | 'suspended';
 
@@ -61,4 +63,13 @@ export function commandForKey(e: { key: string; ctrlKey?: boolean; metaKey?: boo
     default:
       return null;
   }
+}
+
+/** A queue row's mark for a span whose harvest is too low to be useful for every active pair (its useful-harvest
+ * gate fails), in words and the reader's units; null when the harvest is enough or not assessed. */
+export function lowHarvestMark(span: Pick<Span, 'failingGates'>, system: UnitSystem): string | null {
+  const gate = span.failingGates?.find((g) => g.id === 'useful-harvest');
+  if (!gate) return null;
+  const detail = gateDetail(gate, system);
+  return `Harvest too low to be useful${detail ? `: ${detail}` : ''}`;
 }

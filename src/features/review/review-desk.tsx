@@ -14,7 +14,7 @@ import { SpanAssessmentSlot } from '../spans/components/span-assessment-slot.tsx
 import { PhotoGallery } from '../photos/photo-gallery.tsx';
 import { ZoneConflicts } from './components/zone-conflicts.tsx';
 import { SpanHistory } from './components/span-history.tsx';
-import { commandForKey, orderQueue, QUEUES, queuedSince, queueFilter, queueStatus, waitingFor, type QueueKind } from './queue.ts';
+import { commandForKey, lowHarvestMark, orderQueue, QUEUES, queuedSince, queueFilter, queueStatus, waitingFor, type QueueKind } from './queue.ts';
 
 type ReasonMode = 'return' | 'suspend';
 
@@ -23,6 +23,7 @@ const isTyping = (el: EventTarget | null) =>
 
 /** The safety officer's desk: a queue on the left, the selected span with everything needed to decide on the right. */
 export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => ReactNode } = {}) {
+  const system = useMe().unitSystem;
   const [kind, setKind] = useState<QueueKind>('submitted');
   const list = useQuery(spanQueries.list({ ...queueFilter(kind), sort: 'updatedAt', pageSize: 200 }));
   const status = queueStatus(kind);
@@ -149,6 +150,11 @@ export function ReviewDesk({ evidenceSlot }: { evidenceSlot?: (span: Span) => Re
                     </span>
                     {s.needsDecision && (s.failingGates?.length ?? 0) > 0 && (
                       <span className="block text-sm font-semibold text-alarm">Now fails {listWords(s.failingGates!.map((g) => g.label))}</span>
+                    )}
+                    {lowHarvestMark(s, system) && (
+                      <span className="block text-sm font-semibold text-alarm" data-testid="low-harvest-mark">
+                        <span aria-hidden>▼ </span>{lowHarvestMark(s, system)}
+                      </span>
                     )}
                   </button>
                 </li>
