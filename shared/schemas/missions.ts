@@ -89,3 +89,103 @@ export const missionReplanSchema = planRequestSchema.partial().extend({
 export const missionAuthoriseSchema = z.object({
   version: z.number({ error: 'the version you saw' }).int().positive().optional(),
 });
+
+// ---- The plan as the API answers it (POST /api/missions/plan, a saved mission's `plan`): one shape for the
+// server's exports and the client's screens. SI units and ISO 8601 times; fields the contract leaves open are optional.
+
+export interface LatLon {
+  lat: number;
+  lon: number;
+}
+
+/** A leg's end: the base, a perch or the job site. */
+export interface MissionStop extends LatLon {
+  kind?: string;
+  name?: string;
+  spanId?: string;
+}
+
+export interface PlanLeg {
+  distanceM: number;
+  courseDeg: number;
+  groundSpeedMps: number;
+  durationS: number;
+  energyWh: number;
+  socStartPct: number;
+  socEndPct: number;
+  /** Set when the leg ends at a perch. */
+  toSpanId?: string | null;
+  from?: MissionStop;
+  to?: MissionStop;
+  /** Caution zones the leg crosses (allowed, listed). */
+  cautionZones?: { id: string; name: string }[];
+  departAt?: string;
+  arriveAt?: string;
+  windCorrectionDeg?: number;
+}
+
+export interface PlanPerch {
+  spanId: string;
+  lineId: string;
+  arriveAt: string;
+  departAt: string;
+  dwellS: number;
+  harvestW: number;
+  socArrivePct: number;
+  socDepartPct: number;
+  lineBearingDeg: number;
+  conductorHeightM: number;
+  /** Where on the span: metres from the from-structure, mid-span unless the planner moved it. */
+  alongM?: number;
+  perchPoint?: 'mid-span' | 'planner';
+  /** The perch point; the contract lets the server add it. */
+  lat?: number;
+  lon?: number;
+  lineName?: string;
+  voltageKv?: number;
+  spanLabel?: string;
+  fromStructureLabel?: string;
+  toStructureLabel?: string;
+  approachDistanceM?: number;
+  /** Which load the harvest rests on: the line's metered month (`loadMonth`) or the typed estimate. */
+  harvestSource?: 'series' | 'estimate';
+  loadMonth?: string | null;
+  /** Harvest at each hour the drone dwells, when the server lists it. */
+  harvestByHour?: { hour: number; harvestW: number }[];
+}
+
+export interface FeasiblePlan {
+  feasible: true;
+  totalDistanceM: number;
+  totalDurationS: number;
+  legs: PlanLeg[];
+  perches: PlanPerch[];
+  base?: LatLon;
+  target?: LatLon;
+  departAt?: string;
+  arriveAt?: string;
+  totalDwellS?: number;
+  totalEnergyWh?: number;
+  totalHarvestWh?: number;
+  returnToBase?: boolean;
+}
+
+export interface InfeasiblePlan {
+  feasible: false;
+  /** A sentence a planner can act on, or a short code the server explains in `message`/`detail`. */
+  reason: string;
+  message?: string;
+  detail?: string;
+  /** Extra figures by reason (gap length, reach, zone, wind, spans that would bridge), each optional. */
+  gapM?: number;
+  reachM?: number;
+  longestGapM?: number;
+  zone?: { id: string; name: string } | null;
+  zoneName?: string;
+  windSpeedMps?: number;
+  gap?: { from?: LatLon; to?: LatLon; distanceM?: number; reachM?: number };
+  blockedSpans?: { spanId: string; status?: string; lineName?: string; label?: string; failingGates?: string[]; reason?: string }[];
+  [extra: string]: unknown;
+}
+
+export type PlanResult = FeasiblePlan | InfeasiblePlan;

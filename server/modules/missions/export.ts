@@ -3,64 +3,18 @@
 import { formatQuantity, type UnitSystem } from '#shared/units.ts';
 import { kmlColour } from '#shared/span-status-colours.ts';
 import { MISSION_COLOURS } from '#shared/mission-colours.ts';
+import type { FeasiblePlan, MissionStop, PlanLeg, PlanPerch } from '#shared/schemas/missions.ts';
 
 /** The words every exported file carries, as every plan view does. */
 export const MISSION_CAUTION =
   "Caution: this plan supports the flight and never replaces the line owner's authorisation, the airspace rules or the pilot's own judgement. Approach figures defer to local codes and licensed practice.";
 
-export interface ExportStop {
-  kind: string;
-  lat: number;
-  lon: number;
-  name?: string;
-  spanId?: string;
-}
-
-export interface ExportLeg {
-  distanceM: number;
-  courseDeg: number;
-  groundSpeedMps: number;
-  durationS: number;
-  energyWh: number;
-  socStartPct: number;
-  socEndPct: number;
-  toSpanId?: string | null;
-  from: ExportStop;
-  to: ExportStop;
-  departAt?: string;
-  arriveAt?: string;
-  cautionZones?: { id: string; name: string }[];
-}
-
-export interface ExportPerch {
-  spanId: string;
-  lineId: string;
-  arriveAt: string;
-  departAt: string;
-  dwellS: number;
-  harvestW: number;
-  socArrivePct: number;
-  socDepartPct: number;
-  lineBearingDeg: number;
-  conductorHeightM: number;
-  lat: number;
-  lon: number;
-  lineName?: string;
-  voltageKv?: number;
-  spanLabel?: string;
-  approachDistanceM?: number;
-}
-
-export interface ExportPlan {
-  feasible: true;
-  totalDistanceM: number;
-  totalDurationS: number;
-  departAt?: string;
-  arriveAt?: string;
-  returnToBase?: boolean;
-  legs: ExportLeg[];
-  perches: ExportPerch[];
-}
+/** The plan's own shape (shared with the screens); a file needs every stop's and perch's position, which the
+ * planner always writes. */
+export type ExportStop = MissionStop;
+export type ExportLeg = PlanLeg & { from: MissionStop; to: MissionStop };
+export type ExportPerch = PlanPerch & { lat: number; lon: number };
+export type ExportPlan = Omit<FeasiblePlan, 'legs' | 'perches'> & { legs: ExportLeg[]; perches: ExportPerch[] };
 
 export interface ExportMission {
   id: string;
