@@ -1,6 +1,11 @@
 // Span and structure vector tiles, generated from the database. The spans (with their default-pair assessment)
-// are read once into memory per data version and bucketed on a grid; each tile then projects only the spans
-// that touch it. Tiles are cached per data version; any span/structure/assessment change starts a new version.
+// are read once into memory per data version (in chunks) and bucketed on a grid; a full-detail tile projects only
+// the spans that touch it, and a generalised tile (below FULL_DETAIL_ZOOM) reads its cells from that zoom's layer,
+// built once per data version and patched on edits. Until the snapshot is read, tiles from DIRECT_MIN_ZOOM up come
+// from their own box query. Tiles are cached per data version; any span/structure/assessment change starts a new one.
+//
+// Interface (kept stable for other tile paths behind it, e.g. a PostGIS one): tile(), bounds(), syncNow(),
+// invalidate(), close(); plainTile(), layersReady() and stats for tests and the bench.
 import type { EntityManager } from '@mikro-orm/core';
 import type { MikroORM } from '@mikro-orm/sqlite';
 import vtpbf from 'vt-pbf';
