@@ -99,7 +99,7 @@ interface LonLatBox {
 /** Spans (and cells) a generalised layer takes in per turn of the event loop while it is built. */
 const LAYER_CHUNK = 50_000;
 /** Rows per query while a snapshot is read. */
-const SNAPSHOT_CHUNK = 20_000;
+const SNAPSHOT_CHUNK = 5_000;
 /** From this zoom up, a tile asked for before the snapshot is read is answered from its own box query. */
 export const DIRECT_MIN_ZOOM = 10;
 /** Metres to degrees of latitude, rounded down (a degree is 110.57–111.69 km), so boxes come out a little large. */
