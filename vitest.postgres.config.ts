@@ -27,6 +27,7 @@ export const POSTGRES_API_TESTS = [
   'tests/server/jobs.test.ts',
   'tests/server/photos.test.ts',
   'tests/server/rate-limits.test.ts',
+  'tests/server/import-stream.test.ts',
 ];
 
 export default defineConfig({

@@ -84,100 +84,111 @@ function text(v: string | undefined): string | null | undefined {
   return t === '' ? null : t;
 }
 
+/** The header's problem (a required column missing) as the one row of the report, or null. */
+export function csvHeaderProblem(fields: ReadonlySet<string>): RawRow | null {
+  const missing = ['line_name', 'from_label', 'to_label'].filter((c) => !fields.has(c));
+  if (!missing.length) return null;
+  return { row: 0, subject: 'header', reasons: [`The header lacks the column(s) ${missing.join(', ')}; the columns are: ${INVENTORY_CSV_COLUMNS.join(', ')}`], structures: [] };
+}
+
+/** A CSV header cell as the import names its column. */
+export const csvHeaderName = (h: string) => h.trim().toLowerCase();
+
+/** One data row (numbered from 1) of a CSV file as the import reads it; `parseErrors` are the reader's words for it. */
+export function csvRawRow(r: Record<string, string | undefined>, row: number, fields: ReadonlySet<string>, parseErrors: readonly string[] = []): RawRow {
+  const has = (c: string) => fields.has(c);
+  const get = (c: string) => (has(c) ? unguardCell(r[c] ?? '') : undefined);
+  const reasons = [...parseErrors];
+  const lineName = (get('line_name') ?? '').trim();
+  const fromLabel = (get('from_label') ?? '').trim();
+  const toLabel = (get('to_label') ?? '').trim();
+  if (!lineName) reasons.push('line_name: enter the line name');
+  if (!fromLabel) reasons.push('from_label: enter the from-structure label');
+  if (!toLabel) reasons.push('to_label: enter the to-structure label');
+
+  const lineGiven: Record<string, unknown> = {
+    owner: text(get('line_owner')),
+    voltageKv: num(get('voltage_kv')),
+    frequencyHz: num(get('frequency_hz')),
+    phases: num(get('phases')),
+    loadTypicalA: num(get('load_typical_a')),
+    loadMinA: num(get('load_min_a')),
+    loadPeakA: num(get('load_peak_a')),
+  };
+  const profile = get('load_profile_a');
+  if (profile !== undefined) lineGiven.loadProfileA = profile.trim() === '' ? null : profile.split(/[;\s]+/).filter(Boolean).map((x) => num(x));
+
+  const structure = (p: 'from' | 'to') => ({
+    lat: num(get(`${p}_lat`)),
+    lon: num(get(`${p}_lon`)),
+    kind: text(get(`${p}_kind`)),
+    attachmentHeightM: num(get(`${p}_attachment_height_m`)),
+  });
+
+  const spanGiven: Record<string, unknown> = {
+    phasePosition: text(get('phase_position')),
+    clearanceM: num(get('clearance_m')),
+    lowestClearanceM: num(get('lowest_clearance_m')),
+    lowestClearanceAlongM: num(get('lowest_clearance_along_m')),
+    terrain: text(get('terrain')),
+    loadCurrentA: num(get('load_current_a')),
+    surveyDate: text(get('survey_date')),
+  };
+  const conductorCols = ['conductor_code_word', 'conductor_size', 'conductor_material', 'conductor_diameter_mm', 'conductor_resistance_low_ohm_per_m', 'conductor_temp_low_c', 'conductor_resistance_high_ohm_per_m', 'conductor_temp_high_c'];
+  if (conductorCols.some(has)) {
+    const c = {
+      codeWord: text(get('conductor_code_word')),
+      size: text(get('conductor_size')),
+      material: text(get('conductor_material')),
+      diameterMm: num(get('conductor_diameter_mm')),
+      resistanceLowOhmPerM: num(get('conductor_resistance_low_ohm_per_m')),
+      tempLowC: num(get('conductor_temp_low_c')),
+      resistanceHighOhmPerM: num(get('conductor_resistance_high_ohm_per_m')),
+      tempHighC: num(get('conductor_temp_high_c')),
+    };
+    const any = Object.values(c).some((v) => v !== null && v !== undefined);
+    // A catalogue code word fills the rest: the other conductor cells are then informative only.
+    spanGiven.conductor = !any ? null : c.codeWord ? { codeWord: c.codeWord } : Object.fromEntries(Object.entries(c).filter(([, v]) => v !== undefined && v !== null));
+  }
+  const hz = get('hazards');
+  if (hz !== undefined) {
+    if (hz.trim() === '') spanGiven.hazards = [];
+    else {
+      try {
+        spanGiven.hazards = JSON.parse(hz);
+      } catch {
+        reasons.push('hazards: not a JSON list, e.g. [{"kindId":"road-crossing","severity":"high"}]');
+      }
+    }
+  }
+  return {
+    row,
+    subject: `${lineName || '?'}: ${fromLabel || '?'} → ${toLabel || '?'}`,
+    reasons,
+    line: lineName ? { name: lineName, given: lineGiven } : undefined,
+    structures: [
+      ...(fromLabel ? [{ role: 'from' as const, label: fromLabel, given: structure('from') }] : []),
+      ...(toLabel ? [{ role: 'to' as const, label: toLabel, given: structure('to') }] : []),
+    ],
+    span: fromLabel && toLabel ? { fromLabel, toLabel, given: spanGiven } : undefined,
+  };
+}
+
 export function parseCsv(source: string): RawRow[] {
   const parsed = Papa.parse<Record<string, string>>(source.replace(/^\uFEFF/, ''), {
     header: true,
     skipEmptyLines: 'greedy',
-    transformHeader: (h) => h.trim().toLowerCase(),
+    transformHeader: csvHeaderName,
   });
   const fields = new Set(parsed.meta.fields ?? []);
-  const missing = ['line_name', 'from_label', 'to_label'].filter((c) => !fields.has(c));
-  if (missing.length) {
-    return [{ row: 0, subject: 'header', reasons: [`The header lacks the column(s) ${missing.join(', ')}; the columns are: ${INVENTORY_CSV_COLUMNS.join(', ')}`], structures: [] }];
-  }
-  const has = (c: string) => fields.has(c);
+  const problem = csvHeaderProblem(fields);
+  if (problem) return [problem];
   const errorsByRow = new Map<number, string[]>();
   for (const e of parsed.errors) {
     if (e.row === undefined || e.row === null) continue;
     errorsByRow.set(e.row, [...(errorsByRow.get(e.row) ?? []), e.message]);
   }
-  return parsed.data.map((r, i) => {
-    const get = (c: string) => (has(c) ? unguardCell(r[c] ?? '') : undefined);
-    const reasons = [...(errorsByRow.get(i) ?? [])];
-    const lineName = (get('line_name') ?? '').trim();
-    const fromLabel = (get('from_label') ?? '').trim();
-    const toLabel = (get('to_label') ?? '').trim();
-    if (!lineName) reasons.push('line_name: enter the line name');
-    if (!fromLabel) reasons.push('from_label: enter the from-structure label');
-    if (!toLabel) reasons.push('to_label: enter the to-structure label');
-
-    const lineGiven: Record<string, unknown> = {
-      owner: text(get('line_owner')),
-      voltageKv: num(get('voltage_kv')),
-      frequencyHz: num(get('frequency_hz')),
-      phases: num(get('phases')),
-      loadTypicalA: num(get('load_typical_a')),
-      loadMinA: num(get('load_min_a')),
-      loadPeakA: num(get('load_peak_a')),
-    };
-    const profile = get('load_profile_a');
-    if (profile !== undefined) lineGiven.loadProfileA = profile.trim() === '' ? null : profile.split(/[;\s]+/).filter(Boolean).map((x) => num(x));
-
-    const structure = (p: 'from' | 'to') => ({
-      lat: num(get(`${p}_lat`)),
-      lon: num(get(`${p}_lon`)),
-      kind: text(get(`${p}_kind`)),
-      attachmentHeightM: num(get(`${p}_attachment_height_m`)),
-    });
-
-    const spanGiven: Record<string, unknown> = {
-      phasePosition: text(get('phase_position')),
-      clearanceM: num(get('clearance_m')),
-      lowestClearanceM: num(get('lowest_clearance_m')),
-      lowestClearanceAlongM: num(get('lowest_clearance_along_m')),
-      terrain: text(get('terrain')),
-      loadCurrentA: num(get('load_current_a')),
-      surveyDate: text(get('survey_date')),
-    };
-    const conductorCols = ['conductor_code_word', 'conductor_size', 'conductor_material', 'conductor_diameter_mm', 'conductor_resistance_low_ohm_per_m', 'conductor_temp_low_c', 'conductor_resistance_high_ohm_per_m', 'conductor_temp_high_c'];
-    if (conductorCols.some(has)) {
-      const c = {
-        codeWord: text(get('conductor_code_word')),
-        size: text(get('conductor_size')),
-        material: text(get('conductor_material')),
-        diameterMm: num(get('conductor_diameter_mm')),
-        resistanceLowOhmPerM: num(get('conductor_resistance_low_ohm_per_m')),
-        tempLowC: num(get('conductor_temp_low_c')),
-        resistanceHighOhmPerM: num(get('conductor_resistance_high_ohm_per_m')),
-        tempHighC: num(get('conductor_temp_high_c')),
-      };
-      const any = Object.values(c).some((v) => v !== null && v !== undefined);
-      // A catalogue code word fills the rest: the other conductor cells are then informative only.
-      spanGiven.conductor = !any ? null : c.codeWord ? { codeWord: c.codeWord } : Object.fromEntries(Object.entries(c).filter(([, v]) => v !== undefined && v !== null));
-    }
-    const hz = get('hazards');
-    if (hz !== undefined) {
-      if (hz.trim() === '') spanGiven.hazards = [];
-      else {
-        try {
-          spanGiven.hazards = JSON.parse(hz);
-        } catch {
-          reasons.push('hazards: not a JSON list, e.g. [{"kindId":"road-crossing","severity":"high"}]');
-        }
-      }
-    }
-    return {
-      row: i + 1,
-      subject: `${lineName || '?'}: ${fromLabel || '?'} → ${toLabel || '?'}`,
-      reasons,
-      line: lineName ? { name: lineName, given: lineGiven } : undefined,
-      structures: [
-        ...(fromLabel ? [{ role: 'from' as const, label: fromLabel, given: structure('from') }] : []),
-        ...(toLabel ? [{ role: 'to' as const, label: toLabel, given: structure('to') }] : []),
-      ],
-      span: fromLabel && toLabel ? { fromLabel, toLabel, given: spanGiven } : undefined,
-    };
-  });
+  return parsed.data.map((r, i) => csvRawRow(r, i + 1, fields, errorsByRow.get(i) ?? []));
 }
 
 function csvNumber(n: number | null | undefined) {

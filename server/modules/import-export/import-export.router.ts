@@ -14,6 +14,12 @@ import { chunks, lineView, spanViews, structureView } from '../inventory/invento
 import { matchingSpanIds } from '../inventory/spans.query.ts';
 import { spansToCsv, spansToGeoJson, spansToKml } from './formats.ts';
 import { commitImport, detectFormat, dryRun, ImportRefusedError } from './import.service.ts';
+import { newImportFile, queueImport, registerImportWork, type ImportMode } from './import-jobs.ts';
+import { jobRunnerFor } from '../jobs/job-runner.ts';
+import fs from 'node:fs';
+import path from 'node:path';
+import { randomUUID } from 'node:crypto';
+import { sql } from '../../sql/query.ts';
 
 /** Largest import file accepted, bytes. */
 export const MAX_IMPORT_BYTES = 20 * 1024 * 1024;
@@ -62,10 +68,77 @@ export const importErrorHandler: ErrorRequestHandler = (err, _req, res, next) =>
   next(err);
 };
 
+/** A finished job's result (the report), also when it failed with a refused report. */
+async function resultOf(ctx: AppContext, id: string) {
+  const row = await sql.get<{ result: string | null }>(ctx.orm.em.fork(), 'select result from jobs where id = ?', [id]);
+  return row?.result ? JSON.parse(row.result) : null;
+}
+
 const exportQuerySchema = spanListQuerySchema.omit({ page: true, pageSize: true });
 
-export function importExportRouter(_ctx: AppContext) {
+/** Largest file an import job takes, bytes: the job reads it as a stream, so this bounds the disk, not memory. */
+export const MAX_STREAMED_IMPORT_BYTES = 512 * 1024 * 1024;
+
+const modeSchema = z.object({ mode: z.enum(['dry-run', 'commit'], { error: 'The mode must be dry-run or commit' }), format: z.enum(IMPORT_FORMATS, { error: 'The format must be csv or geojson' }).optional() });
+
+/** The upload of an import job, written straight to disk (multipart `file`, or a text/csv or GeoJSON body). */
+function receiveToDisk(ctx: AppContext): RequestHandler {
+  const diskUpload = multer({
+    storage: multer.diskStorage({ destination: (_req, _file, cb) => cb(null, path.dirname(newImportFile(ctx))), filename: (_req, _file, cb) => cb(null, `${randomUUID()}.upload`) }),
+    limits: { fileSize: MAX_STREAMED_IMPORT_BYTES, files: 1, fields: 5 },
+  }).single('file');
+  return async (req, res, next) => {
+    if (req.is('multipart/form-data')) {
+      diskUpload(req, res, (err: unknown) => {
+        if (!err) return next();
+        if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') return next(new AppError(413, 'payload_too_large', `file: larger than ${MAX_STREAMED_IMPORT_BYTES / 1024 / 1024} MB`, [{ path: 'file', message: 'too large' }]));
+        if (err instanceof multer.MulterError) return next(AppError.field(err.field ?? 'file', `the upload is not valid: send the file as "file" (${err.message})`));
+        next(AppError.badRequest('The upload could not be read (broken multipart body)'));
+      });
+      return;
+    }
+    if (req.is(['text/csv', 'text/plain', 'application/geo+json'])) {
+      // A plain body streams to the same kind of file.
+      const file = newImportFile(ctx);
+      let size = 0;
+      const out = fs.createWriteStream(file);
+      try {
+        for await (const chunk of req as AsyncIterable<Buffer>) {
+          size += chunk.length;
+          if (size > MAX_STREAMED_IMPORT_BYTES) throw new AppError(413, 'payload_too_large', `file: larger than ${MAX_STREAMED_IMPORT_BYTES / 1024 / 1024} MB`, [{ path: 'file', message: 'too large' }]);
+          if (!out.write(chunk)) await new Promise<void>((r) => out.once('drain', () => r()));
+        }
+        await new Promise<void>((resolve, reject) => out.end((err?: Error | null) => (err ? reject(err) : resolve())));
+      } catch (err) {
+        out.destroy();
+        await fs.promises.rm(file, { force: true });
+        return next(err);
+      }
+      req.file = { path: file, originalname: '', size } as Express.Multer.File;
+      return next();
+    }
+    next(AppError.field('file', 'Attach the CSV or GeoJSON file as "file"'));
+  };
+}
+
+/** Checks the stored upload's start: not empty, text; the format from the name, the choice or the content. */
+async function checkStoredUpload(file: Express.Multer.File, explicit?: ImportFormat): Promise<ImportFormat> {
+  const fd = await fs.promises.open(file.path, 'r');
+  try {
+    const head = Buffer.alloc(64 * 1024);
+    const { bytesRead } = await fd.read(head, 0, head.length, 0);
+    const text = head.subarray(0, bytesRead).toString('utf8');
+    if (!text.replace(/^\uFEFF/, '').trim()) throw AppError.field('file', 'The file is empty');
+    if (text.includes('\u0000')) throw new AppError(415, 'unsupported_media_type', 'file: this is not a text file (CSV or GeoJSON expected)', [{ path: 'file', message: 'not a text file' }]);
+    return detectFormat(text, file.originalname || undefined, explicit);
+  } finally {
+    await fd.close();
+  }
+}
+
+export function importExportRouter(ctx: AppContext) {
   const root = express.Router();
+  registerImportWork(ctx);
 
   const imp = featureRouter('/api/import');
   imp.post('/dry-run', ['surveyor', 'admin'], textBody, receive, async (req, res) => {
@@ -75,6 +148,28 @@ export function importExportRouter(_ctx: AppContext) {
   imp.post('/commit', ['surveyor', 'admin'], textBody, receive, async (req, res) => {
     const { format, text } = importSource(req);
     res.json(await commitImport(req.em, currentUser(req), format, text));
+  });
+
+  // An import as a job: the upload is stored, read as a stream in batches; 202 with the job, whose progress counts
+  // rows and whose result is the report (GET /api/import/jobs/:id).
+  imp.post('/jobs', ['surveyor', 'admin'], receiveToDisk(ctx), async (req, res) => {
+    const file = req.file;
+    try {
+      const q = parse(modeSchema, { ...req.query, ...(typeof req.body === 'object' && req.body ? req.body : {}) });
+      if (!file) throw AppError.field('file', 'Attach the CSV or GeoJSON file as "file"');
+      const format = await checkStoredUpload(file, q.format);
+      const job = await queueImport(ctx, { file: file.path, format, mode: q.mode as ImportMode, userId: currentUser(req).id, filename: file.originalname || null });
+      res.status(202).json({ job });
+    } catch (err) {
+      if (file) await fs.promises.rm(file.path, { force: true });
+      throw err;
+    }
+  });
+  imp.get('/jobs/:id', ['surveyor', 'admin'], async (req, res) => {
+    const queue = jobRunnerFor(ctx);
+    const job = await queue.get(String(req.params.id));
+    if (!job || !job.kind.startsWith('import-')) throw AppError.notFound('Import job');
+    res.json({ job, report: job.state === 'done' || job.state === 'failed' ? await resultOf(ctx, job.id) : null });
   });
 
   // A starting file: the columns with one example span (invented), for people building an import by hand.

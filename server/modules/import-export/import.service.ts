@@ -91,8 +91,8 @@ export function detectFormat(text: string, filename?: string, explicit?: ImportF
   return /^\s*[{[]/.test(text) ? 'geojson' : 'csv';
 }
 
-const structureKey = (lineKey: string, label: string) => `${lineKey}\u0000${label}`;
-const spanKeyOf = (lineKey: string, a: string, b: string) => `${lineKey}\u0000${[a, b].sort().join('\u0000')}`;
+export const structureKey = (lineKey: string, label: string) => `${lineKey}\u0000${label}`;
+export const spanKeyOf = (lineKey: string, a: string, b: string) => `${lineKey}\u0000${[a, b].sort().join('\u0000')}`;
 
 function issuesOf(error: z.ZodError, record: Parameters<FieldNamer>[0], name: FieldNamer): string[] {
   return error.issues.map((i) => `${name(record, i.path.map(String).join('.'))}: ${i.message}`);
@@ -153,7 +153,7 @@ export async function planImport(em: EntityManager, format: ImportFormat, text: 
       createdByRow: raw.row,
     });
   }
-  const lookups = { dbLineByName, dbStructureByKey, dbSpanByKey, dbHazards, kinds, catalogue };
+  const lookups = { dbLineByName, dbStructureByKey, dbSpanByKey, hazardsBySpan: groupHazards(dbHazards), kinds, catalogue };
   const final = new Map<number, ImportRowReport>();
   let pending = rows;
   for (;;) {
@@ -175,17 +175,26 @@ export async function planImport(em: EntityManager, format: ImportFormat, text: 
   return plan;
 }
 
-interface Lookups {
+export function groupHazards(hazards: Hazard[], into = new Map<string, Hazard[]>()): Map<string, Hazard[]> {
+  for (const h of hazards) {
+    const list = into.get(h.spanId);
+    if (list) list.push(h);
+    else into.set(h.spanId, [h]);
+  }
+  return into;
+}
+
+export interface Lookups {
   dbLineByName: Map<string, Line>;
   dbStructureByKey: Map<string, Structure>;
   dbSpanByKey: Map<string, Span>;
-  dbHazards: Hazard[];
+  hazardsBySpan: Map<string, Hazard[]>;
   kinds: Map<string, HazardKind>;
   catalogue: Map<string, ConductorType>;
 }
 
 /** Evaluates one row against the plan so far; the row's changes join the plan only when it is not refused. */
-function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookups): { report: ImportRowReport; waiting: boolean } {
+export function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookups): { report: ImportRowReport; waiting: boolean } {
   const reasons = [...raw.reasons];
   const changes: string[] = [];
   const records: NonNullable<ImportRowReport['records']> = [];
@@ -361,7 +370,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
     }
     const v = parsed.data;
     const existing = newLine ? null : (db.dbSpanByKey.get(key) ?? null);
-    const existingHazards = existing ? db.dbHazards.filter((h) => h.spanId === existing.id) : [];
+    const existingHazards = existing ? (db.hazardsBySpan.get(existing.id) ?? []) : [];
     const fields: SpanFields = existing
       ? {
           conductorCodeWord: existing.conductorCodeWord,
@@ -490,7 +499,7 @@ function evaluateRow(raw: RawRow, plan: ImportPlan, name: FieldNamer, db: Lookup
  * Applies a plan with no refused row, in the caller's transaction. Moving a structure re-measures every span
  * touching it (also spans not in the file); approved spans whose safety-relevant data changed go back to review.
  */
-export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan): Promise<string[]> {
+export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan, opts: { inFileSpanIds?: ReadonlySet<string> } = {}): Promise<string[]> {
   const now = new Date();
   const lineByKey = new Map<string, Line>();
   const changedLineIds: string[] = [];
@@ -535,7 +544,9 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
     }
   }
   const touchedSpanIds = new Set<string>();
-  const inFile = new Set<string>();
+  // Spans of the file (all of it, when the plan is applied in parts): re-measured by their own row, not as "others".
+  const inFile = new Set<string>(opts.inFileSpanIds ?? []);
+  const createdSpans = new Map<PlannedSpan, Span>();
   for (const p of plan.spans.values()) {
     const from = structureByKey.get(p.fromKey)!;
     const to = structureByKey.get(p.toKey)!;
@@ -585,6 +596,7 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
         createdAt: now,
         updatedAt: now,
       } as Span);
+      createdSpans.set(p, span);
       const hazards = p.hazards.map((h) => push(newHazards, { id: newId(), spanId: span.id, ...h, createdAt: now } as Hazard));
       touchedSpanIds.add(span.id);
       push(newAudits, { at: now, actorId: user.id, action: 'span.import-create', recordType: 'span', recordId: span.id, before: null, after: spanSnapshot(span, hazards) });
@@ -621,6 +633,20 @@ export async function applyPlan(em: EntityManager, user: User, plan: ImportPlan)
     [AuditEntry, newAudits],
   ] as const) {
     for (const part of chunks(rows as object[], 400)) await em.insertMany(entity as any, part as any[]);
+  }
+  // What is written now exists: applying the same plan again (its next part) writes nothing twice.
+  for (const pl of plan.lines.values()) {
+    pl.existing ??= lineByKey.get(pl.key) ?? null;
+    pl.changed.clear();
+  }
+  for (const ps of plan.structures.values()) {
+    ps.existing ??= structureByKey.get(ps.key) ?? null;
+    ps.changed.clear();
+  }
+  for (const [p, span] of createdSpans) p.existing = span;
+  for (const p of plan.spans.values()) {
+    p.changed.clear();
+    p.hazardsChanged = false;
   }
   // A changed load estimate changes the assessment of every span on the line.
   if (changedLineIds.length) for (const s of await em.find(Span, { lineId: { $in: changedLineIds } }, { fields: ['id'] })) touchedSpanIds.add(s.id);

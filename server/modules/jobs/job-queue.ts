@@ -287,7 +287,8 @@ export async function runClaimed(
       return 'queued';
     }
     const message = err instanceof Error ? err.message : String(err);
-    console.error(`job ${row.kind} failed`, err);
+    // A refusal with a report (an import's bad rows) is an answer, not a fault.
+    if (resultOfError(err) === undefined) console.error(`job ${row.kind} failed`, err);
     await rows.finish(row.id, owner, { state: 'failed', done, total, error: message, result: resultOfError(err) });
     return 'failed';
   } finally {

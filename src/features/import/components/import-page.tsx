@@ -3,7 +3,7 @@ import { useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { INVENTORY_CSV_COLUMNS, type ImportAction, type ImportFormat, type ImportReport } from '#shared/schemas/inventory.ts';
 import { ApiError } from '../../../lib/api.ts';
-import { formatOfFile, runImport } from '../api.ts';
+import { formatOfFile, runImport, type ImportJobProgress } from '../api.ts';
 import type { UploadProgress } from '../upload.ts';
 import { ProgressBar } from './progress-bar.tsx';
 import { count } from '../../../lib/format.ts';
@@ -17,14 +17,32 @@ const ACTION_LOOK: Record<ImportAction, { label: string; className: string }> = 
 
 type Phase = 'idle' | 'checking' | 'checked' | 'committing' | 'committed';
 
+/**
+ * The import job's progress in rows: a dry run counts rows checked; a commit counts rows checked and then rows
+ * saved (its total is twice the rows), shown as two steps of one bar each.
+ */
+function RowsProgress({ committing, progress }: { committing: boolean; progress: ImportJobProgress | null }) {
+  if (!progress || progress.total === 0) return <ProgressBar label="Reading the file" value={null} detail="counting rows" />;
+  const rows = committing ? progress.total / 2 : progress.total;
+  const checked = Math.min(rows, progress.done);
+  const saved = committing ? Math.max(0, progress.done - rows) : 0;
+  return (
+    <>
+      <ProgressBar label="Checking rows" value={rows ? checked / rows : 1} detail={`${count(checked)} of ${count(rows)} rows`} />
+      {committing && checked >= rows && <ProgressBar label="Saving rows" value={rows ? saved / rows : 1} detail={`${count(saved)} of ${count(rows)} rows`} />}
+    </>
+  );
+}
+
 export function ImportPage() {
   const queryClient = useQueryClient();
   const [file, setFile] = useState<File | null>(null);
   const [format, setFormat] = useState<ImportFormat>('csv');
   const [phase, setPhase] = useState<Phase>('idle');
   const [upload, setUpload] = useState<UploadProgress | null>(null);
-  // True once the file is up and the server is working through the rows (it answers with the whole report).
+  // True once the file is up and the server's import job is working through the rows.
   const [processing, setProcessing] = useState(false);
+  const [progress, setProgress] = useState<ImportJobProgress | null>(null);
   const [report, setReport] = useState<ImportReport | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [show, setShow] = useState<ImportAction | 'all'>('all');
@@ -35,6 +53,7 @@ export function ImportPage() {
     setError(null);
     setUpload({ loaded: 0, total: file.size, fraction: 0 });
     setProcessing(false);
+    setProgress(null);
     setPhase(step === 'dry-run' ? 'checking' : 'committing');
     abort.current = new AbortController();
     try {
@@ -45,6 +64,10 @@ export function ImportPage() {
         (p) => {
           setUpload(p);
           if (p.fraction === 1) setProcessing(true);
+        },
+        (p) => {
+          setProcessing(true);
+          setProgress(p);
         },
         abort.current.signal,
       );
@@ -60,6 +83,7 @@ export function ImportPage() {
     } finally {
       setUpload(null);
       setProcessing(false);
+      setProgress(null);
       abort.current = null;
     }
   };
@@ -132,13 +156,7 @@ export function ImportPage() {
               value={upload?.fraction ?? (processing ? 1 : null)}
               detail={upload ? `${count(upload.loaded / 1024)} of ${count((upload.total || file?.size || 0) / 1024)} KiB` : undefined}
             />
-            {processing && (
-              <ProgressBar
-                label={phase === 'checking' ? 'Checking rows' : 'Saving'}
-                value={null}
-                detail={phase === 'checking' ? 'the server is checking every row' : 'saving every row in one transaction'}
-              />
-            )}
+            {processing && <RowsProgress committing={phase === 'committing'} progress={progress} />}
           </div>
         )}
         {error && (
@@ -155,7 +173,7 @@ export function ImportPage() {
           </h2>
           {report.committed && (
             <p role="status" className="rounded-lg bg-green-50 p-3 font-semibold text-go">
-              Saved: {report.summary.create} created, {report.summary.update} updated, {report.summary.unchanged} unchanged.
+              Saved: {count(report.summary.create)} created, {count(report.summary.update)} updated, {count(report.summary.unchanged)} unchanged.
             </p>
           )}
           <div className="flex flex-wrap gap-2" role="group" aria-label="Show rows">
