@@ -42,7 +42,7 @@ export function createApp({ orm, config, clientDir = path.resolve('dist'), stora
   const ctx: AppContext = { orm, config, lucia: createLucia(orm, config.secureCookies), onClose: (fn) => closers.push(fn), lifecycle, storage };
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  app.set('trust proxy', config.trustProxy);
   app.use(lifecycle.middleware());
   app.use(
     helmet({

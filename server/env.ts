@@ -42,6 +42,12 @@ export interface AppConfig {
   uploadBurst: number;
   uploadWindowMs: number;
   logRequests: boolean;
+  /**
+   * TRUST_PROXY: which proxies' X-Forwarded-For to believe, as Express's `trust proxy` takes it (subnets such as
+   * "10.0.0.0/8,fd00::/8", a hop count, true/false); default "loopback". Behind a load balancer, name its addresses so
+   * the sign-in limit counts per client, not per balancer.
+   */
+  trustProxy: string | number | boolean;
   /** On SIGTERM/SIGINT, how long requests in flight may take to finish before they are cut (SHUTDOWN_GRACE_MS; 20 s). */
   shutdownGraceMs: number;
   /** Health warns when the disk holding the database or the uploads has less free space than this (DISK_WARN_MB; 1024). */
@@ -83,6 +89,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): AppConfig {
     uploadBurst: Number(env.UPLOAD_BURST ?? 300),
     uploadWindowMs: Number(env.UPLOAD_WINDOW_MS ?? 10 * 60_000),
     logRequests: env.LOG_REQUESTS === 'true',
+    trustProxy: !env.TRUST_PROXY ? 'loopback' : /^\d+$/.test(env.TRUST_PROXY) ? Number(env.TRUST_PROXY) : env.TRUST_PROXY === 'true' ? true : env.TRUST_PROXY === 'false' ? false : env.TRUST_PROXY,
     shutdownGraceMs: Number(env.SHUTDOWN_GRACE_MS ?? 20_000),
     diskWarnBytes: Number(env.DISK_WARN_MB ?? 1024) * 1024 * 1024,
     backupDir: env.BACKUP_DIR ? path.resolve(env.BACKUP_DIR) : null,
