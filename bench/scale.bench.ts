@@ -5,6 +5,8 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import zlib from 'node:zlib';
+import v8 from 'node:v8';
+import vm from 'node:vm';
 import type { AddressInfo } from 'node:net';
 import { createApp } from '../server/app.ts';
 import { testConfig } from '../server/env.ts';
@@ -27,6 +29,13 @@ const SIZES = [...new Set([...[10_000, 100_000, 1_000_000].filter((n) => n < ask
 const pct = (list: number[], p: number) => [...list].sort((a, b) => a - b)[Math.min(list.length - 1, Math.floor((p / 100) * list.length))];
 const f1 = (v: number) => (v >= 100 ? Math.round(v).toLocaleString('en-GB') : v.toFixed(1));
 const mb = (b: number) => Math.round(b / 1048576);
+v8.setFlagsFromString('--expose-gc');
+const gc = vm.runInNewContext('gc') as () => void;
+/** JS heap in use after a full collection: what a service keeps, apart from what the bench and seeding left behind in RSS. */
+const heapAfterGc = () => {
+  gc();
+  return process.memoryUsage().heapUsed;
+};
 
 function tileOf(lon: number, lat: number, z: number) {
   const r = (lat * Math.PI) / 180;
@@ -147,6 +156,7 @@ async function measure(spans: number): Promise<Record<string, string>> {
 
     // Tiles over the densest area. A fresh service is a restart: its first tiles come from their own box query
     // while the snapshot is read and the generalised layers are built in the background.
+    const heapBefore = heapAfterGc();
     const service = new SpanTileService(orm);
     const [lon, lat] = seeded.densest;
     const started = performance.now();
@@ -186,7 +196,7 @@ async function measure(spans: number): Promise<Record<string, string>> {
       out[`tile z${z}`] = `cold p95 ${f1(pct(cold, 95))} / cached p95 ${f1(pct(warm, 95))} ms`;
       out[`tile z${z} baseline`] = `plain path p95 ${f1(pct(plain, 95))} ms (${plain.length} tiles)`;
     }
-    out['RSS under tile load'] = `${mb(process.memoryUsage().rss)} MB`;
+    out['RSS under tile load'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process); the tile service's own heap ${mb(heapAfterGc() - heapBefore)} MB (snapshot, grid, layers z6–z11, cached tiles)`;
     service.close();
     out.import = 'not measured yet';
     out['load average (1 min)'] = `${load0.toFixed(1)} at the start, ${os.loadavg()[0].toFixed(1)} at the end of this size (2 cores; ${f1((performance.now() - began) / 60_000)} min for this size)`;

@@ -76,6 +76,8 @@ interface Snapshot {
   structureIndex: Map<string, number>;
   structureGrid: Map<number, number[]>;
   pair: TilePair | null;
+  /** One copy of each repeated string (line ids, statuses, kinds): a million rows otherwise hold a million copies. */
+  names: Map<string, string>;
   /** The database fingerprint this snapshot is current with. */
   fp: Fingerprint;
 }
@@ -131,12 +133,20 @@ function emptySnapshot(pair: TilePair | null, fp: Fingerprint): Snapshot {
     structureIndex: new Map(),
     structureGrid: new Map(),
     pair,
+    names: new Map(),
     fp,
   };
 }
 
-/** Generalised zooms built in the background once a snapshot is read: those a planner opens the map at first. */
-const WARM_ZOOMS = [8, 9, 10, 11, 7, 6, 5, 4, 3, 2, 1, 0];
+function named(snap: Snapshot, v: string): string {
+  const had = snap.names.get(v);
+  if (had !== undefined) return had;
+  snap.names.set(v, v);
+  return v;
+}
+
+/** Generalised zooms built in the background once a snapshot is read: those a planner opens the map at (lower ones on first use). */
+const WARM_ZOOMS = [8, 9, 10, 11, 7, 6];
 const pairKey = (pair: TilePair | null) => (pair ? `${pair.harvesterProfileId}|${pair.droneProfileId}` : '-');
 
 const sameFp = (a: Fingerprint, b: Fingerprint) => JSON.stringify(a) === JSON.stringify(b);
@@ -596,8 +606,8 @@ function upsertSpan(snap: Snapshot, r: any) {
       addToGrid(snap.lineSpans, [r.line_id], i);
     }
   }
-  snap.lineIds[i] = r.line_id;
-  snap.statuses[i] = r.status;
+  snap.lineIds[i] = named(snap, r.line_id);
+  snap.statuses[i] = named(snap, r.status);
   snap.lon0[i] = r.lon0;
   snap.lat0[i] = r.lat0;
   snap.lon1[i] = r.lon1;
@@ -618,7 +628,7 @@ function upsertSpan(snap: Snapshot, r: any) {
 }
 
 function upsertStructure(snap: Snapshot, t: any) {
-  const entry = { id: t.id, lineId: t.line_id, lon: t.lon, lat: t.lat, kind: t.kind, label: t.label };
+  const entry = { id: t.id, lineId: named(snap, t.line_id), lon: t.lon, lat: t.lat, kind: named(snap, t.kind), label: t.label };
   const i = snap.structureIndex.get(t.id);
   if (i === undefined) {
     const at = snap.structures.push(entry) - 1;
