@@ -183,10 +183,11 @@ export class JobRows {
 
   async finish(id: string, owner: string, outcome: { state: 'done' | 'failed' | 'queued'; done: number; total: number; error?: string | null; result?: unknown }): Promise<void> {
     const finished = outcome.state === 'queued' ? null : Date.now();
+    // A finished job keeps the name of the worker that ran it; one queued again has no owner.
     await sql.run(
       this.em(),
-      "update jobs set state = ?, done = ?, total = ?, error = ?, result = ?, finished_at = ?, owner = null, lease_until = null where id = ? and owner = ? and state = 'running'",
-      [outcome.state, outcome.done, outcome.total, outcome.error ?? null, outcome.result === undefined ? null : JSON.stringify(outcome.result), finished, id, owner],
+      "update jobs set state = ?, done = ?, total = ?, error = ?, result = ?, finished_at = ?, owner = ?, lease_until = null where id = ? and owner = ? and state = 'running'",
+      [outcome.state, outcome.done, outcome.total, outcome.error ?? null, outcome.result === undefined ? null : JSON.stringify(outcome.result), finished, outcome.state === 'queued' ? null : owner, id, owner],
     );
   }
 

@@ -25,7 +25,7 @@ export class Job {
   onceKey?: string | null;
   /** How many times a worker took it (a worker that died and a restart add one). */
   attempts!: number;
-  /** The process that holds it while running. */
+  /** The worker (host:pid:tag) that holds it while running, and that ran it once finished. */
   owner?: string | null;
   /** Epoch ms until which the owner's claim holds; the owner renews it while it works. */
   leaseUntil?: number | null;
