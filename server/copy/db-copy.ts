@@ -63,6 +63,11 @@ interface Column {
   name: string;
   /** information_schema data_type on the target. */
   type: string;
+  /**
+   * Kept by the database itself, never written: a generated column, or a PostGIS geometry (generated from lon/lat
+   * or kept by a trigger from the span's structures). The copy leaves it out; PostgreSQL fills it in.
+   */
+  derived?: boolean;
 }
 
 /** SQLite's value as the target column's type wants it (the app's SQLite driver keeps booleans as 0/1, times as ms). */
@@ -128,17 +133,22 @@ export function dependencyOrder(tables: Map<string, Column[]>, foreignKeys: { fr
 
 async function targetTables(client: pg.Client): Promise<Map<string, Column[]>> {
   const rows = (
-    await client.query<{ table_name: string; column_name: string; data_type: string }>(
-      `select c.table_name, c.column_name, c.data_type from information_schema.columns c
+    await client.query<{ table_name: string; column_name: string; data_type: string; derived: boolean }>(
+      // Tables an extension owns (PostGIS's spatial_ref_sys) belong to the extension, not to the inventory.
+      `select c.table_name, c.column_name, c.data_type, (c.is_generated = 'ALWAYS' or c.udt_name in ('geometry', 'geography')) as derived
+         from information_schema.columns c
          join information_schema.tables t on t.table_schema = c.table_schema and t.table_name = c.table_name
-        where c.table_schema = current_schema() and t.table_type = 'BASE TABLE' order by c.table_name, c.ordinal_position`,
+        where c.table_schema = current_schema() and t.table_type = 'BASE TABLE'
+          and not exists (select 1 from pg_depend d join pg_class k on k.oid = d.objid
+                           where d.deptype = 'e' and k.relname = c.table_name and k.relnamespace = to_regnamespace(current_schema()))
+        order by c.table_name, c.ordinal_position`,
     )
   ).rows;
   const out = new Map<string, Column[]>();
   for (const r of rows) {
     if (OWN_TABLES.has(r.table_name)) continue;
     if (!out.has(r.table_name)) out.set(r.table_name, []);
-    out.get(r.table_name)!.push({ name: r.column_name, type: r.data_type });
+    out.get(r.table_name)!.push({ name: r.column_name, type: r.data_type, derived: r.derived });
   }
   return out;
 }
@@ -185,7 +195,7 @@ export async function copyDatabase(opts: CopyOptions): Promise<CopyResult> {
     for (const [t, cols] of tables) {
       const have = sourceColumns.get(t);
       if (!have) differ.push(`table ${t} is missing`);
-      else for (const c of cols) if (!have.has(c.name)) differ.push(`${t}.${c.name} is missing`);
+      else for (const c of cols) if (!have.has(c.name) && !c.derived) differ.push(`${t}.${c.name} is missing`);
     }
     for (const [t, have] of sourceColumns) {
       if (!tables.has(t)) differ.push(`table ${t} is unknown to this version`);
@@ -229,7 +239,7 @@ export async function copyDatabase(opts: CopyOptions): Promise<CopyResult> {
       // Empties the catalogues the migrations filled (and, with --force, everything else) in the copy's transaction.
       await client.query(`truncate ${order.map(ident).join(', ')}`);
       for (const table of order) {
-        const cols = tables.get(table)!;
+        const cols = tables.get(table)!.filter((c) => !c.derived);
         const [{ n }] = await source.all<{ n: number }>(`select count(*) as n from ${ident(table)}`);
         progress.start(table, n);
         const batch = Math.max(1, Math.min(MAX_BATCH_ROWS, Math.floor(MAX_PARAMS / cols.length)));

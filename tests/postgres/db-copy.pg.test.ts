@@ -99,6 +99,17 @@ describe('npm run db:copy', () => {
     expect(src.spans).toBeGreaterThan(10);
     expect(src.photos).toBe(1);
     expect(await targetCounts(Object.keys(src))).toEqual(src);
+    // With PostGIS the geometry columns are the database's own: filled on the target for every copied row.
+    const c = new pg.Client({ connectionString: target });
+    await c.connect();
+    try {
+      const geomTables = (await c.query("select table_name from information_schema.columns where table_schema = current_schema() and udt_name = 'geometry'")).rows.map((r) => r.table_name as string);
+      for (const table of geomTables) expect(Number((await c.query(`select count(*) as n from "${table}" where geom is null`)).rows[0].n), `${table} rows without geometry`).toBe(0);
+      // PostGIS's own table of reference systems is untouched.
+      if (geomTables.length) expect(Number((await c.query('select count(*) as n from spatial_ref_sys')).rows[0].n)).toBeGreaterThan(1000);
+    } finally {
+      await c.end();
+    }
 
     const t = await makeTestApp({ databaseUrl: target, storageUrl: bucketUrl(), s3Endpoint: fake.endpoint, s3Credentials: S3_FAKE_CREDENTIALS }, { demoUsers: false });
     try {

@@ -94,7 +94,7 @@ export function s3Storage(opts: S3Options): PhotoStorage & { client: S3Client; d
   };
   return {
     client,
-    describe: `s3://${Bucket}/${opts.prefix}`,
+    describe: `s3://${Bucket}${opts.prefix ? `/${opts.prefix}` : ''}`,
     /** Reachable and allowed: HeadBucket answers 200 (used by the health check). */
     async check() {
       await client.send(new HeadBucketCommand({ Bucket }));
