@@ -42,6 +42,35 @@ async function makeSpan(page: Page, extra: object = {}): Promise<{ id: string; h
   return post('/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id, ...extra });
 }
 
+/**
+ * A surveyor on the new-span form at 820 × 1180, on a fresh line with two structures (about 200 m apart, east from
+ * `lat`, -130.3), both chosen; `ready` also fills what a submit needs. The photo is picked before the first save.
+ */
+async function newSpanWithHeldPhoto(name: string, lat: number, photo: string, ready: boolean) {
+  const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
+  await h.signIn(page, 'surveyor');
+  await page.waitForURL((u) => u.pathname === '/field');
+  const headers = { Origin: h.baseUrl };
+  const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
+  const line = await post('/api/lines', { name: `${name} ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
+  const a = await post('/api/structures', { lineId: line.id, lat, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
+  const b = await post('/api/structures', { lineId: line.id, lat, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
+
+  await page.goto('/field/spans/new');
+  await page.getByLabel('Line', { exact: true }).selectOption(line.id);
+  await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
+  await page.locator('#fromStructureId').selectOption(a.id);
+  await page.locator('#toStructureId').selectOption(b.id);
+  if (ready) {
+    await page.getByLabel('Code word').selectOption('Hawk');
+    await page.getByLabel(/^Ground clearance at the perch point/).fill('9.5');
+    await page.getByLabel('Terrain under the span').selectOption('road');
+  }
+  await page.getByTestId('photo-input').setInputFiles(photo);
+  await page.getByTestId('photo-held').waitFor();
+  return { context, page, line: line as { id: string } };
+}
+
 describe('photo journey', () => {
   it('when a surveyor adds a photo on the span form, then a progress bar runs, the thumbnail shows and the span gallery opens it', async () => {
     const { context, page } = await h.newPage({ viewport: { width: 1024, height: 1300 } });
@@ -112,23 +141,8 @@ describe('photo journey', () => {
   }, 180_000);
 
   it('when a photo is picked before a new span is first saved, then it is kept, and uploads onto the span with its progress bar right after the save', async () => {
-    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
-    await h.signIn(page, 'surveyor');
-    await page.waitForURL((u) => u.pathname === '/field');
-    const headers = { Origin: h.baseUrl };
-    const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
-    const line = await post('/api/lines', { name: `Photo first-save feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
-    const a = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
-    const b = await post('/api/structures', { lineId: line.id, lat: -30.2, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
-
-    await page.goto('/field/spans/new');
-    await page.getByLabel('Line', { exact: true }).selectOption(line.id);
-    await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
-    await page.locator('#fromStructureId').selectOption(a.id);
-    await page.locator('#toStructureId').selectOption(b.id);
-    await page.getByTestId('photo-input').setInputFiles(photoPath);
+    const { context, page } = await newSpanWithHeldPhoto('Photo first-save feeder', -30.2, photoPath, false);
     const row = page.getByTestId('photo-upload-row');
-    await row.getByTestId('photo-held').waitFor();
     expect(await row.getAttribute('data-status')).toBe('held');
     expect(await page.getByRole('progressbar').count()).toBe(0);
 
@@ -149,25 +163,7 @@ describe('photo journey', () => {
   }, 180_000);
 
   it('when a new span is submitted at its first save with a photo picked before, then the page waits for the upload and the span has the photo', async () => {
-    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
-    await h.signIn(page, 'surveyor');
-    await page.waitForURL((u) => u.pathname === '/field');
-    const headers = { Origin: h.baseUrl };
-    const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
-    const line = await post('/api/lines', { name: `Photo first-submit feeder ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
-    const a = await post('/api/structures', { lineId: line.id, lat: -30.21, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
-    const b = await post('/api/structures', { lineId: line.id, lat: -30.21, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
-
-    await page.goto('/field/spans/new');
-    await page.getByLabel('Line', { exact: true }).selectOption(line.id);
-    await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
-    await page.locator('#fromStructureId').selectOption(a.id);
-    await page.locator('#toStructureId').selectOption(b.id);
-    await page.getByLabel('Code word').selectOption('Hawk');
-    await page.getByLabel(/^Ground clearance at the perch point/).fill('9.5');
-    await page.getByLabel('Terrain under the span').selectOption('road');
-    await page.getByTestId('photo-input').setInputFiles(photoPath);
-    await page.getByTestId('photo-held').waitFor();
+    const { context, page, line } = await newSpanWithHeldPhoto('Photo first-submit feeder', -30.21, photoPath, true);
 
     const cdp = await context.newCDPSession(page);
     await cdp.send('Network.enable');
@@ -189,28 +185,10 @@ describe('photo journey', () => {
   // either way the form must hear of it. The browser holds back whichever request must go second.
   for (const order of ['after', 'before'] as const) {
     it(`when the photo picked before a first submit is refused by the server (the refusal arriving ${order} the submit's answer), then the form stays on the saved span and says so beside the photo`, async () => {
-      const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
-      await h.signIn(page, 'surveyor');
-      await page.waitForURL((u) => u.pathname === '/field');
-      const headers = { Origin: h.baseUrl };
-      const post = async (url: string, data: object) => (await page.request.post(url, { data, headers })).json();
-      const line = await post('/api/lines', { name: `Photo refused feeder ${order} ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 25, frequencyHz: 60, loadTypicalA: 200, loadMinA: 80, loadPeakA: 320 });
-      const a = await post('/api/structures', { lineId: line.id, lat: -30.22, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
-      const b = await post('/api/structures', { lineId: line.id, lat: -30.22, lon: -130.29793, kind: 'pole', attachmentHeightM: 12 });
       // Named like a photo, but not an image: the server judges by content and refuses it (415).
       const notImage = path.join(tmp, 'not-a-photo.jpg');
       fs.writeFileSync(notImage, 'this is a text file, not a picture\n'.repeat(50));
-
-      await page.goto('/field/spans/new');
-      await page.getByLabel('Line', { exact: true }).selectOption(line.id);
-      await expect.poll(() => page.locator('#fromStructureId option').count(), { timeout: 20_000 }).toBeGreaterThan(2);
-      await page.locator('#fromStructureId').selectOption(a.id);
-      await page.locator('#toStructureId').selectOption(b.id);
-      await page.getByLabel('Code word').selectOption('Hawk');
-      await page.getByLabel(/^Ground clearance at the perch point/).fill('9.5');
-      await page.getByLabel('Terrain under the span').selectOption('road');
-      await page.getByTestId('photo-input').setInputFiles(notImage);
-      await page.getByTestId('photo-held').waitFor();
+      const { context, page, line } = await newSpanWithHeldPhoto(`Photo refused feeder ${order}`, -30.22, notImage, true);
       const answered: string[] = [];
       page.on('response', (r) => {
         if (r.request().method() === 'POST' && /\/api\/(photos|spans\/[^/]+\/submit)$/.test(new URL(r.url()).pathname)) answered.push(r.url().endsWith('/submit') ? 'submit' : `photo ${r.status()}`);
