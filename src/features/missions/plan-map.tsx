@@ -1,18 +1,12 @@
 // The plan's map: the shipped basemap style with its zones, the base and target as draggable markers (a click
 // places the next one), and the planned route with numbered perches.
-import 'maplibre-gl/dist/maplibre-gl.css';
 import { useEffect, useMemo, useRef, useState } from 'react';
-import MapView, { Layer, Marker, NavigationControl, ScaleControl, Source, type MapLayerMouseEvent, type MapRef } from 'react-map-gl/maplibre';
-import { addProtocol, setWorkerUrl, type Map as MapLibreMap } from 'maplibre-gl';
-import workerUrl from 'maplibre-gl/dist/maplibre-gl-worker.mjs?url';
-import { Protocol } from 'pmtiles';
+import { Layer, Marker, Source, type MapLayerMouseEvent, type MapRef } from 'react-map-gl/maplibre';
+import { AppMap } from '../../components/app-map.tsx';
 import type { UnitSystem } from '#shared/units.ts';
 import { MISSION_ROUTE_CASING_LAYER, MISSION_ROUTE_LAYER, MISSION_ZONES_FILL_LAYER, MISSION_ZONES_OUTLINE_LAYER, LABELS_FROM } from './map-styles.ts';
 import { bboxOf, routeGeoJson, type RouteStop } from './transforms.ts';
 import type { LatLon } from './types.ts';
-
-setWorkerUrl(workerUrl);
-addProtocol('pmtiles', new Protocol().tile);
 
 export type PlaceKind = 'base' | 'target';
 
@@ -49,36 +43,24 @@ export function PlanMap({
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [frameKey, ready]);
 
-  const onLoad = () => {
-    const m = mapRef.current?.getMap() as MapLibreMap | undefined;
-    if (!m) return;
-    (window as unknown as { __roostlinePlanMap?: MapLibreMap }).__roostlinePlanMap = m;
-    m.once('idle', () => setReady(true));
-  };
+  const onLoad = () => setReady(true);
   const onClick = (e: MapLayerMouseEvent) => {
     if (readOnly) return;
     onPlace(placing, { lat: round6(e.lngLat.lat), lon: round6(e.lngLat.lng) });
   };
 
   return (
-    <div className="relative h-[55vh] min-h-[380px] overflow-hidden rounded-xl border border-ink-200" data-testid="plan-map" data-map-ready={ready ? 'true' : 'false'}>
-      <MapView
-        ref={mapRef}
-        mapStyle={`${location.origin}/map/style.json`}
-        minZoom={7}
-        maxZoom={18}
-        dragRotate={false}
-        pitchWithRotate={false}
-        touchPitch={false}
-        canvasContextAttributes={{ preserveDrawingBuffer: true }}
-        cursor={readOnly ? undefined : 'crosshair'}
-        onLoad={onLoad}
-        onClick={onClick}
-        attributionControl={false}
-        style={{ width: '100%', height: '100%' }}
-      >
-        <NavigationControl position="top-right" showCompass={false} />
-        <ScaleControl position="bottom-left" unit={system === 'us' ? 'imperial' : 'metric'} />
+    <AppMap
+      mapRef={mapRef}
+      system={system}
+      maxZoom={18}
+      className="h-[55vh] min-h-[380px] rounded-xl border border-ink-200"
+      testId="plan-map"
+      exposeAs="__roostlinePlanMap"
+      cursor={readOnly ? undefined : 'crosshair'}
+      onLoad={onLoad}
+      onClick={onClick}
+    >
         <Layer {...MISSION_ZONES_FILL_LAYER} beforeId={LABELS_FROM} />
         <Layer {...MISSION_ZONES_OUTLINE_LAYER} beforeId={LABELS_FROM} />
         <Source id="mission-route" type="geojson" data={route}>
@@ -102,8 +84,7 @@ export function PlanMap({
             <Pin letter="T" label="Target" className="bg-brass-500 text-ink-900" />
           </Marker>
         )}
-      </MapView>
-    </div>
+    </AppMap>
   );
 }
 

@@ -1,12 +1,10 @@
 // A flight record on the app's map: the track, each stop numbered as in the table (perches in brass, hovers in
 // chalk, a perch below half the prediction ringed in red) and the spans its perches matched. A stop opens its span.
-import 'maplibre-gl/dist/maplibre-gl.css';
-import { useMemo, useRef, useState } from 'react';
+import { useMemo, useState } from 'react';
 import { Link } from 'react-router';
-import MapView, { Layer, NavigationControl, Popup, ScaleControl, Source, type MapLayerMouseEvent, type MapRef } from 'react-map-gl/maplibre';
-import { addProtocol, setWorkerUrl, type Map as MapLibreMap } from 'maplibre-gl';
-import workerUrl from 'maplibre-gl/dist/maplibre-gl-worker.mjs?url';
-import { Protocol } from 'pmtiles';
+import { Layer, Popup, Source, type MapLayerMouseEvent } from 'react-map-gl/maplibre';
+import type { Map as MapLibreMap } from 'maplibre-gl';
+import { AppMap } from '../../../components/app-map.tsx';
 import { formatQuantity, type UnitSystem } from '#shared/units.ts';
 import type { FlightRecordView } from '../api.ts';
 import { flightBounds, flightGeoJson, type StopProperties } from '../flight-map-data.ts';
@@ -22,27 +20,14 @@ import {
   matchedSpansLayer,
 } from '../flight-map-styles.ts';
 
-setWorkerUrl(workerUrl);
-const w = globalThis as { __roostlinePmtiles?: boolean };
-if (!w.__roostlinePmtiles) {
-  addProtocol('pmtiles', new Protocol().tile);
-  w.__roostlinePmtiles = true;
-}
-
 export default function FlightMap({ record, system }: { record: FlightRecordView; system: UnitSystem }) {
-  const mapRef = useRef<MapRef>(null);
-  const [ready, setReady] = useState(false);
   const [open, setOpen] = useState<{ lon: number; lat: number; p: StopProperties } | null>(null);
   const data = useMemo(() => flightGeoJson(record), [record]);
   const box = flightBounds(record);
   const matched = useMemo(() => matchedSpansLayer(data.matchedSpanIds), [data.matchedSpanIds]);
 
-  const onLoad = () => {
-    const m = mapRef.current?.getMap() as MapLibreMap | undefined;
-    if (!m) return;
-    (window as unknown as { __roostlineFlightMap?: MapLibreMap }).__roostlineFlightMap = m;
+  const onLoad = (m: MapLibreMap) => {
     if (box) m.fitBounds([[box[0], box[1]], [box[2], box[3]]], { padding: 60, maxZoom: 17, duration: 0 });
-    m.once('idle', () => setReady(true));
   };
   const onClick = (e: MapLayerMouseEvent) => {
     const f = e.features?.find((x) => x.layer.id === FLIGHT_LAYER_IDS.stops);
@@ -57,24 +42,16 @@ export default function FlightMap({ record, system }: { record: FlightRecordView
 
   return (
     <div className="space-y-2">
-      <div className="relative h-[45vh] min-h-[320px] overflow-hidden rounded-xl border border-ink-200" data-testid="flight-map" data-map-ready={ready ? 'true' : 'false'}>
-        <MapView
-          ref={mapRef}
-          mapStyle={`${location.origin}/map/style.json`}
-          minZoom={7}
-          maxZoom={19}
-          dragRotate={false}
-          pitchWithRotate={false}
-          touchPitch={false}
-          canvasContextAttributes={{ preserveDrawingBuffer: true }}
-          interactiveLayerIds={[FLIGHT_LAYER_IDS.stops]}
-          onLoad={onLoad}
-          onClick={onClick}
-          attributionControl={false}
-          style={{ width: '100%', height: '100%' }}
-        >
-          <NavigationControl position="top-right" showCompass={false} />
-          <ScaleControl position="bottom-left" unit={system === 'us' ? 'imperial' : 'metric'} />
+      <AppMap
+        system={system}
+        maxZoom={19}
+        className="h-[45vh] min-h-[320px] rounded-xl border border-ink-200"
+        testId="flight-map"
+        exposeAs="__roostlineFlightMap"
+        interactiveLayerIds={[FLIGHT_LAYER_IDS.stops]}
+        onLoad={onLoad}
+        onClick={onClick}
+      >
           <Layer {...FLIGHT_SPANS_LAYER} beforeId={LABELS_FROM} />
           <Layer {...matched} beforeId={LABELS_FROM} />
           <Source id="flight-track" type="geojson" data={data.track}>
@@ -106,8 +83,7 @@ export default function FlightMap({ record, system }: { record: FlightRecordView
               </div>
             </Popup>
           )}
-        </MapView>
-      </div>
+      </AppMap>
       <FlightMapLegend />
     </div>
   );
