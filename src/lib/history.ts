@@ -183,6 +183,9 @@ function hazardWords(h: unknown, opts: DescribeOptions): string {
   return parts.join(' ');
 }
 
+/** A code by its label in the product's own table, or in words when the table does not know it. */
+const labelled = (labels: Readonly<Record<string, string>>, code: string) => labels[code] ?? codeWords(code);
+
 /** One value in words for the field `key`. */
 export function valueWords(key: string, v: unknown, opts: DescribeOptions): string {
   if (empty(v)) return '—';
@@ -196,11 +199,11 @@ export function valueWords(key: string, v: unknown, opts: DescribeOptions): stri
       return name ?? `another ${fieldLabel(key).toLowerCase()}`;
     }
     case 'status':
-      return typeof v === 'string' ? ((SPAN_STATUS_LABELS as Record<string, string>)[v] ?? codeWords(v)) : String(v);
+      return typeof v === 'string' ? labelled(SPAN_STATUS_LABELS, v) : String(v);
     case 'terrain':
-      return typeof v === 'string' ? ((TERRAIN_LABELS as Record<string, string>)[v] ?? codeWords(v)) : String(v);
+      return typeof v === 'string' ? labelled(TERRAIN_LABELS, v) : String(v);
     case 'roles':
-      return Array.isArray(v) ? v.map((r) => (ROLE_LABELS as Record<string, string>)[String(r)] ?? codeWords(String(r))).join(', ') || 'none' : String(v);
+      return Array.isArray(v) ? v.map((r) => labelled(ROLE_LABELS, String(r))).join(', ') || 'none' : String(v);
     case 'bool':
       return v ? 'Yes' : 'No';
     case 'date':
