@@ -2,34 +2,26 @@
 // is listed for the review desk with the gate that now fails, can be suspended or returned to the surveyor, and is
 // never offered to planners. An approved span that still passes cannot be returned (it is suspended instead).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { makeTestApp, type Client, type TestApp } from './helpers.ts';
-import { buildLine, completeSpan } from './inventory-fixtures.ts';
+import type { Client, TestApp } from './helpers.ts';
+import { openReviewFixture, type ReviewFixture } from './review-fixtures.ts';
 import { waitForAllJobs } from './assessment-helpers.ts';
 
 let t: TestApp;
 let surveyor: Client;
 let safety: Client;
 let planner: Client;
-let lineId: string;
-let row = 0;
+let submitted: ReviewFixture['submitted'];
 
 beforeAll(async () => {
-  t = await makeTestApp({ signInBurst: 1000 });
-  [surveyor, safety, planner] = await Promise.all([t.as('surveyor'), t.as('safety'), t.as('planner')]);
-  lineId = (await buildLine(surveyor, 2)).line.id;
+  ({ t, surveyor, safety, planner, submitted } = await openReviewFixture());
 });
 afterAll(() => t.close());
 
 /** An approved span on its own pair of structures, at its own latitude. */
 async function approvedSpan(): Promise<{ id: string; lat: number }> {
-  const lat = -30.3 - row++ * 0.01;
-  const ids: string[] = [];
-  for (const k of [0, 1]) ids.push((await surveyor.post('/api/structures', { lineId, lat, lon: -130.45 + k * 0.002, kind: 'pole', attachmentHeightM: 13 })).body.id);
-  const created = await surveyor.post('/api/spans', completeSpan(lineId, ids[0]!, ids[1]!));
-  expect(created.status).toBe(201);
-  expect((await surveyor.post(`/api/spans/${created.body.id}/submit`)).status).toBe(200);
-  expect((await safety.post(`/api/spans/${created.body.id}/approve`, {})).status).toBe(200);
-  return { id: created.body.id, lat };
+  const span = await submitted();
+  expect((await safety.post(`/api/spans/${span.id}/approve`, {})).status).toBe(200);
+  return span;
 }
 
 async function excludeZoneAt(lat: number, name: string) {

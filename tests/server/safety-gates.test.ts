@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { makeTestApp, type Client, type TestApp } from './helpers.ts';
-import { buildLine, completeSpan } from './inventory-fixtures.ts';
+import type { Client, TestApp } from './helpers.ts';
+import { openReviewFixture, type ReviewFixture } from './review-fixtures.ts';
 import { waitForAllJobs } from './assessment-helpers.ts';
 import { perchableSpanIds } from '../../server/modules/assessment/index.ts';
 
@@ -10,29 +10,12 @@ let surveyor: Client;
 let safety: Client;
 let planner: Client;
 let lineId: string;
-let row = 0;
+let submitted: ReviewFixture['submitted'];
 
 beforeAll(async () => {
-  t = await makeTestApp({ signInBurst: 1000 });
-  [surveyor, safety, planner] = await Promise.all([t.as('surveyor'), t.as('safety'), t.as('planner')]);
-  lineId = (await buildLine(surveyor, 2)).line.id;
+  ({ t, surveyor, safety, planner, lineId, submitted } = await openReviewFixture());
 });
 afterAll(() => t.close());
-
-/** A submitted span on its own pair of structures, with fields overriding the complete fixture. */
-async function submitted(over: Record<string, unknown> = {}): Promise<{ id: string; lat: number }> {
-  const lat = -30.3 - row++ * 0.01;
-  const ids: string[] = [];
-  for (const k of [0, 1]) {
-    const r = await surveyor.post('/api/structures', { lineId, lat, lon: -130.45 + k * 0.002, kind: 'pole', attachmentHeightM: 13 });
-    expect(r.status).toBe(201);
-    ids.push(r.body.id);
-  }
-  const created = await surveyor.post('/api/spans', { ...completeSpan(lineId, ids[0], ids[1]), ...over });
-  expect(created.status).toBe(201);
-  expect((await surveyor.post(`/api/spans/${created.body.id}/submit`)).status).toBe(200);
-  return { id: created.body.id, lat };
-}
 
 describe('approval refused on failing blocking gates', () => {
   it('when the clearance is below the code minimum, then approval answers 409 naming the clearance gate and the span stays submitted', async () => {
