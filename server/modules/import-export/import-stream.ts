@@ -240,7 +240,10 @@ export async function applyPlanInParts(em: EntityManager, user: User, plan: Impo
     if (!(await part({ ...plan, structures: new Map(c), spans: none }, c.length))) return { spanIds: [...touched], parts, stopped: true };
   }
   for (const c of chunks([...plan.spans.entries()], size)) {
-    if (!(await part({ ...plan, spans: new Map(c) }, c.length))) return { spanIds: [...touched], parts, stopped: true };
+    // Only the structures these spans hang on (all written by now), not the whole file's.
+    const ends = new Map<string, NonNullable<ReturnType<typeof plan.structures.get>>>();
+    for (const [, p] of c) for (const k of [p.fromKey, p.toKey]) ends.set(k, plan.structures.get(k)!);
+    if (!(await part({ ...plan, structures: ends, spans: new Map(c) }, c.length))) return { spanIds: [...touched], parts, stopped: true };
   }
   return { spanIds: [...touched], parts, stopped: false };
 }
