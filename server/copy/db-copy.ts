@@ -6,10 +6,12 @@ import pg from 'pg';
 import sqlite3 from 'sqlite3';
 import { initORM } from '../db.ts';
 import { runningServer } from '../server-lock.ts';
+import { POSTGIS_COLUMNS, POSTGIS_TABLES } from '../sql/postgis.ts';
 import type { PhotoStorage } from '../modules/photos/photo.storage.ts';
 
 /** Kept by each database for itself: never copied. */
-const OWN_TABLES = new Set(['mikro_orm_migrations']);
+// PostGIS's own table and its geometry columns (kept by the database from lon/lat and GeoJSON) are not copied.
+const OWN_TABLES = new Set(['mikro_orm_migrations', ...POSTGIS_TABLES]);
 /**
  * Filled by the PostgreSQL migrations themselves (the conductor and hazard-kind catalogues): rows there do not make
  * a target "in use". They are replaced by the source's rows, which an admin may have edited.
@@ -146,7 +148,7 @@ async function targetTables(client: pg.Client): Promise<Map<string, Column[]>> {
   ).rows;
   const out = new Map<string, Column[]>();
   for (const r of rows) {
-    if (OWN_TABLES.has(r.table_name)) continue;
+    if (OWN_TABLES.has(r.table_name) || POSTGIS_COLUMNS[r.table_name]?.includes(r.column_name)) continue;
     if (!out.has(r.table_name)) out.set(r.table_name, []);
     out.get(r.table_name)!.push({ name: r.column_name, type: r.data_type, derived: r.derived });
   }
