@@ -30,7 +30,7 @@ function progressOut(): CopyProgress & { stop: () => void } {
   const tty = Boolean(process.stderr.isTTY);
   const bar = tty
     ? new cliProgress.SingleBar(
-        { format: ' {phase} |{bar}| {percentage}% · {value} / {total}', barCompleteChar: '█', barIncompleteChar: '░', hideCursor: true, clearOnComplete: false, stream: process.stderr },
+        { format: ' {phase} |{bar}| {percentage}% · {count} / {all}', barCompleteChar: '█', barIncompleteChar: '░', hideCursor: true, clearOnComplete: false, stream: process.stderr },
         cliProgress.Presets.shades_classic,
       )
     : null;
@@ -42,11 +42,11 @@ function progressOut(): CopyProgress & { stop: () => void } {
       phase = p === 'files' ? 'files' : `table ${p}`;
       total = n;
       started = Date.now();
-      bar?.start(Math.max(n, 1), 0, { phase: phase.padEnd(28) });
-      if (n === 0) bar?.update(1);
+      // An empty table shows as complete, 0 of 0.
+      bar?.start(Math.max(n, 1), n === 0 ? 1 : 0, { phase: phase.padEnd(28), count: 0, all: n });
     },
     advance(done) {
-      bar?.update(done);
+      bar?.update(done, { count: done });
     },
     finish() {
       if (bar) bar.stop();
