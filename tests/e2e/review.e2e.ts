@@ -102,4 +102,33 @@ describe('review desk journey', () => {
     await surveyor.page.getByText(text).first().waitFor({ timeout: 15_000 });
     await surveyor.context.close();
   }, 180_000);
+
+  it('when a submitted span harvests too little to be useful, then its queue row says so in words with the figures, before it is opened', async () => {
+    const surveyor = await h.newPage({ viewport: { width: 820, height: 1180 } });
+    await h.signIn(surveyor.page, 'surveyor');
+    await surveyor.page.waitForURL((u) => u.pathname === '/field');
+    const headers = { Origin: h.baseUrl };
+    const post = async (url: string, data: object) => {
+      const res = await surveyor.page.request.post(url, { data, headers });
+      expect(res.status(), `${url}: ${await res.text()}`).toBeLessThan(300);
+      return res.json();
+    };
+    // A feeder carrying 5 A: the demo harvesters' useful minimum is 10 W and 15 W (demo profiles), far above what 5 A gives.
+    const line = await post('/api/lines', { name: `Lightly loaded spur ${Date.now()}`, owner: 'Harrow Vale Power Cooperative', voltageKv: 12.47, frequencyHz: 60, loadTypicalA: 5, loadMinA: 2, loadPeakA: 8 });
+    const a = await post('/api/structures', { lineId: line.id, lat: -30.25, lon: -130.3, kind: 'pole', attachmentHeightM: 12 });
+    const b = await post('/api/structures', { lineId: line.id, lat: -30.25, lon: -130.29885, kind: 'pole', attachmentHeightM: 12 });
+    const span = await post('/api/spans', { lineId: line.id, fromStructureId: a.id, toStructureId: b.id, conductor: { codeWord: 'Penguin' }, clearanceM: 9.5, lowestClearanceM: 9.1, terrain: 'open-field', surveyDate: '2026-11-20' });
+    await post(`/api/spans/${span.id}/submit`, {});
+    await surveyor.context.close();
+
+    const { context, page } = await h.newPage({ viewport: { width: 820, height: 1180 }, hasTouch: true });
+    await h.signIn(page, 'safety');
+    await page.waitForURL((u) => u.pathname === '/review');
+    const row = page.getByRole('list', { name: 'Spans in the queue' }).locator(`[data-span-id="${span.id}"]`);
+    await row.waitFor({ timeout: 30_000 });
+    const mark = row.getByTestId('low-harvest-mark');
+    await mark.waitFor();
+    expect(await mark.innerText()).toMatch(/Harvest too low to be useful: \d+(\.\d+)? W at typical load 5 A; useful minimum \d+(\.\d+)? W/);
+    await context.close();
+  }, 180_000);
 });
