@@ -2,6 +2,7 @@ import { defineConfig } from 'vite';
 import react from '@vitejs/plugin-react';
 import tailwindcss from '@tailwindcss/vite';
 import { VitePWA } from 'vite-plugin-pwa';
+import { CACHE_BASEMAP_TILES, CACHE_MAP_DATA, CACHE_PHOTOS, CACHE_SPAN_TILES } from './src/lib/offline-caches.ts';
 
 // Map assets the server serves at fixed addresses: precached beside the app shell so the map opens with no signal.
 // The revision changes with every build, so a new version fetches them again.
@@ -45,7 +46,8 @@ export default defineConfig({
         ],
       },
       workbox: {
-        globPatterns: ['**/*.{js,css,html,woff2,svg,png,webmanifest}'],
+        // .mjs: the map library's worker, without which no map draws offline.
+        globPatterns: ['**/*.{js,mjs,css,html,woff2,svg,png,webmanifest}'],
         // The map library's chunk is above Workbox's 2 MiB default.
         maximumFileSizeToCacheInBytes: 8 * 1024 * 1024,
         additionalManifestEntries: MAP_ASSETS.map((url) => ({ url, revision: BUILD_REVISION })),
@@ -56,20 +58,27 @@ export default defineConfig({
         cleanupOutdatedCaches: true,
         runtimeCaching: [
           {
-            // The basemap is one file read in byte ranges: a 206 cannot be stored, so the area download stores whole responses.
-            urlPattern: ({ url }) => url.pathname === '/map/basemap.pmtiles',
-            handler: 'CacheFirst',
-            options: { cacheName: 'roostline-basemap', rangeRequests: true, cacheableResponse: { statuses: [200] } },
+            // Basemap tiles (read out of the PMTiles file by the server): from the device first, refreshed behind.
+            // An area taken offline stores its tiles here (src/features/offline-areas).
+            urlPattern: ({ url }) => url.pathname.startsWith('/map/basemap/'),
+            handler: 'StaleWhileRevalidate',
+            options: { cacheName: CACHE_BASEMAP_TILES, cacheableResponse: { statuses: [200] } },
+          },
+          {
+            // The map's zones and photo points: the network while there is one, the last copy without.
+            urlPattern: ({ url }) => url.pathname === '/api/zones' || url.pathname === '/api/photos/geojson',
+            handler: 'NetworkFirst',
+            options: { cacheName: CACHE_MAP_DATA, networkTimeoutSeconds: 4, cacheableResponse: { statuses: [200] } },
           },
           {
             urlPattern: ({ url }) => url.pathname.startsWith('/api/tiles/spans/'),
             handler: 'NetworkFirst',
-            options: { cacheName: 'roostline-span-tiles', networkTimeoutSeconds: 4, cacheableResponse: { statuses: [200] } },
+            options: { cacheName: CACHE_SPAN_TILES, networkTimeoutSeconds: 4, cacheableResponse: { statuses: [200] } },
           },
           {
             urlPattern: ({ url }) => /^\/api\/photos\/[^/]+\/[a-z]+$/.test(url.pathname),
             handler: 'CacheFirst',
-            options: { cacheName: 'roostline-photos', expiration: { maxEntries: 2000 }, cacheableResponse: { statuses: [200] } },
+            options: { cacheName: CACHE_PHOTOS, cacheableResponse: { statuses: [200] } },
           },
         ],
       },

@@ -10,6 +10,7 @@ import vtpbf from 'vt-pbf';
 import type { Feature, FeatureCollection, Geometry, Position } from 'geojson';
 import { DEMO_BBOX, DEMO_CENTER, DEMO_TOWNS, type DemoTown } from '../shared/demo-region.ts';
 import { writePmtiles, type PmtilesTile } from '../server/modules/map/pmtiles-writer.ts';
+import { latToTileY, lonToTileX } from '../shared/tile-math.ts';
 import { prng } from '../shared/prng.ts';
 
 export const BASEMAP_MAX_ZOOM = 14;
@@ -183,14 +184,6 @@ export function generateRegion(seed = 6061): Record<(typeof BASEMAP_LAYERS)[numb
 
   const fc = (features: Feature[]): FeatureCollection => ({ type: 'FeatureCollection', features });
   return { land: fc(land), landuse: fc(landuse), water: fc(water), waterway: fc(waterway), roads: fc(roads), places: fc(places) };
-}
-
-function lonToTileX(lon: number, z: number) {
-  return Math.floor(((lon + 180) / 360) * 2 ** z);
-}
-function latToTileY(lat: number, z: number) {
-  const r = (lat * Math.PI) / 180;
-  return Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z);
 }
 
 /** Cuts the region into gzip-compressed MVT tiles z0..maxZoom over the region's box (plus the coast margin). */

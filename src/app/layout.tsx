@@ -4,6 +4,7 @@ import { Logo } from '../components/logo.tsx';
 import { signOut, useMe } from '../features/auth/queries.ts';
 import { ConnectionIndicator } from '../features/outbox/connection-indicator.tsx';
 import { clearDeviceCache } from '../lib/query-client.ts';
+import { clearAreas } from '../features/offline-areas/areas.ts';
 import { MenuButton } from '../components/menu-button.tsx';
 import { INLINE_TABLET, INLINE_WIDE, navFor } from './nav.ts';
 
@@ -14,6 +15,8 @@ export function AppLayout() {
     await signOut().catch(() => undefined);
     // A shared tablet: the next person does not see this person's records.
     await clearDeviceCache();
+    // And the areas taken offline (tiles, thumbnails, the list).
+    await clearAreas(me.id).catch(() => undefined);
     navigate('/sign-in', { replace: true });
   };
   const items = navFor(me.roles);

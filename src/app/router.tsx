@@ -42,9 +42,9 @@ const NETWORK = {
   plan: { what: 'Mission planning', why: 'Routes are planned by the server over every approved span and zone.' },
   admin: { what: 'Administration', why: 'Accounts and invitations are changed on the server only.' },
   mail: { what: 'Sent mail', why: 'The mail log is kept on the server.' },
-  profiles: { what: 'Profiles', why: 'Drone and harvester profiles rescore spans on the server.' },
-  scoring: { what: 'Scoring settings', why: 'A change rescores spans on the server.' },
-  calculators: { what: 'The calculators', why: 'The figures are worked out by the server.' },
+  profiles: { what: 'The profiles page', why: 'Drone and harvester profiles rescore spans on the server.' },
+  scoring: { what: 'The scoring settings page', why: 'A change rescores spans on the server.' },
+  calculators: { what: 'The calculator page', why: 'The figures are worked out by the server.' },
   audit: { what: 'The audit log', why: 'The log is read from the server as it stands.' },
 } as const;
 
@@ -69,7 +69,7 @@ export const router = createBrowserRouter([
           { path: 'field/spans/new', element: <RoleGate roles={['surveyor']}><Suspense fallback={<Loading />}><SpanForm /></Suspense></RoleGate> },
           { path: 'field/spans/:id/edit', element: <RoleGate roles={['surveyor']}><Suspense fallback={<Loading />}><SpanForm /></Suspense></RoleGate> },
           { path: 'spans', lazy: page(() => import('../features/spans/components/spans-table-page.tsx'), (m) => <m.SpansTablePage />) },
-          { path: 'map', lazy: () => import('../features/map/map-page.tsx') },
+          { path: 'map', lazy: page(() => Promise.all([import('../features/map/map-page.tsx'), import('./offline-area-slot.tsx')]), ([m, o]) => <m.MapPage areaSlot={(ctx) => <o.MapOfflineAreas {...ctx} />} />) },
           { path: 'spans/:id', lazy: page(() => Promise.all([import('../features/spans/components/span-detail-page.tsx'), import('../features/photos/slots.tsx'), evidenceSlot()]), ([d, p, e]) => <d.SpanDetailPage photosSlot={p.spanDetailPhotosSlot} evidenceSlot={e.spanEvidenceSlot} />) },
           { path: 'import', lazy: page(() => import('../features/import/components/import-page.tsx'), (m) => <RoleGate roles={['surveyor', 'admin']}><NeedsNetwork {...NETWORK.import}><m.ImportPage /></NeedsNetwork></RoleGate>) },
           { path: 'review', lazy: page(() => Promise.all([import('../features/review/review-desk.tsx'), evidenceSlot()]), ([r, e]) => <RoleGate roles={['safety']}><RoleHome role="safety"><NeedsNetwork {...NETWORK.review}><r.ReviewDesk evidenceSlot={e.spanEvidenceSlot} /></NeedsNetwork></RoleHome></RoleGate>) },

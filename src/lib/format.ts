@@ -108,3 +108,32 @@ export function codeWords(code: string): string {
 export function gateDetail(g: { detail: string; parts?: readonly DetailPart[] }, system: UnitSystem): string {
   return g.parts?.length ? detailText(g.parts, system) : g.detail;
 }
+
+/**
+ * A storage size in decimal units (as the browser's storage estimate and disk sizes are told): 312_400_000 →
+ * "312 MB", 4_100_000_000 → "4.1 GB", 880 → "880 bytes". Two significant figures below 10, whole numbers above.
+ */
+export function bytes(n: number | null | undefined): string {
+  if (n === null || n === undefined || !Number.isFinite(n) || n < 0) return '—';
+  if (n < 1000) return `${Math.round(n)} bytes`;
+  const units = ['kB', 'MB', 'GB', 'TB'];
+  let v = n / 1000;
+  let i = 0;
+  while (v >= 999.5 && i < units.length - 1) {
+    v /= 1000;
+    i++;
+  }
+  return `${v < 9.95 ? v.toFixed(1).replace(/\.0$/, '') : String(Math.round(v))} ${units[i]}`;
+}
+
+/** How long ago, in words, from `now`: "just now", "5 minutes ago", "3 hours ago", "2 days ago". */
+export function age(value: string | number | Date | null | undefined, now: number = Date.now()): string {
+  const d = parsed(value);
+  if (!d) return '—';
+  const s = Math.max(0, (now - d.getTime()) / 1000);
+  const ago = (n: number, unit: string) => `${n} ${unit}${n === 1 ? '' : 's'} ago`;
+  if (s < 60) return 'just now';
+  if (s < 3600) return ago(Math.floor(s / 60), 'minute');
+  if (s < 86_400) return ago(Math.floor(s / 3600), 'hour');
+  return ago(Math.floor(s / 86_400), 'day');
+}

@@ -11,6 +11,7 @@ import { registerSpanListener } from '../inventory/inventory.service.ts';
 import { registerZoneListener } from '../zones/zone.service.ts';
 import { basemapExtent, buildStyle, MAP_ASSETS_DIR, FONT_FILES } from './style.ts';
 import { SpanTileService } from './span-tiles.ts';
+import { areaContents, areaQuery, basemapTile } from './offline-area.ts';
 
 const services = new WeakMap<AppContext, SpanTileService>();
 
@@ -78,6 +79,18 @@ export function mapRouter(ctx: AppContext) {
     res.sendFile(ctx.config.basemapPath, { acceptRanges: true, maxAge: '1h', headers: { 'Content-Type': 'application/octet-stream' } });
   });
 
+  // One basemap tile out of that file, for maps and for areas taken offline (a cache keeps whole answers, not ranges).
+  r.get('/map/basemap/:z/:x/:y.mvt', 'public', async (req, res) => {
+    const { z: zoom, x, y } = parse(tileParams, req.params);
+    const max = 2 ** zoom;
+    if (x >= max) throw AppError.field('x', `x must be below ${max} at zoom ${zoom}`);
+    if (y >= max) throw AppError.field('y', `y must be below ${max} at zoom ${zoom}`);
+    const bytes = await basemapTile(ctx.config.basemapPath, zoom, x, y);
+    if (!bytes) throw AppError.notFound('Basemap file');
+    // Empty where the file holds no tile (an empty tile draws nothing).
+    res.set({ 'Content-Type': 'application/vnd.mapbox-vector-tile', 'Cache-Control': 'public, max-age=3600' }).send(bytes);
+  });
+
   r.get('/map/fonts/:file', 'public', (req, res, next) => {
     const file = FONT_FILES[String(req.params.file)];
     if (!file) return next(AppError.notFound('Font'));
@@ -102,6 +115,12 @@ export function mapRouter(ctx: AppContext) {
     // Revalidated on every use (the ETag answers 304 while nothing changed): an edit shows at once.
     res.set('Cache-Control', 'private, no-cache');
     res.send(bytes);
+  });
+
+  // What lies in a framed box, for taking that area offline: its spans, their lines, photos; how many structures.
+  r.get('/api/map/area', 'signed-in', async (req, res) => {
+    const { bbox } = parse(areaQuery, req.query);
+    res.json(await areaContents(req.em, bbox));
   });
 
   // The box around the spans that pass the map's filters, for "fit to results".

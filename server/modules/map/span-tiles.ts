@@ -7,6 +7,7 @@
 // Interface (kept stable for other tile paths behind it, e.g. a PostGIS one): tile(), bounds(), syncNow(),
 // invalidate(), close(); plainTile(), layersReady() and stats for tests and the bench.
 import type { EntityManager } from '@mikro-orm/core';
+import { tileLat, tileLon } from '#shared/tile-math.ts';
 import type { MikroORM } from '@mikro-orm/sqlite';
 import vtpbf from 'vt-pbf';
 import { defaultAssessmentPair, tableExists } from '../inventory/inventory.service.ts';
@@ -164,13 +165,6 @@ function mercX(lon: number) {
 function mercY(lat: number) {
   const s = Math.sin((lat * Math.PI) / 180);
   return 0.5 - Math.log((1 + s) / (1 - s)) / (4 * Math.PI);
-}
-function tileLon(x: number, z: number) {
-  return (x / 2 ** z) * 360 - 180;
-}
-function tileLat(y: number, z: number) {
-  const n = Math.PI - (2 * Math.PI * y) / 2 ** z;
-  return (180 / Math.PI) * Math.atan(0.5 * (Math.exp(n) - Math.exp(-n)));
 }
 
 export interface TileStats {

@@ -108,6 +108,9 @@ export interface BasemapExtent {
   bbox: [number, number, number, number];
   center: [number, number];
   zoom: number;
+  /** The zooms the file holds; the map overzooms above the highest. */
+  minZoom: number;
+  maxZoom: number;
 }
 
 const extentCache = new Map<string, { mtimeMs: number; extent: BasemapExtent }>();
@@ -117,7 +120,7 @@ const extentCache = new Map<string, { mtimeMs: number; extent: BasemapExtent }>(
  * the demo region when the file cannot be read.
  */
 export function basemapExtent(file: string): BasemapExtent {
-  const fallback: BasemapExtent = { bbox: [DEMO_BBOX.west, DEMO_BBOX.south, DEMO_BBOX.east, DEMO_BBOX.north], center: DEMO_CENTER, zoom: 10 };
+  const fallback: BasemapExtent = { bbox: [DEMO_BBOX.west, DEMO_BBOX.south, DEMO_BBOX.east, DEMO_BBOX.north], center: DEMO_CENTER, zoom: 10, minZoom: 0, maxZoom: 14 };
   try {
     const { mtimeMs } = fs.statSync(file);
     const cached = extentCache.get(file);
@@ -133,7 +136,7 @@ export function basemapExtent(file: string): BasemapExtent {
     const h = bytesToHeader(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + 127) as ArrayBuffer);
     const valid = h.minLon < h.maxLon && h.minLat < h.maxLat;
     const extent: BasemapExtent = valid
-      ? { bbox: [h.minLon, h.minLat, h.maxLon, h.maxLat], center: [h.centerLon, h.centerLat], zoom: h.centerZoom || Math.max(h.minZoom, 10) }
+      ? { bbox: [h.minLon, h.minLat, h.maxLon, h.maxLat], center: [h.centerLon, h.centerLat], zoom: h.centerZoom || Math.max(h.minZoom, 10), minZoom: h.minZoom, maxZoom: h.maxZoom }
       : fallback;
     extentCache.set(file, { mtimeMs, extent });
     return extent;
@@ -159,7 +162,8 @@ export function buildStyle(origin: string, extent: BasemapExtent = basemapExtent
     // The client keeps the view near the basemap's region with this box.
     metadata: { 'roostline:bbox': extent.bbox },
     sources: {
-      basemap: { type: 'vector', url: `pmtiles://${origin}/map/basemap.pmtiles` },
+      // Tile by tile (read out of the PMTiles file by the server), so an area taken offline keeps exactly its tiles.
+      basemap: { type: 'vector', tiles: [`${origin}/map/basemap/{z}/{x}/{y}.mvt`], minzoom: extent.minZoom, maxzoom: extent.maxZoom },
       // Spans and structures come in the same server tiles (layers `spans` and `structures`).
       spans: { type: 'vector', tiles: [`${origin}/api/tiles/spans/{z}/{x}/{y}.mvt`], minzoom: 0, maxzoom: 16, promoteId: { spans: 'id', structures: 'id' } },
       zones: { type: 'geojson', data: `${origin}/api/zones`, promoteId: 'id' },

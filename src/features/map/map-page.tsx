@@ -1,7 +1,7 @@
 // The map: the local basemap, spans from the server's tiles (by status or by score, width by harvest power),
 // structures, photos and no-perch zones; filters shared with the spans table through the URL.
 import 'maplibre-gl/dist/maplibre-gl.css';
-import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useEffect, useMemo, useRef, useState, type ReactNode } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import MapView, { Layer, NavigationControl, ScaleControl, type MapLayerMouseEvent, type MapRef } from 'react-map-gl/maplibre';
@@ -59,7 +59,10 @@ function withFilter(layer: OverlayLayer, filter: unknown[]): OverlayLayer {
   return { ...layer, filter } as unknown as OverlayLayer;
 }
 
-export function MapPage() {
+/** What the app adds beside the map: the offline-areas panel (src/app/offline-area-slot.tsx). */
+export type MapAreaSlot = (ctx: { map: MapLibreMap; onDrawingChange: (drawing: boolean) => void }) => ReactNode;
+
+export function MapPage({ areaSlot }: { areaSlot?: MapAreaSlot } = {}) {
   const me = useMe();
   const canEditZones = me.roles.includes('safety');
   const [params, setParams] = useSearchParams();
@@ -72,6 +75,7 @@ export function MapPage() {
   const [selectedSpanId, setSelectedSpanId] = useState<string | null>(null);
   const [selectedZone, setSelectedZone] = useState<ZoneProperties | null>(null);
   const [editingZones, setEditingZones] = useState(false);
+  const [drawingArea, setDrawingArea] = useState(false);
   const [fitMessage, setFitMessage] = useState<string | null>(null);
 
   const lines = useQuery(inventoryQueries.lines());
@@ -128,7 +132,7 @@ export function MapPage() {
   };
 
   const onClick = (e: MapLayerMouseEvent) => {
-    if (editingZones) return;
+    if (editingZones || drawingArea) return;
     const features = e.features ?? [];
     const span = features.find((f) => f.layer.id === LAYER_IDS.spansLine);
     if (span) {
@@ -276,6 +280,7 @@ export function MapPage() {
               onEditingChange={setEditingZones}
             />
           )}
+          {map && areaSlot?.({ map, onDrawingChange: setDrawingArea })}
           <MapLegend colourBy={filters.colourBy} />
         </aside>
         <div className="relative h-[70vh] min-h-[420px] overflow-hidden rounded-xl border border-ink-200 md:sticky md:top-2 md:h-[calc(100vh-13rem)]" data-testid="map" data-map-ready={ready ? 'true' : 'false'}>
@@ -288,8 +293,8 @@ export function MapPage() {
             pitchWithRotate={false}
             touchPitch={false}
             canvasContextAttributes={{ preserveDrawingBuffer: true }}
-            interactiveLayerIds={editingZones ? [] : [LAYER_IDS.spansLine, LAYER_IDS.zonesFill]}
-            cursor={editingZones ? 'crosshair' : undefined}
+            interactiveLayerIds={editingZones || drawingArea ? [] : [LAYER_IDS.spansLine, LAYER_IDS.zonesFill]}
+            cursor={editingZones || drawingArea ? 'crosshair' : undefined}
             onLoad={onLoad}
             onClick={onClick}
             attributionControl={false}
