@@ -1,4 +1,4 @@
-import { onlineManager, QueryClient } from '@tanstack/react-query';
+import { onlineManager, QueryClient, type Query } from '@tanstack/react-query';
 import { persistQueryClient } from '@tanstack/react-query-persist-client';
 import { createAsyncStoragePersister } from '@tanstack/query-async-storage-persister';
 import { createStore, del, get, set } from 'idb-keyval';
@@ -33,6 +33,15 @@ const persister = createAsyncStoragePersister({
 });
 
 /**
+ * Which queries the device keeps: every one holding data, also when its last refetch failed (a refetch with no
+ * signal leaves the query in error with its data; dropping it then would lose who is signed in, or a record, at the
+ * next reload offline).
+ */
+export function keptOnDevice(q: Query): boolean {
+  return q.state.data !== undefined && q.state.data !== null;
+}
+
+/**
  * The query cache is kept in IndexedDB, so lists, records and catalogues read online open after a reload with no
  * signal. Loaders wait for it (`cacheRestored`) before asking for anything.
  */
@@ -42,7 +51,7 @@ export const cacheRestored: Promise<void> = canPersist
       persister,
       maxAge: OFFLINE_MAX_AGE_MS,
       buster: 'v1',
-      dehydrateOptions: { shouldDehydrateQuery: (q) => q.state.status === 'success' && q.state.data != null },
+      dehydrateOptions: { shouldDehydrateQuery: keptOnDevice },
     })[1].catch(() => undefined)
   : Promise.resolve();
 

@@ -4,6 +4,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import path from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import { startHarness, type Harness } from './harness.ts';
+import { tileCounts, tileRange, type LonLatBox } from '../../shared/tile-math.ts';
 
 let h: Harness;
 beforeAll(async () => {
@@ -61,16 +62,100 @@ async function counts(page: Page, lineId: string, surveyorId: string) {
 
 /**
  * No signal, or signal back. Offline mode alone does not always cut a service worker's own fetches in Chromium, so
- * while offline every API request that still leaves the browser is dropped as a lost connection too.
+ * while offline every API or map request that still leaves the browser is dropped as a lost connection too.
  */
 async function signal(context: BrowserContext, on: boolean) {
   if (on) {
     await context.unroute('**/api/**');
+    await context.unroute('**/map/**');
     await context.setOffline(false);
   } else {
     await context.setOffline(true);
     await context.route('**/api/**', (route) => route.abort('internetdisconnected'));
+    await context.route('**/map/**', (route) => route.abort('internetdisconnected'));
   }
+}
+
+/** Waits until the query cache kept in IndexedDB holds `text` (it is written about a second after the last read). */
+async function keptOnDevice(page: Page, text: string) {
+  await expect
+    .poll(
+      () =>
+        page.evaluate(async () => {
+          const open = indexedDB.open('roostline-cache');
+          const db: IDBDatabase = await new Promise((res, rej) => ((open.onsuccess = () => res(open.result)), (open.onerror = () => rej(open.error))));
+          const value: unknown = await new Promise((res) => {
+            const q = db.transaction('queries').objectStore('queries').get('roostline-queries');
+            q.onsuccess = () => res(q.result);
+            q.onerror = () => res(null);
+          });
+          db.close();
+          return typeof value === 'string' ? value : '';
+        }),
+      { timeout: 30_000 },
+    )
+    .toContain(text);
+}
+
+type MapHandle = {
+  getBounds: () => { getWest: () => number; getSouth: () => number; getEast: () => number; getNorth: () => number };
+  jumpTo: (o: object) => void;
+  once: (e: string, cb: () => void) => void;
+  loaded: () => boolean;
+  querySourceFeatures: (s: string, o: object) => unknown[];
+};
+
+/** Moves the map and waits until every tile of the new view is drawn (or has failed). */
+async function mapTo(page: Page, lon: number, lat: number, zoom: number) {
+  await page.evaluate(
+    ([lon, lat, zoom]) =>
+      new Promise<void>((resolve) => {
+        const m = (window as unknown as { __roostlineMap: MapHandle }).__roostlineMap;
+        m.once('idle', () => resolve());
+        m.jumpTo({ center: [lon, lat], zoom });
+      }),
+    [lon, lat, zoom],
+  );
+}
+
+async function mapBox(page: Page): Promise<LonLatBox> {
+  return page.evaluate(() => {
+    const b = (window as unknown as { __roostlineMap: MapHandle }).__roostlineMap.getBounds();
+    return [b.getWest(), b.getSouth(), b.getEast(), b.getNorth()] as LonLatBox;
+  });
+}
+
+async function drawn(page: Page) {
+  return page.evaluate(() => {
+    const m = (window as unknown as { __roostlineMap: MapHandle }).__roostlineMap;
+    return { land: m.querySourceFeatures('basemap', { sourceLayer: 'land' }).length, spans: m.querySourceFeatures('spans', { sourceLayer: 'spans' }).length };
+  });
+}
+
+async function cachedKeys(page: Page, cacheName: string) {
+  return page.evaluate(async (name) => (await (await caches.open(name)).keys()).map((r) => new URL(r.url).pathname), cacheName);
+}
+
+/** Takes the map's current view offline over a zoom range, checking the estimate first. */
+async function takeViewOffline(page: Page, name: string, minZoom: number, maxZoom: number) {
+  const panel = page.getByTestId('offline-areas');
+  await panel.getByRole('button', { name: 'Take an area offline' }).click();
+  await page.getByLabel('From zoom').selectOption(String(minZoom));
+  await page.getByLabel('To zoom').selectOption(String(maxZoom));
+  await page.getByLabel('Name').fill(name);
+  const box = await mapBox(page);
+  const counts = tileCounts(box, minZoom, maxZoom);
+  const estimate = page.getByTestId('area-estimate');
+  await estimate.getByTestId('area-total').waitFor({ timeout: 60_000 });
+  // The estimate counts the tiles of each zoom of the frame (Web Mercator XYZ, common practice) before anything is downloaded.
+  const rows = await estimate.locator('tr[data-zoom]').evaluateAll((trs) => trs.map((tr) => [Number(tr.getAttribute('data-zoom')), Number(tr.children[1]!.textContent!.replace(/\s/g, ''))]));
+  expect(rows).toEqual(counts.map((c) => [c.z, c.count]));
+  const total = counts.reduce((a, c) => a + c.count, 0);
+  expect(await estimate.getByTestId('area-total').innerText()).toMatch(new RegExp(`^About \\d+(\\.\\d)? (kB|MB) for ${total} tile places\\.$`));
+  expect(await estimate.innerText()).toMatch(/\d+ spans, \d+ structures on \d+ lines?: /);
+  await panel.getByRole('button', { name: /^Download / }).click();
+  await panel.getByTestId('area-notice').filter({ hasText: `Saved “${name}”` }).waitFor({ timeout: 120_000 });
+  return { box, total };
 }
 
 describe('offline field work', () => {
@@ -99,9 +184,77 @@ describe('offline field work', () => {
     expect(before.structures).toHaveLength(2);
     expect(before.spans).toHaveLength(1);
 
-    // No signal from here.
+    // Take the area of the valley line offline from the map. A frame too large for one area is refused in words first.
+    await page.goto('/map');
+    await page.locator('[data-testid="map"][data-map-ready="true"]').waitFor({ timeout: 150_000 });
+    await mapTo(page, -130.31, -30.21, 9);
+    const panel = page.getByTestId('offline-areas');
+    await panel.getByRole('button', { name: 'Take an area offline' }).click();
+    await page.getByLabel('From zoom').selectOption('9');
+    await page.getByLabel('To zoom').selectOption('16');
+    const wide = tileCounts(await mapBox(page), 9, 16).reduce((a, c) => a + c.count, 0);
+    expect(wide).toBeGreaterThan(4000);
+    await page.getByTestId('area-estimate').getByRole('alert').filter({ hasText: `This frame needs ${wide.toLocaleString('en-US').replace(/,/g, ' ')} tiles at zooms 9–16; one area holds at most 4 000.` }).waitFor();
+    expect(await panel.getByRole('button', { name: /^Download/ }).isDisabled()).toBe(true);
+    await panel.getByRole('button', { name: 'Cancel' }).click();
+    await mapTo(page, -130.31, -30.21, 14);
+    const area = await takeViewOffline(page, `Valley ${RUN}`, 13, 15);
+    const saved = panel.getByTestId('saved-area').filter({ hasText: `Valley ${RUN}` });
+    expect(await saved.innerText()).toMatch(/Saved just now · zooms 13–15 · \d+ spans · \d+ photos/);
+    expect(await saved.innerText()).toMatch(/\d+(\.\d)? (kB|MB)/);
+    // The browser was asked to keep the data, and the panel says how much of the device it holds.
+    expect(await page.getByTestId('storage-use').innerText()).toMatch(/^Roostline holds \d+(\.\d)? (bytes|kB|MB|GB) of \d+(\.\d)? (MB|GB|TB) on this device\./);
+    // Every tile of the frame at every zoom is in the caches the service worker answers from (the basemap file ends at zoom 14).
+    const spanTiles = await cachedKeys(page, 'roostline-span-tiles');
+    const baseTiles = await cachedKeys(page, 'roostline-basemap-tiles');
+    for (let z = 13; z <= 15; z++) {
+      const r = tileRange(area.box, z);
+      for (let x = r.xMin; x <= r.xMax; x++) {
+        for (let y = r.yMin; y <= r.yMax; y++) {
+          expect(spanTiles).toContain(`/api/tiles/spans/${z}/${x}/${y}.mvt`);
+          if (z <= 14) expect(baseTiles).toContain(`/map/basemap/${z}/${x}/${y}.mvt`);
+        }
+      }
+    }
+    // The kept query cache holds the area's records before the signal goes (it is written a moment after the last read).
+    await keptOnDevice(page, `"detail","${other.id}"`);
+
+    // No signal from here; a reload opens the app from the device.
     await signal(context, false);
     await page.reload();
+    await page.goto('/field');
+    // The queue opens from the device: its groups with their totals and the first cards (the list is windowed).
+    await page.getByRole('list', { name: 'Your spans' }).locator('[data-span-id]').first().waitFor();
+    expect(await page.getByRole('list', { name: 'Your spans' }).getByRole('heading').first().innerText()).toMatch(/^(Sent back to you|Drafts|Submitted and approved) \(\d+\)$/);
+    await page.goto(`/spans/${other.id}`);
+    await page.getByRole('heading', { name: /^Span .+ → .+$/ }).waitFor();
+    // The map area draws from what was saved: basemap and span tiles answered by the service worker, none by the network.
+    const tileAnswers: { url: string; fromWorker: boolean; status: number }[] = [];
+    page.on('response', (r) => {
+      if (/\/(map\/basemap|api\/tiles\/spans)\//.test(r.url())) tileAnswers.push({ url: r.url(), fromWorker: r.fromServiceWorker(), status: r.status() });
+    });
+    await page.goto('/map');
+    await page.locator('[data-testid="map"][data-map-ready="true"]').waitFor({ timeout: 150_000 });
+    await panel.getByTestId('saved-area').filter({ hasText: `Valley ${RUN}` }).getByRole('button', { name: 'Show' }).click();
+    await mapTo(page, -130.31, -30.21, 14);
+    const shown = await drawn(page);
+    expect(shown.land).toBeGreaterThan(0);
+    expect(shown.spans).toBeGreaterThan(0);
+    const inArea = tileAnswers.filter((a) => a.url.includes('/14/'));
+    expect(inArea.some((a) => a.url.includes('/map/basemap/'))).toBe(true);
+    expect(inArea.some((a) => a.url.includes('/api/tiles/spans/'))).toBe(true);
+    for (const a of inArea) expect(a, a.url).toMatchObject({ fromWorker: true, status: 200 });
+    expect(await panel.getByRole('button', { name: 'Take an area offline' }).isDisabled()).toBe(true);
+
+    // Screens whose work only the server does say so in words instead of failing.
+    await page.goto('/import');
+    const notice = page.getByTestId('needs-network');
+    await notice.getByRole('heading', { name: 'Import needs the network' }).waitFor();
+    expect(await notice.innerText()).toContain('There is no connection right now. The server reads and checks the file');
+    await page.goto('/calculators');
+    await notice.getByRole('heading', { name: 'The calculator page needs the network' }).waitFor();
+
+    await page.goto('/field/spans/new');
     await page.getByLabel('Line', { exact: true }).selectOption(line.id);
     await addStructure(page, 0, '-30.2200', '-130.3200');
     await expect.poll(() => page.locator('#fromStructureId option:checked').innerText()).toContain('waiting to send');
@@ -162,6 +315,40 @@ describe('offline field work', () => {
     expect(await page.locator('[data-kept-span]').count()).toBe(0);
     await context.close();
   }, 300_000);
+
+  it('when the signal drops on the review desk, or it is opened with none, then it says in words that it needs the network', async () => {
+    const { context, page } = await open();
+    await h.signIn(page, 'safety');
+    await page.waitForURL((u) => u.pathname === '/review');
+    await page.getByRole('heading', { name: /^Waiting for review/ }).first().waitFor();
+    await page.reload();
+    await workerInControl(page);
+    await page.getByRole('heading', { name: /^Waiting for review/ }).first().waitFor();
+    const notice = page.getByTestId('needs-network');
+    expect(await notice.count()).toBe(0);
+
+    // Open when the signal drops: the desk stays on screen, out of reach, under the notice.
+    await signal(context, false);
+    await notice.getByRole('heading', { name: 'The review desk needs the network' }).waitFor();
+    expect(await notice.innerText()).toContain('Decisions are checked against the span as the server holds it now');
+    expect(await page.getByTestId('needs-network-paused').getAttribute('inert')).not.toBeNull();
+    expect(await page.getByTestId('needs-network-paused').getByRole('heading', { name: /^Waiting for review/ }).count()).toBeGreaterThan(0);
+
+    // Opened with no signal: the notice alone, nothing tried and failed on screen.
+    await page.reload();
+    await notice.getByRole('heading', { name: 'The review desk needs the network' }).waitFor();
+    expect(await page.getByTestId('needs-network-paused').count()).toBe(0);
+    expect(await page.getByRole('alert').count()).toBe(0);
+    await page.goto('/admin/audit');
+    await notice.getByRole('heading', { name: 'The audit log needs the network' }).waitFor();
+
+    // Signal back: the desk opens by itself.
+    await signal(context, true);
+    await page.goto('/review');
+    await page.getByRole('heading', { name: /^Waiting for review/ }).first().waitFor();
+    expect(await notice.count()).toBe(0);
+    await context.close();
+  }, 180_000);
 
   it('when the answer to a create is lost on the way back, then the retry with the same key makes no second record', async () => {
     const { context, page } = await open();
