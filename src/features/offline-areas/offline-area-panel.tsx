@@ -206,7 +206,19 @@ export function OfflineAreaPanel({ map, userId, plan, onDrawingChange }: { map: 
       </p>
 
       {phase.kind === 'closed' && (
-        <button type="button" className="btn-primary min-h-12 w-full" disabled={!online} onClick={() => setPhase({ kind: 'framing' })}>
+        <button
+          type="button"
+          className="btn-primary min-h-12 w-full"
+          disabled={!online}
+          onClick={() => {
+            // The zooms start around what the map shows now.
+            const z = Math.max(AREA_MIN_ZOOM, Math.min(AREA_MAX_ZOOM, Math.floor(map.getZoom())));
+            setMinZoom(Math.max(AREA_MIN_ZOOM, z - 1));
+            setMaxZoom(Math.min(AREA_MAX_ZOOM, z + 2));
+            setView(viewBox(map));
+            setPhase({ kind: 'framing' });
+          }}
+        >
           Take an area offline
         </button>
       )}
@@ -244,7 +256,7 @@ export function OfflineAreaPanel({ map, userId, plan, onDrawingChange }: { map: 
               </div>
             )}
           </fieldset>
-          <div className="grid grid-cols-2 gap-2">
+          <div className="grid gap-2">
             <div>
               <label className="field-label" htmlFor="area-min-zoom">From zoom</label>
               <select id="area-min-zoom" className={field} value={minZoom} onChange={(e) => { const v = Number(e.target.value); setMinZoom(v); if (v > maxZoom) setMaxZoom(v); }}>
