@@ -1,21 +1,11 @@
-// The app's MapLibre set-up in one place: the worker shipped with the app, the PMTiles protocol for the basemap,
-// and a map on the shipped style that a tablet pans without tilting, with zoom buttons and a scale in the
+// The app's map on the shipped style that a tablet pans without tilting, with zoom buttons and a scale in the
 // reader's units. It says when its first frame is drawn (data-map-ready, for the journeys) and hands the MapLibre
 // map to the page for tests under `exposeAs`.
-import 'maplibre-gl/dist/maplibre-gl.css';
+import '../lib/maplibre-setup.ts';
 import { useRef, useState, type ReactNode, type RefObject } from 'react';
 import MapView, { NavigationControl, ScaleControl, type MapLayerMouseEvent, type MapRef } from 'react-map-gl/maplibre';
-import { addProtocol, setWorkerUrl, type Map as MapLibreMap } from 'maplibre-gl';
-import workerUrl from 'maplibre-gl/dist/maplibre-gl-worker.mjs?url';
-import { Protocol } from 'pmtiles';
+import type { Map as MapLibreMap } from 'maplibre-gl';
 import type { UnitSystem } from '#shared/units.ts';
-
-setWorkerUrl(workerUrl);
-const w = globalThis as { __roostlinePmtiles?: boolean };
-if (!w.__roostlinePmtiles) {
-  addProtocol('pmtiles', new Protocol().tile);
-  w.__roostlinePmtiles = true;
-}
 
 export interface AppMapProps {
   system: UnitSystem;

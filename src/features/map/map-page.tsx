@@ -1,13 +1,11 @@
 // The map: the local basemap, spans from the server's tiles (by status or by score, width by harvest power),
 // structures, photos and no-perch zones; filters shared with the spans table through the URL.
-import 'maplibre-gl/dist/maplibre-gl.css';
+import '../../lib/maplibre-setup.ts';
 import { useCallback, useEffect, useMemo, useRef, useState, type ReactNode } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import { useQuery, useQueryClient } from '@tanstack/react-query';
 import MapView, { Layer, NavigationControl, ScaleControl, type MapLayerMouseEvent, type MapRef } from 'react-map-gl/maplibre';
-import { addProtocol, setWorkerUrl, type Map as MapLibreMap, type VectorTileSource } from 'maplibre-gl';
-import workerUrl from 'maplibre-gl/dist/maplibre-gl-worker.mjs?url';
-import { Protocol } from 'pmtiles';
+import type { Map as MapLibreMap, VectorTileSource } from 'maplibre-gl';
 import { Caution } from '../../components/caution.tsx';
 import { useMe } from '../auth/queries.ts';
 import { inventoryQueries } from '../spans/queries.ts';
@@ -28,13 +26,6 @@ import {
 import { MapLegend } from './legend.tsx';
 import { SpanCard } from './span-card.tsx';
 import { ZonePanel } from './zone-tools.tsx';
-
-setWorkerUrl(workerUrl);
-let protocolAdded = false;
-if (!protocolAdded) {
-  addProtocol('pmtiles', new Protocol().tile);
-  protocolAdded = true;
-}
 
 /**
  * Absolute, unencoded template (the worker resolves it and `{z}` must stay literal). Status and line go to the

@@ -1,19 +1,9 @@
 // Placing a photo without GPS by hand: click the map (spans and structures shown) or type the position.
-import 'maplibre-gl/dist/maplibre-gl.css';
+import '../../lib/maplibre-setup.ts';
 import { useEffect, useRef, useState } from 'react';
 import MapView, { Layer, Marker, NavigationControl, type MapLayerMouseEvent } from 'react-map-gl/maplibre';
-import { addProtocol, setWorkerUrl } from 'maplibre-gl';
-import workerUrl from 'maplibre-gl/dist/maplibre-gl-worker.mjs?url';
-import { Protocol } from 'pmtiles';
 import { DEMO_CENTER } from '#shared/demo-region.ts';
 import { SPANS_CASING_LAYER, STRUCTURES_LAYER, spanLineLayer } from '../map/map-styles.ts';
-
-setWorkerUrl(workerUrl);
-const w = globalThis as { __roostlinePmtiles?: boolean };
-if (!w.__roostlinePmtiles) {
-  addProtocol('pmtiles', new Protocol().tile);
-  w.__roostlinePmtiles = true;
-}
 
 export interface LatLon {
   lat: number;
