@@ -7,7 +7,7 @@ import { once } from 'node:events';
 import type { Readable } from 'node:stream';
 import { parse } from 'csv-parse';
 import type { EntityManager } from '@mikro-orm/core';
-import { lineCreateSchema, type ImportReport, type ImportRowReport } from '#shared/schemas/inventory.ts';
+import { type ImportReport, type ImportRowReport } from '#shared/schemas/inventory.ts';
 import type { User } from '../auth/user.entity.ts';
 import { ConductorType } from '../inventory/conductor-type.entity.ts';
 import { Hazard } from '../inventory/hazard.entity.ts';
@@ -17,7 +17,7 @@ import { Span } from '../inventory/span.entity.ts';
 import { Structure } from '../inventory/structure.entity.ts';
 import { chunks } from '../inventory/inventory.service.ts';
 import { csvFieldName, csvHeaderName, csvHeaderProblem, csvRawRow, type RawRow } from './formats.ts';
-import { applyPlan, evaluateRow, groupHazards, spanKeyOf, structureKey, type ImportPlan, type Lookups } from './import.service.ts';
+import { applyPlan, evaluateRow, groupHazards, planNewLines, spanKeyOf, structureKey, type ImportPlan, type Lookups } from './import.service.ts';
 
 /** Rows read, checked and (on commit) written per batch. */
 export const IMPORT_BATCH_ROWS = 1000;
@@ -156,22 +156,8 @@ export class StreamingPlanner {
     const db = this.lookups!;
     const plan = this.plan;
     // New lines first, each from the first row that describes it fully (as the whole-file planner does per file).
-    for (const raw of rows) {
-      this.order.push(raw.row);
-      if (!raw.line || raw.reasons.length || db.dbLineByName.has(raw.line.name) || plan.lines.has(raw.line.name)) continue;
-      const given = Object.fromEntries(Object.entries(raw.line.given).filter(([, v]) => v !== undefined));
-      const parsed = lineCreateSchema.safeParse({ name: raw.line.name, ...given });
-      if (!parsed.success) continue;
-      const v = parsed.data;
-      plan.lines.set(raw.line.name, {
-        key: raw.line.name,
-        existing: null,
-        fields: { owner: v.owner, voltageKv: v.voltageKv, frequencyHz: v.frequencyHz, phases: v.phases, loadTypicalA: v.loadTypicalA, loadMinA: v.loadMinA, loadPeakA: v.loadPeakA, loadProfileA: v.loadProfileA ?? null },
-        setBy: new Map(Object.keys(given).map((k) => [k, raw.row])),
-        changed: new Set(),
-        createdByRow: raw.row,
-      });
-    }
+    for (const raw of rows) this.order.push(raw.row);
+    planNewLines(rows, db.dbLineByName, plan);
     for (const raw of rows) {
       const { report, waiting } = evaluateRow(raw, plan, csvFieldName, db);
       // A new line not yet described may be described by a later row: checked again at the end.

@@ -138,21 +138,7 @@ export async function planImport(em: EntityManager, format: ImportFormat, text: 
   // Rows that only wait for a record a later row defines (a Point before the LineString that names its line,
   // a span before the Points of its structures) are evaluated again after the others.
   // New lines first, each from the first row that describes it fully, so rows naming only the line (structure Points) can use it.
-  for (const raw of rows) {
-    if (!raw.line || raw.reasons.length || dbLineByName.has(raw.line.name) || plan.lines.has(raw.line.name)) continue;
-    const given = Object.fromEntries(Object.entries(raw.line.given).filter(([, v]) => v !== undefined));
-    const parsed = lineCreateSchema.safeParse({ name: raw.line.name, ...given });
-    if (!parsed.success) continue;
-    const v = parsed.data;
-    plan.lines.set(raw.line.name, {
-      key: raw.line.name,
-      existing: null,
-      fields: { owner: v.owner, voltageKv: v.voltageKv, frequencyHz: v.frequencyHz, phases: v.phases, loadTypicalA: v.loadTypicalA, loadMinA: v.loadMinA, loadPeakA: v.loadPeakA, loadProfileA: v.loadProfileA ?? null },
-      setBy: new Map(Object.keys(given).map((k) => [k, raw.row])),
-      changed: new Set(),
-      createdByRow: raw.row,
-    });
-  }
+  planNewLines(rows, dbLineByName, plan);
   const lookups = { dbLineByName, dbStructureByKey, dbSpanByKey, hazardsBySpan: groupHazards(dbHazards), kinds, catalogue };
   const final = new Map<number, ImportRowReport>();
   let pending = rows;
@@ -173,6 +159,25 @@ export async function planImport(em: EntityManager, format: ImportFormat, text: 
   plan.report.rows = rows.map((r) => final.get(r.row)!);
   for (const r of plan.report.rows) plan.report.summary[r.action] += 1;
   return plan;
+}
+
+/** Plans a new line for each line name not in the database, from the first row that describes it fully. */
+export function planNewLines(rows: RawRow[], dbLineByName: ReadonlyMap<string, unknown>, plan: ImportPlan): void {
+  for (const raw of rows) {
+    if (!raw.line || raw.reasons.length || dbLineByName.has(raw.line.name) || plan.lines.has(raw.line.name)) continue;
+    const given = Object.fromEntries(Object.entries(raw.line.given).filter(([, v]) => v !== undefined));
+    const parsed = lineCreateSchema.safeParse({ name: raw.line.name, ...given });
+    if (!parsed.success) continue;
+    const v = parsed.data;
+    plan.lines.set(raw.line.name, {
+      key: raw.line.name,
+      existing: null,
+      fields: { owner: v.owner, voltageKv: v.voltageKv, frequencyHz: v.frequencyHz, phases: v.phases, loadTypicalA: v.loadTypicalA, loadMinA: v.loadMinA, loadPeakA: v.loadPeakA, loadProfileA: v.loadProfileA ?? null },
+      setBy: new Map(Object.keys(given).map((k) => [k, raw.row])),
+      changed: new Set(),
+      createdByRow: raw.row,
+    });
+  }
 }
 
 export function groupHazards(hazards: Hazard[], into = new Map<string, Hazard[]>()): Map<string, Hazard[]> {

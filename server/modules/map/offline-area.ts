@@ -6,6 +6,7 @@ import type { EntityManager } from '@mikro-orm/core';
 import { PMTiles, type RangeResponse, type Source } from 'pmtiles';
 import { z } from 'zod';
 import { sql } from '../../sql/query.ts';
+import type { AreaContents } from '#shared/schemas/offline-area.ts';
 
 /** A PMTiles source over a file on disk (reads the byte ranges the reader asks for). */
 class FileSource implements Source {
@@ -57,15 +58,6 @@ export const areaQuery = z.object({
 
 /** At most this many spans are listed for one area (the client caps its areas well below this). */
 export const AREA_SPAN_LIMIT = 5000;
-
-export interface AreaContents {
-  spans: { id: string; lineId: string }[];
-  lineIds: string[];
-  structures: number;
-  photos: { id: string; spanId: string | null }[];
-  /** More spans lie in the box than are listed. */
-  truncated: boolean;
-}
 
 /** The records in a box: spans with either structure inside it, their lines, and the photos of those spans or taken inside it. */
 export async function areaContents(em: EntityManager, bbox: number[]): Promise<AreaContents> {

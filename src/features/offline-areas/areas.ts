@@ -6,6 +6,7 @@ import { createStore, del, get, set } from 'idb-keyval';
 import { tileCounts, tileRange, tilesIn, type LonLatBox } from '#shared/tile-math.ts';
 import { CACHE_BASEMAP_TILES, CACHE_MAP_DATA, CACHE_PHOTOS, CACHE_SPAN_TILES } from '../../lib/offline-caches.ts';
 import { api, qs } from '../../lib/api.ts';
+import type { AreaContents } from '#shared/schemas/offline-area.ts';
 
 /** Lowest and highest zoom an area can be taken at (the map opens at 8; span tiles end at 16). */
 export const AREA_MIN_ZOOM = 8;
@@ -19,14 +20,6 @@ export const MAX_AREA_TILES = 4000;
 const SAMPLES_PER_ZOOM = 3;
 /** Requests in flight at once while downloading. */
 const PARALLEL = 4;
-
-export interface AreaContents {
-  spans: { id: string; lineId: string }[];
-  lineIds: string[];
-  structures: number;
-  photos: { id: string; spanId: string | null }[];
-  truncated: boolean;
-}
 
 /** One step of keeping the records of an area; resolves to the bytes it kept (about). */
 export interface RecordTask {
