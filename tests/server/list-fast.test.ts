@@ -139,3 +139,26 @@ describe('span list pages', () => {
     expect(blocked).toBeGreaterThan(0); // both kinds are in the sample
   });
 });
+
+describe('span list keyset pages', () => {
+  it('when deep pages are asked with several statuses, a harvest filter and many equal sort values, then each page equals the plain full-order query', async () => {
+    // Ties across page boundaries: 90 spans share one update time and 40 one length.
+    await sql.run(t.orm.em.fork(), 'update spans set updated_at = (select max(updated_at) from spans) where id in (select id from spans order by id limit 90)');
+    await sql.run(t.orm.em.fork(), 'update spans set length_m = 150 where id in (select id from spans order by id desc limit 40)');
+    const cases: [string, string, string, unknown[]][] = [
+      ['status=approved,submitted&sort=-updatedAt', "s.status in ('approved','submitted')", 's.updated_at desc', []],
+      ['sort=-updatedAt', '', 's.updated_at desc', []],
+      ['status=approved,returned&sort=createdAt', "s.status in ('approved','returned')", 's.created_at asc', []],
+      ['minHarvestW=2&sort=lengthM', 'a.harvest_w >= ?', 's.length_m asc', [2]],
+      ['status=draft,approved&sort=-lengthM', "s.status in ('draft','approved')", 's.length_m desc', []],
+    ];
+    for (const [query, where, order, params] of cases) {
+      const full = await sql.all<{ id: string }>(t.orm.em.fork(), `select s.id as id ${FROM}${where ? `where ${where} ` : ''}order by ${order}, l.name, fs.label, s.id`, [...pair, ...params]);
+      for (const page of [1, 2, 4, 7, Math.ceil(full.length / 25), Math.ceil(full.length / 25) + 1]) {
+        const res = await planner.get(`/api/spans?${query}&page=${page}&pageSize=25`);
+        expect(res.status).toBe(200);
+        expect(res.body.items.map((x: { id: string }) => x.id)).toEqual(full.slice((page - 1) * 25, page * 25).map((r) => r.id));
+      }
+    }
+  });
+});

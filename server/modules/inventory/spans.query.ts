@@ -8,6 +8,7 @@ import { perchableSql } from '../assessment/perchable.ts';
 import { defaultAssessmentPair, spanViews } from './inventory.service.ts';
 import { sql as bound } from '../../sql/query.ts';
 import { dataVersion, type VersionScope } from '../../sql/data-version.ts';
+import { isPostgres } from '../../sql/dialect.ts';
 
 export interface SpanFilter {
   status?: string[];
@@ -46,7 +47,7 @@ function likeEscape(q: string) {
  * the number of rows: structures and the default pair's assessment are left joins on a unique key (at most one
  * row each), and every span has its line (foreign key); they are joined only when a filter reads them.
  */
-async function buildQuery(em: EntityManager, f: SpanFilter, forCount = false) {
+async function buildQuery(em: EntityManager, f: SpanFilter, forCount = false, extra?: { sql: string; params: unknown[] }) {
   const params: unknown[] = [];
   const needsLabels = !forCount || !!f.q;
   const needsAssessment = !forCount || f.minHarvestW !== undefined || f.minScore !== undefined;
@@ -96,6 +97,10 @@ async function buildQuery(em: EntityManager, f: SpanFilter, forCount = false) {
       params.push(f.minScore);
     } else where.push('0 = 1');
   }
+  if (extra) {
+    where.push(extra.sql);
+    params.push(...extra.params);
+  }
   // Totals that read assessments change with every rescore; the others only with the inventory.
   const scope: VersionScope = needsAssessment && hasAssessment ? 'all' : f.perchable !== undefined ? 'all' : 'inventory';
   return { sql: from + (where.length ? `where ${where.join(' and ')} ` : ''), params, hasAssessment, scope };
@@ -138,11 +143,41 @@ async function totalOf(em: EntityManager, f: SpanFilter): Promise<number> {
   return Number(n);
 }
 
+/** Sorts on a never-null column of spans alone: their pages are found on the column's index first (keyset). */
+const KEYSET_SORTS: Partial<Record<SpanSortKey, string>> = { updatedAt: 's.updated_at', createdAt: 's.created_at', lengthM: 's.length_m' };
+
+/**
+ * The page's span ids in the full order. For a sort on a spans column, the page's first and last sort values are
+ * read from spans alone (the count's joins only), then only the rows between them are joined and ordered in full:
+ * rows skipped over on deep pages are never joined. Same rows in the same order as the plain query (tested).
+ */
+async function pageIds(em: EntityManager, f: SpanFilter): Promise<string[]> {
+  const offset = (f.page - 1) * f.pageSize;
+  const key = (f.sort?.replace(/^-/, '') || 'updatedAt') as SpanSortKey;
+  const col = KEYSET_SORTS[key];
+  const base = await buildQuery(em, f);
+  // On PostgreSQL a timestamp read back into JavaScript keeps milliseconds only, so date bounds could drop a row: plain query there.
+  if (!col || f.q || (isPostgres(em) && key !== 'lengthM')) {
+    const rows = await bound.all<{ id: string }>(em, `select s.id as id ${base.sql}${orderBy(f.sort, base.hasAssessment)} limit ? offset ?`, [...base.params, f.pageSize, offset]);
+    return rows.map((r) => r.id);
+  }
+  const desc = !!f.sort?.startsWith('-') || !f.sort;
+  const lean = await buildQuery(em, f, true);
+  const keys = await bound.all<{ k: unknown }>(em, `select ${col} as k ${lean.sql}order by ${col} ${desc ? 'desc' : 'asc'} limit ? offset ?`, [...lean.params, f.pageSize, offset]);
+  if (!keys.length) return [];
+  const first = keys[0].k;
+  const last = keys[keys.length - 1].k;
+  // Rows ahead of the page's first value come before it in the full order; the page starts that many rows into the range.
+  const ahead = await buildQuery(em, f, true, { sql: `${col} ${desc ? '>' : '<'} ?`, params: [first] });
+  const [{ n }] = await bound.all<{ n: number }>(em, `select count(*) as n ${ahead.sql}`, ahead.params);
+  const range = await buildQuery(em, f, false, { sql: `${col} between ? and ?`, params: desc ? [last, first] : [first, last] });
+  const rows = await bound.all<{ id: string }>(em, `select s.id as id ${range.sql}${orderBy(f.sort, range.hasAssessment)} limit ? offset ?`, [...range.params, f.pageSize, offset - Number(n)]);
+  return rows.map((r) => r.id);
+}
+
 export async function listSpans(em: EntityManager, f: SpanFilter): Promise<Page<SpanView>> {
-  const { sql, params, hasAssessment } = await buildQuery(em, f);
   const n = await totalOf(em, f);
-  const rows = await bound.all<{ id: string }>(em, `select s.id as id ${sql}${orderBy(f.sort, hasAssessment)} limit ? offset ?`, [...params, f.pageSize, (f.page - 1) * f.pageSize]);
-  const ids = rows.map((r) => r.id);
+  const ids = await pageIds(em, f);
   const spans = ids.length ? await em.find(Span, { id: { $in: ids } }) : [];
   const byId = new Map(spans.map((s) => [s.id, s]));
   const items = await spanViews(
