@@ -2,9 +2,6 @@
 // (default 100 000) with the scale seeder, marks them perchable for the demo pair (the planner reads the stored
 // assessments; rescoring has its own bench), then plans 60 km missions between random points and reports planning
 // time (p50 / p95, goal p95 ≤ 2 s) and memory. Writes its section of bench/RESULTS.md.
-import fs from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
 import { seedScaleInventory } from '../server/seeders/scale-inventory.ts';
 import { planContext, planMission } from '../server/modules/missions/plan.service.ts';
 import { METHOD_VERSION } from '../shared/engineering/assessment.ts';
@@ -12,6 +9,7 @@ import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import { impliedCurrentA } from '../shared/engineering/implied-current.ts';
 import { prng } from '../shared/prng.ts';
 import type { BenchRow } from './run.ts';
+import { machineLine, writeResultsSection } from './results.ts';
 import { openBenchDatabase } from './bench-db.ts';
 
 const SPANS = Number(process.env.BENCH_MISSION_SPANS ?? 100_000);
@@ -101,14 +99,11 @@ export async function run(): Promise<BenchRow[]> {
     await db.close();
   }
   const rows: BenchRow[] = Object.entries(out).map(([figure, value]) => ({ figure, value }));
-  const section =
-    `<!-- missions bench -->\n# Missions bench\n\n${new Date().toISOString().slice(0, 10)} · ${os.cpus().length} cores · load average ${os.loadavg()[0].toFixed(1)} at the end${os.loadavg()[0] > os.cpus().length ? ' (shared machine, loaded figures)' : ' (quiet machine)'}. ` +
-    '`npm run bench -- missions` (`BENCH_MISSION_SPANS`, `BENCH_MISSIONS`).\n\n| figure | value |\n|---|---|\n' +
-    rows.map((r) => `| ${r.figure} | ${r.value} |`).join('\n') +
-    '\n<!-- /missions bench -->\n';
-  const file = path.resolve('bench/RESULTS.md');
-  const old = fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '';
-  const kept = old.replace(/\n*<!-- missions bench -->[\s\S]*<!-- \/missions bench -->\n?/, '');
-  fs.writeFileSync(file, `${kept.trimEnd()}\n\n${section}`);
+  writeResultsSection(
+    'missions',
+    `# Missions bench\n\n${machineLine()} ` +
+      '`npm run bench -- missions` (`BENCH_MISSION_SPANS`, `BENCH_MISSIONS`).\n\n| figure | value |\n|---|---|\n' +
+      rows.map((r) => `| ${r.figure} | ${r.value} |`).join('\n'),
+  );
   return rows;
 }

@@ -27,7 +27,7 @@ if (process.argv.includes('--load')) {
 const files = fs
   .readdirSync(dir)
   .filter((f) => f.endsWith('.bench.ts'))
-  .filter((f) => (filters.length === 0 ? f !== 'scale.bench.ts' && f !== 'missions.bench.ts' : filters.some((q) => f.includes(q))))
+  .filter((f) => (filters.length === 0 ? !['scale.bench.ts', 'missions.bench.ts', 'dialects.bench.ts'].includes(f) : filters.some((q) => f.includes(q))))
   .sort();
 
 if (files.length === 0) {

@@ -9,6 +9,7 @@ import { codeGroundClearanceM } from '#shared/engineering/clearance.ts';
 import type { SpanStatus } from '#shared/schemas/inventory.ts';
 import { prng } from '../../shared/prng.ts';
 import { bulkInsert } from '../sql/bulk.ts';
+import { isPostgres } from '../sql/dialect.ts';
 import { DEFAULT_HAZARD_KINDS as HAZARD_KINDS } from '../modules/inventory/catalogues.ts';
 import { spanLengthM } from '../modules/inventory/inventory.service.ts';
 
@@ -80,6 +81,9 @@ export async function seedScaleInventory(em: EntityManager, opts: ScaleSeedOptio
   for (let i = 0; i < extra; i++) centres.push([bbox.west + w * (0.1 + 0.8 * rand()), bbox.south + h * (0.1 + 0.8 * rand())]);
   const gauss = () => (rand() + rand() + rand() - 1.5) / 1.5;
   const now = Date.now();
+  // Instants: epoch milliseconds in SQLite's integer columns, Date objects for PostgreSQL's timestamptz columns.
+  const pg = isPostgres(em);
+  const at = (ms: number | null) => (ms === null ? null : pg ? new Date(ms) : ms);
   const conductors = new Map(ACSR_CONDUCTORS.map((c) => [c.codeWord, c]));
   const surveyors = opts.surveyorIds ?? [];
 
@@ -108,7 +112,7 @@ export async function seedScaleInventory(em: EntityManager, opts: ScaleSeedOptio
     const count = Math.min(opts.spans - spanNo, 60 + Math.floor(rand() * 340));
     const typical = Math.round(cls.load[0] + rand() * (cls.load[1] - cls.load[0]));
     pending.lines.push([
-      lineId, `Harrow Vale circuit ${prefix} ${cls.kv} kV`, 'Harrow Vale Power Cooperative', cls.kv, 60, 3, typical, Math.round(typical * 0.45), Math.round(typical * 1.5), null, 1, now - 400 * DAY, now - 400 * DAY,
+      lineId, `Harrow Vale circuit ${prefix} ${cls.kv} kV`, 'Harrow Vale Power Cooperative', cls.kv, 60, 3, typical, Math.round(typical * 0.45), Math.round(typical * 1.5), null, 1, at(now - 400 * DAY), at(now - 400 * DAY),
     ]);
     const centre = centres[rand() < 0.34 ? 0 : 1 + Math.floor(rand() * (centres.length - 1))];
     let lon = centre[0] + gauss() * w * 0.08;
@@ -123,7 +127,7 @@ export async function seedScaleInventory(em: EntityManager, opts: ScaleSeedOptio
       const id = `st${pad(structureNo++, 8)}`;
       ids.push(id);
       pts.push([lon, lat]);
-      pending.structures.push([id, lineId, lat, lon, cls.kind, `${prefix}-${i + 1}`, cls.height[0] + rand() * (cls.height[1] - cls.height[0]), 1, now - 400 * DAY, now - 400 * DAY]);
+      pending.structures.push([id, lineId, lat, lon, cls.kind, `${prefix}-${i + 1}`, cls.height[0] + rand() * (cls.height[1] - cls.height[0]), 1, at(now - 400 * DAY), at(now - 400 * DAY)]);
       const stepM = cls.spanM[0] + rand() * (cls.spanM[1] - cls.spanM[0]);
       heading += (rand() - 0.5) * 0.35;
       lon += (Math.cos(heading) * stepM) / (111_320 * Math.cos((lat * Math.PI) / 180));
@@ -151,13 +155,13 @@ export async function seedScaleInventory(em: EntityManager, opts: ScaleSeedOptio
         surveyed ? PHASES[i % PHASES.length] : null, clearance, clearance === null ? null : Math.round((clearance - rand() * 0.8) * 100) / 100,
         surveyed ? TERRAINS[Math.floor(rand() * TERRAINS.length)] : null, ownLoad, surveyed ? new Date(surveyDay).toISOString().slice(0, 10) : null, surveyor,
         status === 'returned' ? 'Clearance reading needs a second measurement' : null, status === 'suspended' ? 'Vegetation work planned on this section' : null,
-        status === 'draft' ? null : updated - DAY, status === 'approved' || status === 'suspended' ? updated : null, null, updated - 30 * DAY, updated,
+        at(status === 'draft' ? null : updated - DAY), at(status === 'approved' || status === 'suspended' ? updated : null), null, at(updated - 30 * DAY), at(updated),
       ]);
       const hz = rand();
       const nHazards = hz < 0.03 ? 2 : hz < 0.15 ? 1 : 0;
       for (let k = 0; k < nHazards; k++) {
         const kind = HAZARD_KINDS[Math.floor(rand() * HAZARD_KINDS.length)];
-        pending.hazards.push([`hz${pad(hazardNo++, 8)}`, id, kind.id, kind.defaultSeverity, Math.round(rand() * 100), '', updated]);
+        pending.hazards.push([`hz${pad(hazardNo++, 8)}`, id, kind.id, kind.defaultSeverity, Math.round(rand() * 100), '', at(updated)]);
       }
       spanNo++;
     }

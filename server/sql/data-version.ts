@@ -30,7 +30,9 @@ export type VersionScope = 'all' | 'inventory';
  */
 export async function dataVersion(em: EntityManager, scope: VersionScope = 'all'): Promise<string> {
   if (isPostgres(em)) {
-    const pg = (await sql.get<{ v: string }>(em, 'select pg_current_wal_lsn()::text as v'))!;
+    // The insert position, not the write position: with synchronous_commit off the written position lags commits,
+    // which would leave a cache keyed on it serving pages from before the latest change.
+    const pg = (await sql.get<{ v: string }>(em, 'select pg_current_wal_insert_lsn()::text as v'))!;
     return `pg:${pg.v}`;
   }
   const row = (await sql.get<{ c: number; d: number }>(em, 'select total_changes() as c, (select data_version from pragma_data_version) as d'))!;

@@ -58,7 +58,7 @@ describe('approval refused on failing blocking gates', () => {
     const zone = await safety.post('/api/zones', { name: 'Quarry blasting', reason: 'Blasting', severity: 'exclude', geometry: JSON.parse(square) });
     expect(zone.status).toBe(201);
     await waitForAllJobs(safety);
-    await em.getConnection().execute('update assessments set perchable = 1 where span_id = ?', [id]);
+    await em.getConnection().execute('update assessments set perchable = ? where span_id = ?', [true, id]);
     const res = await safety.post(`/api/spans/${id}/approve`, {});
     expect(res.status).toBe(409);
     expect(res.body.error.message).toContain('no-perch zone');

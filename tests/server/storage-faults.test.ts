@@ -27,7 +27,8 @@ afterAll(async () => {
 });
 
 describe('storage faults', () => {
-  it('when the uploads folder cannot be written, then the uploader gets 503 in words, no photo row is saved and reads go on', async () => {
+  // The uploads folder is the local store's; the PostgreSQL run keeps photos in the S3 fake, which has no folder to refuse.
+  it.skipIf(process.env.ROOSTLINE_TEST_STORAGE === 's3')('when the uploads folder cannot be written, then the uploader gets 503 in words, no photo row is saved and reads go on', async () => {
     const surveyor = await t.as('surveyor');
     const jpeg = await sharp({ create: { width: 320, height: 240, channels: 3, background: { r: 1, g: 2, b: 3 } } }).jpeg().toBuffer();
     const res = await surveyor.upload('/api/photos').attach('photo', jpeg, { filename: 'a.jpg', contentType: 'image/jpeg' });
