@@ -56,11 +56,12 @@ describe('durable jobs on two processes (PostgreSQL)', () => {
 
   it('when the process running a job dies, then the other process, which showed its progress, takes it over and finishes it', async () => {
     const [ha, hb] = await Promise.all([signIn(a.baseUrl, 'surveyor'), signIn(b.baseUrl, 'surveyor')]);
-    const ROWS = 2000;
+    // Enough rows that writing them spans many parts and progress writes, so the moment is caught on a quiet machine too.
+    const ROWS = 8000;
     const lineName = 'Handover import feeder';
     const id = await postImportJob(a, ha, 'commit', chainCsv(lineName, ROWS, -30.6));
     // Read through B while A's job runs (either may have taken it): progress is in the database.
-    const mid = await waitJob(b, hb, id, (j) => j.job.state === 'running' && j.job.done > ROWS && j.job.done < 2 * ROWS);
+    const mid = await waitJob(b, hb, id, (j) => j.job.state === 'running' && j.job.done > ROWS && j.job.done < 2 * ROWS, 180_000, 20);
     expect(mid.job.total).toBe(2 * ROWS);
     const [{ owner }] = await db<{ owner: string }>('select owner from jobs where id = $1', [id]);
     const holder = owner.includes(`:${a.proc.pid}:`) ? a : b;

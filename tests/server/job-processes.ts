@@ -33,14 +33,15 @@ export async function readImportJob(s: ChildServer, headers: Record<string, stri
 }
 
 /** Polls a job through a server until `ok`; answers the last reading. */
-export async function waitJob(s: ChildServer, headers: Record<string, string>, id: string, ok: (a: JobAnswer) => boolean, timeoutMs = 180_000): Promise<JobAnswer> {
+export async function waitJob(s: ChildServer, headers: Record<string, string>, id: string, ok: (a: JobAnswer) => boolean, timeoutMs = 180_000, pollMs = 100): Promise<JobAnswer> {
   const start = Date.now();
   for (;;) {
     const a = await readImportJob(s, headers, id);
     if (ok(a)) return a;
     if (a.job.state === 'failed') throw new Error(`job failed: ${a.job.error}`);
+    if (a.job.state === 'done') throw new Error(`job finished (${a.job.done}/${a.job.total}) before the awaited moment`);
     if (Date.now() - start > timeoutMs) throw new Error(`job still ${a.job.state} (${a.job.done}/${a.job.total}) after ${timeoutMs} ms`);
-    await new Promise((r) => setTimeout(r, 100));
+    await new Promise((r) => setTimeout(r, pollMs));
   }
 }
 

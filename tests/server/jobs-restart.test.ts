@@ -22,11 +22,13 @@ describe('durable jobs across a restart (SQLite)', () => {
     const first = await startServer(dir, ENV);
     running.push(first);
     let headers = await signIn(first.baseUrl, 'surveyor');
-    const ROWS = 2000;
+    // Enough rows that writing them takes many parts (1 000 rows each) and several progress writes, so the
+    // kill lands mid-way on a quiet machine too.
+    const ROWS = 8000;
     const lineName = 'Restart import feeder';
     const id = await postImportJob(first, headers, 'commit', chainCsv(lineName, ROWS));
     // Killed once it has written part of the file (rows checked, then rows written: past half the total).
-    await waitJob(first, headers, id, (a) => a.job.state === 'running' && a.job.done > ROWS && a.job.done < 2 * ROWS);
+    await waitJob(first, headers, id, (a) => a.job.state === 'running' && a.job.done > ROWS && a.job.done < 2 * ROWS, 180_000, 20);
     first.proc.kill('SIGKILL');
     await first.exited;
     const [mid] = await query<{ state: string; attempts: number }>(path.join(dir, 'roostline.sqlite'), 'select state, attempts from jobs where id = ?', [id]);
