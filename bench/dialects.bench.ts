@@ -21,6 +21,7 @@ import { usesPostgis } from '../server/sql/postgis.ts';
 import { sql } from '../server/sql/query.ts';
 import { postgresBinDir, startCluster } from '../tests/postgres/cluster.ts';
 import type { BenchRow } from './run.ts';
+import { concurrent, pct, tileOf } from './measure.ts';
 import { machineLine, writeResultsSection } from './results.ts';
 
 type Orm = Awaited<ReturnType<typeof initORM>>;
@@ -28,29 +29,9 @@ type Orm = Awaited<ReturnType<typeof initORM>>;
 const SPANS = Number(process.env.BENCH_DIALECT_SPANS ?? 100_000);
 const SAMPLE = 500;
 const ZOOMS = [8, 11, 14] as const;
-const pct = (list: number[], p: number) => [...list].sort((a, b) => a - b)[Math.min(list.length - 1, Math.floor((p / 100) * list.length))];
 const ms = (v: number) => +v.toFixed(1);
 
-function tileOf(lon: number, lat: number, z: number) {
-  const r = (lat * Math.PI) / 180;
-  return { x: Math.floor(((lon + 180) / 360) * 2 ** z), y: Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z) };
-}
 
-async function concurrent(clients: number, total: number, call: (i: number) => Promise<unknown>) {
-  const times: number[] = [];
-  let next = 0;
-  await Promise.all(
-    Array.from({ length: clients }, async () => {
-      while (next < total) {
-        const i = next++;
-        const t = performance.now();
-        await call(i);
-        times.push(performance.now() - t);
-      }
-    }),
-  );
-  return times;
-}
 
 interface Figures {
   seed: string;

@@ -14,6 +14,7 @@ import { DEMO_BBOX } from '../shared/demo-region.ts';
 import { prng } from '../shared/prng.ts';
 import { postgresBinDir, startCluster } from '../tests/postgres/cluster.ts';
 import type { BenchRow } from './run.ts';
+import { pct, tileOf } from './measure.ts';
 
 const SPANS = Number(process.env.BENCH_PG_SPANS ?? 100_000);
 const PER_LINE = 100;
@@ -21,15 +22,7 @@ const STEP_DEG = 0.0018;
 const ROWS = 200;
 const SAMPLES = 30;
 
-const pct = (list: number[], p: number) => {
-  const s = [...list].sort((a, b) => a - b);
-  return s[Math.min(s.length - 1, Math.floor((p / 100) * s.length))];
-};
 const ms = (v: number) => +v.toFixed(1);
-const tileOf = (lon: number, lat: number, z: number) => {
-  const r = (lat * Math.PI) / 180;
-  return { x: Math.floor(((lon + 180) / 360) * 2 ** z), y: Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z) };
-};
 
 export async function run(): Promise<BenchRow[]> {
   const bin = postgresBinDir();

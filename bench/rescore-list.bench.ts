@@ -10,6 +10,7 @@ import { DEMO_PASSWORD } from '../server/seeders/demo-users.ts';
 import { seedScaleInventory } from '../server/seeders/scale-inventory.ts';
 import { assessSpans, assessSpansBulk } from '../server/modules/assessment/assessment.service.ts';
 import type { BenchRow } from './run.ts';
+import { concurrent } from './measure.ts';
 import { openBenchDatabase } from './bench-db.ts';
 
 const SPANS = Number(process.env.BENCH_RL_SPANS ?? 20_000);
@@ -18,20 +19,9 @@ const ms = (v: number) => (v >= 100 ? Math.round(v).toLocaleString('en-GB') : v.
 const rate = (v: number) => Math.round(v).toLocaleString('en-GB');
 
 /** Latencies of `total` calls by `clients` concurrent callers; `cpuMs` is the process CPU time per call (server and client). */
-async function concurrent(clients: number, total: number, call: (i: number) => Promise<unknown>) {
-  const times: number[] & { cpuMs?: number } = [];
+async function timedWithCpu(clients: number, total: number, call: (i: number) => Promise<unknown>) {
   const c0 = process.cpuUsage();
-  let next = 0;
-  await Promise.all(
-    Array.from({ length: clients }, async () => {
-      while (next < total) {
-        const i = next++;
-        const t = performance.now();
-        await call(i);
-        times.push(performance.now() - t);
-      }
-    }),
-  );
+  const times: number[] & { cpuMs?: number } = await concurrent(clients, total, call);
   const c = process.cpuUsage(c0);
   times.cpuMs = (c.user + c.system) / 1000 / total;
   return times;
@@ -69,11 +59,11 @@ export async function run(): Promise<BenchRow[]> {
     const cookie = (signIn.headers.get('set-cookie') ?? '').split(';')[0];
     const get = (q: string) => fetch(`${base}/api/spans?${q}`, { headers: { cookie } }).then((r) => r.json());
     const pages = [1, 2, 3, 5, 8, 13, 21, 34];
-    const bare = await concurrent(10, 200, (i) => conn.execute('select s.id from spans s where s.status = ? order by s.updated_at desc limit 50 offset ?', ['approved', (pages[i % pages.length] - 1) * 50]));
+    const bare = await timedWithCpu(10, 200, (i) => conn.execute('select s.id from spans s where s.status = ? order by s.updated_at desc limit 50 offset ?', ['approved', (pages[i % pages.length] - 1) * 50]));
     const bareLine = `bare SQL p50 ${ms(pct(bare, 50))} / p95 ${ms(pct(bare, 95))} ms; ${ms(bare.cpuMs!)} ms CPU per query`;
-    const same = await concurrent(10, 200, (i) => get(`status=approved&sort=-updatedAt&pageSize=50&page=${pages[i % pages.length]}`));
+    const same = await timedWithCpu(10, 200, (i) => get(`status=approved&sort=-updatedAt&pageSize=50&page=${pages[i % pages.length]}`));
     add('list, 10 clients, 8 pages asked 25 times each', `p50 ${ms(pct(same, 50))} / p95 ${ms(pct(same, 95))} ms; ${ms(same.cpuMs!)} ms CPU per request`, bareLine);
-    const distinct = await concurrent(10, 100, (i) => get(`status=approved&sort=-updatedAt&pageSize=50&page=${40 + i}`));
+    const distinct = await timedWithCpu(10, 100, (i) => get(`status=approved&sort=-updatedAt&pageSize=50&page=${40 + i}`));
     add('list, 10 clients, 100 distinct pages', `p50 ${ms(pct(distinct, 50))} / p95 ${ms(pct(distinct, 95))} ms; ${ms(distinct.cpuMs!)} ms CPU per request`, bareLine);
 
     let rescoring = true;

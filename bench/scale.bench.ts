@@ -18,6 +18,7 @@ import { assessSpan, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS } from '..
 import { findConductor, thermalConductorOf } from '../shared/engineering/conductors.ts';
 import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import type { BenchRow } from './run.ts';
+import { concurrent, pct, tileOf } from './measure.ts';
 import { openBenchDatabase } from './bench-db.ts';
 
 const asked = Number(process.env.BENCH_SCALE_SPANS ?? 10_000);
@@ -26,7 +27,6 @@ const RESCORE_BUDGET_S = Number(process.env.BENCH_RESCORE_S ?? 240);
 /** Seconds the list is read while a second rescore runs. */
 const DURING_BUDGET_S = Number(process.env.BENCH_DURING_S ?? 60);
 const SIZES = [...new Set([...[10_000, 100_000, 1_000_000].filter((n) => n < asked), asked])];
-const pct = (list: number[], p: number) => [...list].sort((a, b) => a - b)[Math.min(list.length - 1, Math.floor((p / 100) * list.length))];
 const f1 = (v: number) => (v >= 100 ? Math.round(v).toLocaleString('en-GB') : v.toFixed(1));
 const mb = (b: number) => Math.round(b / 1048576);
 v8.setFlagsFromString('--expose-gc');
@@ -37,27 +37,7 @@ const heapAfterGc = () => {
   return process.memoryUsage().heapUsed;
 };
 
-function tileOf(lon: number, lat: number, z: number) {
-  const r = (lat * Math.PI) / 180;
-  return { x: Math.floor(((lon + 180) / 360) * 2 ** z), y: Math.floor(((1 - Math.log(Math.tan(r) + 1 / Math.cos(r)) / Math.PI) / 2) * 2 ** z) };
-}
 
-/** Latencies of `total` calls made by `clients` concurrent callers. */
-async function concurrent(clients: number, total: number, call: (i: number) => Promise<unknown>) {
-  const times: number[] = [];
-  let next = 0;
-  await Promise.all(
-    Array.from({ length: clients }, async () => {
-      while (next < total) {
-        const i = next++;
-        const t = performance.now();
-        await call(i);
-        times.push(performance.now() - t);
-      }
-    }),
-  );
-  return times;
-}
 
 function pureRate(n: number) {
   const codes = ['Penguin', 'Partridge', 'Linnet', 'Hawk', 'Dove', 'Drake'];
