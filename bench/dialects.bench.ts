@@ -23,6 +23,7 @@ import { postgresBinDir, startCluster } from '../tests/postgres/cluster.ts';
 import type { BenchRow } from './run.ts';
 import { concurrent, pct, tileOf } from './measure.ts';
 import { machineLine, writeResultsSection } from './results.ts';
+import { fillAssessments } from './bench-db.ts';
 
 type Orm = Awaited<ReturnType<typeof initORM>>;
 
@@ -47,16 +48,10 @@ async function measure(orm: Orm, target: { databasePath?: string; databaseUrl?: 
   const surveyorId = await seedScaleAccounts(em);
   let t = performance.now();
   const seeded = await seedScaleInventory(orm.em.fork(), { spans: SPANS, surveyorIds: [surveyorId] });
-  // Real assessments for a sample; the rest copy a sample row (the one of the same id's last digits).
+  // Real assessments for a sample; every other span copies the first sample span's rows (score and harvest varied by length).
   const sample = (await sql.all<{ id: string }>(em, 'select id from spans order by id limit ?', [SAMPLE])).map((r) => r.id);
   await assessSpansBulk(orm.em.fork(), sample);
-  await sql.run(
-    em,
-    `insert into assessments (span_id, harvester_profile_id, drone_profile_id, perchable, score, harvest_w, charge_time_min, conductor_temp_c, ampacity_a, result, inputs, method_version, settings_version, harvester_version, drone_version, computed_at)
-     select s.id, a.harvester_profile_id, a.drone_profile_id, a.perchable, cast(s.length_m as integer) % 100, (cast(s.length_m as integer) % 400) / 3.0, a.charge_time_min, a.conductor_temp_c, a.ampacity_a, a.result, a.inputs, a.method_version, a.settings_version, a.harvester_version, a.drone_version, a.computed_at
-     from spans s join assessments a on a.span_id = ? where s.id > ?`,
-    [sample[0], sample[sample.length - 1]],
-  );
+  await fillAssessments(em, sample[0]);
   await sql.run(em, 'analyze');
   const seed = `${(SPANS / 1000).toFixed(0)} k spans, ${seeded.lines} lines, ${((performance.now() - t) / 1000).toFixed(1)} s`;
 

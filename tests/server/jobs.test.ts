@@ -163,12 +163,14 @@ describe('durable jobs', () => {
 
   it('when the server stops mid-way, then the job is queued again and the next start finishes it from its checkpoint', async () => {
     const db = await database();
+    // Long enough (at least 2 s) that progress, written at most every 200 ms, shows well before the end.
+    const STEPS = 1000;
     const seen: { attempt: number; doneBefore: number }[] = [];
     const work: JobHandler = async (job, p) => {
       seen.push({ attempt: job.attempt, doneBefore: job.doneBefore });
-      p.setTotal(100);
+      p.setTotal(STEPS);
       p.setDone(job.doneBefore);
-      for (let i = job.doneBefore; i < 100; i++) {
+      for (let i = job.doneBefore; i < STEPS; i++) {
         if (p.aborted) return;
         await tick(2);
         p.advance(1);
@@ -182,11 +184,11 @@ describe('durable jobs', () => {
     const between = (await db.queue({}).get(job.id))!;
     expect(between.state).toBe('queued');
     expect(between.done).toBeGreaterThanOrEqual(10);
-    expect(between.done).toBeLessThan(100);
+    expect(between.done).toBeLessThan(STEPS);
     const restarted = db.queue({ long: work });
     restarted.start();
     const end = await until(() => restarted.get(job.id), (v) => v?.state === 'done');
-    expect(end).toMatchObject({ done: 100, total: 100 });
+    expect(end).toMatchObject({ done: STEPS, total: STEPS });
     expect(seen).toHaveLength(2);
     expect(seen[1].attempt).toBe(2);
     expect(seen[1].doneBefore).toBeGreaterThanOrEqual(between.done - 1);
