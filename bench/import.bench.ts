@@ -6,6 +6,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { parse } from 'csv-parse';
+import type { MikroORM } from '@mikro-orm/sqlite';
 import type { BenchRow } from './run.ts';
 import { openBenchDatabase } from './bench-db.ts';
 import { User } from '../server/modules/auth/user.entity.ts';
@@ -49,18 +50,27 @@ async function measured<T>(work: () => Promise<T>): Promise<{ value: T; ms: numb
   }
 }
 
-export async function run(): Promise<BenchRow[]> {
-  const rows = Number(process.env.BENCH_IMPORT_ROWS ?? 100_000);
+export interface ImportFigures {
+  rows: number;
+  fileMb: number;
+  raw: { ms: number; heapPeakMb: number };
+  dry: { ms: number; heapPeakMb: number };
+  commit: { ms: number; heapPeakMb: number; parts: number };
+}
+
+/**
+ * Times a generated CSV of `rows` new spans: the raw prepared insert of the file's cells (baseline), the streamed dry
+ * run and the streamed commit, into the given database (an empty one, or a seeded inventory for the scale bench).
+ * Checks the dry run planned every row and the commit stored every span.
+ */
+export async function measureImport(orm: MikroORM, surveyorId: string, rows: number): Promise<ImportFigures> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-import-bench-'));
   const file = path.join(dir, 'inventory.csv');
-  writeFile(file, rows);
-  const mb = fs.statSync(file).size / 1024 / 1024;
-  const out: BenchRow[] = [];
-  const db = await openBenchDatabase('import');
   try {
-    const em = db.orm.em.fork();
-    const user = await em.findOneOrFail(User, { id: db.surveyorId });
-    const rate = (ms: number) => Math.round(rows / (ms / 1000));
+    writeFile(file, rows);
+    const em = orm.em.fork();
+    const user = await em.findOneOrFail(User, { id: surveyorId });
+    const [{ n: before }] = await sql.all<{ n: number }>(em, 'select count(*) as n from spans');
 
     // Baseline: the same rows read by csv-parse's stream and inserted raw (prepared, bound) in one transaction.
     await sql.run(em, `create table bench_raw_rows (${HEADER.map((h) => `"${h}" text`).join(', ')})`);
@@ -69,25 +79,41 @@ export async function run(): Promise<BenchRow[]> {
       for await (const r of fs.createReadStream(file).pipe(parse({ from_line: 2 })) as AsyncIterable<string[]>) cells.push(r);
       await bulkInsert(em, 'bench_raw_rows', HEADER, cells);
     });
+    await sql.run(em, 'drop table bench_raw_rows');
 
-    const dry = await measured(() => planCsvStream(db.orm.em.fork(), fs.createReadStream(file)));
+    const dry = await measured(() => planCsvStream(orm.em.fork(), fs.createReadStream(file)));
     if (dry.value.report.summary.create !== rows) throw new Error(`dry run planned ${dry.value.report.summary.create} creates of ${rows}`);
     const commit = await measured(async () => {
-      const cem = db.orm.em.fork();
+      const cem = orm.em.fork();
       const planned = await planCsvStream(cem, fs.createReadStream(file));
       return applyPlanInParts(cem, user, planned.plan);
     });
-    const [{ n }] = await sql.all<{ n: number }>(db.orm.em.fork(), 'select count(*) as n from spans');
-    if (Number(n) !== rows) throw new Error(`commit stored ${n} spans of ${rows}`);
-
-    const base = rate(raw.ms);
-    out.push({ step: `raw prepared insert (baseline)`, rows, fileMb: Number(mb.toFixed(1)), seconds: Number((raw.ms / 1000).toFixed(1)), rowsPerS: base, ofRaw: '100 %', heapPeakMb: Math.round(raw.heapPeakMb) });
-    out.push({ step: 'import dry run (streamed)', rows, fileMb: Number(mb.toFixed(1)), seconds: Number((dry.ms / 1000).toFixed(1)), rowsPerS: rate(dry.ms), ofRaw: `${Math.round((100 * rate(dry.ms)) / base)} %`, heapPeakMb: Math.round(dry.heapPeakMb) });
-    out.push({ step: `import commit (streamed, ${commit.value.parts} parts)`, rows, fileMb: Number(mb.toFixed(1)), seconds: Number((commit.ms / 1000).toFixed(1)), rowsPerS: rate(commit.ms), ofRaw: `${Math.round((100 * rate(commit.ms)) / base)} %`, heapPeakMb: Math.round(commit.heapPeakMb) });
-    console.log(`  ${os.cpus().length} cores, load ${os.loadavg().map((l) => l.toFixed(1)).join(' / ')}; goal: import ≥ 25 % of the raw insert rate`);
+    const [{ n }] = await sql.all<{ n: number }>(orm.em.fork(), 'select count(*) as n from spans');
+    if (Number(n) - Number(before) !== rows) throw new Error(`commit stored ${Number(n) - Number(before)} spans of ${rows}`);
+    return {
+      rows,
+      fileMb: fs.statSync(file).size / 1024 / 1024,
+      raw: { ms: raw.ms, heapPeakMb: raw.heapPeakMb },
+      dry: { ms: dry.ms, heapPeakMb: dry.heapPeakMb },
+      commit: { ms: commit.ms, heapPeakMb: commit.heapPeakMb, parts: commit.value.parts },
+    };
   } finally {
-    await db.close();
     fs.rmSync(dir, { recursive: true, force: true });
   }
-  return out;
+}
+
+export async function run(): Promise<BenchRow[]> {
+  const rows = Number(process.env.BENCH_IMPORT_ROWS ?? 100_000);
+  const db = await openBenchDatabase('import');
+  try {
+    const f = await measureImport(db.orm, db.surveyorId, rows);
+    const rate = (ms: number) => Math.round(rows / (ms / 1000));
+    const base = rate(f.raw.ms);
+    const fileMb = Number(f.fileMb.toFixed(1));
+    const row = (step: string, s: { ms: number; heapPeakMb: number }) => ({ step, rows, fileMb, seconds: Number((s.ms / 1000).toFixed(1)), rowsPerS: rate(s.ms), ofRaw: `${Math.round((100 * rate(s.ms)) / base)} %`, heapPeakMb: Math.round(s.heapPeakMb) });
+    console.log(`  ${os.cpus().length} cores, load ${os.loadavg().map((l) => l.toFixed(1)).join(' / ')}; goal: import ≥ 25 % of the raw insert rate`);
+    return [row('raw prepared insert (baseline)', f.raw), row('import dry run (streamed)', f.dry), row(`import commit (streamed, ${f.commit.parts} parts)`, f.commit)];
+  } finally {
+    await db.close();
+  }
 }

@@ -20,12 +20,15 @@ import { CLAMP_S, LIGHT_QUAD } from '../shared/engineering/demo-profiles.ts';
 import type { BenchRow } from './run.ts';
 import { concurrent, pct, tileOf } from './measure.ts';
 import { fillAssessments, openBenchDatabase } from './bench-db.ts';
+import { measureImport } from './import.bench.ts';
 
 const asked = Number(process.env.BENCH_SCALE_SPANS ?? 10_000);
 /** Seconds a full rescore may run before it is stopped and its rate taken from what it did (a 1 M run stays under 30 min). */
 const RESCORE_BUDGET_S = Number(process.env.BENCH_RESCORE_S ?? 240);
 /** Seconds the list is read while a second rescore runs. */
 const DURING_BUDGET_S = Number(process.env.BENCH_DURING_S ?? 60);
+/** CSV rows imported into each size's inventory (0 leaves the import out). */
+const IMPORT_ROWS = Number(process.env.BENCH_SCALE_IMPORT_ROWS ?? 100_000);
 const SIZES = [...new Set([...[10_000, 100_000, 1_000_000].filter((n) => n < asked), asked])];
 const f1 = (v: number) => (v >= 100 ? Math.round(v).toLocaleString('en-GB') : v.toFixed(1));
 const mb = (b: number) => Math.round(b / 1048576);
@@ -109,7 +112,7 @@ async function measure(spans: number): Promise<Record<string, string>> {
     // in the background, and the list and tile figures below would otherwise run beside that rescore.
     const template = await conn0.execute<{ span_id: string }[]>('select span_id from assessments order by span_id limit 1');
     const filled = template.length ? await fillAssessments(orm.em.fork(), template[0].span_id) : 0;
-    if (filled) out.rescore += `; the ${f1(filled)} spans it did not reach then copy an assessed span's rows, so no start-up rescore runs under the list and tile figures`;
+    if (filled) out.rescore += `; the ${f1(filled / perSpan)} spans it did not reach then copy an assessed span's rows, so no start-up rescore runs under the list and tile figures`;
 
     // List API: filtered, sorted, page of 50, 10 concurrent clients, beside the bare prepared query.
     const { app, close } = createApp({ orm, config: testConfig({ databasePath: db.file }) });
@@ -183,7 +186,14 @@ async function measure(spans: number): Promise<Record<string, string>> {
     }
     out['RSS under tile load'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process); the tile service's own heap ${mb(heapAfterGc() - heapBefore)} MB (snapshot, grid, layers z6–z11, cached tiles)`;
     service.close();
-    out.import = 'not measured yet';
+    // Import of a CSV of new spans into this inventory: streamed dry run and commit beside a raw prepared insert.
+    if (IMPORT_ROWS > 0) {
+      const im = await measureImport(orm, db.surveyorId, IMPORT_ROWS);
+      const rate = (ms: number) => IMPORT_ROWS / (ms / 1000);
+      const of = (ms: number) => `${Math.round((100 * rate(ms)) / rate(im.raw.ms))} % of raw`;
+      out.import = `commit ${f1(rate(im.commit.ms))} rows/s (${of(im.commit.ms)}), heap peak +${Math.round(im.commit.heapPeakMb)} MB; dry run ${f1(rate(im.dry.ms))} rows/s (${of(im.dry.ms)}), heap peak +${Math.round(im.dry.heapPeakMb)} MB (${f1(IMPORT_ROWS)} rows, ${im.fileMb.toFixed(1)} MB)`;
+      out['import baseline'] = `raw prepared insert ${f1(rate(im.raw.ms))} rows/s, heap peak +${Math.round(im.raw.heapPeakMb)} MB`;
+    }
     out['load average (1 min)'] = `${load0.toFixed(1)} at the start, ${os.loadavg()[0].toFixed(1)} at the end of this size (2 cores; ${f1((performance.now() - began) / 60_000)} min for this size)`;
   } finally {
     await db.close();
@@ -215,6 +225,7 @@ function writeTable(results: Map<number, Record<string, string>>): BenchRow[] {
   const file = path.resolve('bench/RESULTS.md');
   const before = fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '';
   const others = before.indexOf('<!-- ');
-  fs.writeFileSync(file, note + header + body + '\n' + (others >= 0 ? `\n${before.slice(others)}` : ''));
+  const how = `\nRun with \`npm run bench -- --spans ${SIZES[SIZES.length - 1]}\`: each size seeded in full; a full rescore may run ${RESCORE_BUDGET_S} s (\`BENCH_RESCORE_S\`) and its rate is taken from what it did; "list during rescore" reads for the first ${DURING_BUDGET_S} s of a second rescore (\`BENCH_DURING_S\`); the import brings ${IMPORT_ROWS.toLocaleString('en-GB')} new CSV rows into each size's inventory (\`BENCH_SCALE_IMPORT_ROWS\`). Rows marked "bench and server in one process" include the bench's own seeding and client.\n`;
+  fs.writeFileSync(file, note + header + body + '\n' + how + (others >= 0 ? `\n${before.slice(others)}` : ''));
   return rows;
 }
