@@ -45,18 +45,52 @@ function encode(v: unknown, pg: boolean, texts: TextCache): unknown {
 
 const DELETE_CHUNK = 900;
 
+/** The statements of a replace, with their values already encoded (built on the main thread ahead of the write). */
+export interface AssessmentWrite {
+  pg: boolean;
+  spanIds: readonly string[];
+  inserts: { sql: string; params: unknown[] }[];
+}
+
 /**
- * Replaces the stored rows of the given spans with `rows` in one transaction: the spans' old rows are deleted
- * (spans asked for but absent from `rows` are left without any), then the rows are inserted with multi-row
- * prepared statements.
+ * Encodes `rows` for a replace of the given spans' stored rows: multi-row insert statements with their bound values.
+ * Nothing touches the database, so the next batch can be encoded while the previous one is written.
  */
-export async function replaceAssessmentRows(em: EntityManager, spanIds: readonly string[], rows: readonly Partial<Assessment>[]): Promise<void> {
+export function encodeAssessmentWrite(em: EntityManager, spanIds: readonly string[], rows: readonly Partial<Assessment>[]): AssessmentWrite {
   const per = rowsPerStatement(COLUMNS.length);
-  const insertOf = (n: number) =>
-    `insert into "assessments" (${COLUMNS.map(([c]) => `"${c}"`).join(',')}) values ${Array.from({ length: n }, () => `(${marks(COLUMNS.length)})`).join(',')}`;
-  const full = insertOf(per);
   const pg = isPostgres(em);
   const texts: TextCache = new WeakMap();
+  const inserts: AssessmentWrite['inserts'] = [];
+  for (let i = 0; i < rows.length; i += per) {
+    const end = Math.min(rows.length, i + per);
+    const params: unknown[] = new Array((end - i) * COLUMNS.length);
+    let k = 0;
+    // The result in its stored (compact) form, as the entity's column type writes it.
+    for (let j = i; j < end; j++) {
+      const r = rows[j];
+      for (const [, prop] of COLUMNS) params[k++] = encode(prop === 'result' ? encodeResult(r.result) : r[prop], pg, texts);
+    }
+    inserts.push({ sql: insertOf(end - i), params });
+  }
+  return { pg, spanIds, inserts };
+}
+
+const insertSqlBySize = new Map<number, string>();
+function insertOf(n: number): string {
+  let text = insertSqlBySize.get(n);
+  if (text === undefined) {
+    text = `insert into "assessments" (${COLUMNS.map(([c]) => `"${c}"`).join(',')}) values ${Array.from({ length: n }, () => `(${marks(COLUMNS.length)})`).join(',')}`;
+    if (insertSqlBySize.size < 64) insertSqlBySize.set(n, text);
+  }
+  return text;
+}
+
+/**
+ * Runs an encoded replace in one transaction: the spans' old rows are deleted (spans asked for but absent from the
+ * rows are left without any), then the rows are inserted with multi-row prepared statements.
+ */
+export async function writeAssessmentRows(em: EntityManager, write: AssessmentWrite): Promise<void> {
+  const { pg, spanIds, inserts } = write;
   await inTransaction(em, async (run) => {
     // Writers of the same spans' rows (a request, a background rescore, another process) take turns on PostgreSQL;
     // on SQLite the one connection already serialises them.
@@ -67,16 +101,14 @@ export async function replaceAssessmentRows(em: EntityManager, spanIds: readonly
       const ids = spanIds.slice(i, i + DELETE_CHUNK);
       await run(`delete from "assessments" where "span_id" in (${marks(ids.length)})`, ids as unknown[]);
     }
-    for (let i = 0; i < rows.length; i += per) {
-      const chunk = rows.slice(i, i + per);
-      const params: unknown[] = new Array(chunk.length * COLUMNS.length);
-      let k = 0;
-      // The result in its stored (compact) form, as the entity's column type writes it.
-      for (const r of chunk) for (const [, prop] of COLUMNS) params[k++] = encode(prop === 'result' ? encodeResult(r.result) : r[prop], pg, texts);
-      await run(chunk.length === per ? full : insertOf(chunk.length), params);
-    }
+    for (const ins of inserts) await run(ins.sql, ins.params);
     if (!pg) noteAssessmentOnlyChanges(em, (await changeCounter(run)) - before);
   });
+}
+
+/** Replaces the stored rows of the given spans with `rows` in one transaction (encodeAssessmentWrite + writeAssessmentRows). */
+export async function replaceAssessmentRows(em: EntityManager, spanIds: readonly string[], rows: readonly Partial<Assessment>[]): Promise<void> {
+  await writeAssessmentRows(em, encodeAssessmentWrite(em, spanIds, rows));
 }
 
 /** Rows of spans that were deleted meanwhile. */

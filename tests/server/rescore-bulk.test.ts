@@ -6,7 +6,7 @@ import { initORM } from '../../server/db.ts';
 import { seedDemoUsers } from '../../server/seeders/demo-users.ts';
 import { seedScaleInventory } from '../../server/seeders/scale-inventory.ts';
 import { ensureAssessmentDefaults } from '../../server/modules/assessment/profiles.service.ts';
-import { assessSpans, assessSpansBulk } from '../../server/modules/assessment/assessment.service.ts';
+import { assessSpans, assessSpansBulk, registerAssessedListener } from '../../server/modules/assessment/assessment.service.ts';
 import { Zone } from '../../server/modules/zones/zone.entity.ts';
 import { User } from '../../server/modules/auth/user.entity.ts';
 import { assessSpan, createAssessmentMemo, DEFAULT_DESIGN_WEATHER, DEFAULT_SCORING_SETTINGS, type SpanAssessmentInput } from '../../shared/engineering/assessment.ts';
@@ -68,6 +68,39 @@ describe('bulk rescoring', () => {
     await assessSpansBulk(orm.em.fork(), asked, { now: later });
     expect(await stored()).toEqual(plain);
     expect(plain.some((r) => r.span_id === 'sp-gone')).toBe(false);
+  }, 120_000);
+
+  it('when a run is stopped after its first batch while the next batch is already read and computed, then only the first batch is stored, and each listener sees its own batch committed and no later one', async () => {
+    const conn = () => orm.em.fork().getConnection();
+    await conn().execute('delete from assessments');
+    const seen: { ids: string[]; storedSpans: string[]; rowsPerSpan: number[] }[] = [];
+    const off = registerAssessedListener(async (_em, spanIds) => {
+      const rows = await conn().execute<{ span_id: string; n: number }[]>('select span_id, count(*) as n from assessments group by span_id order by span_id');
+      seen.push({ ids: [...spanIds].sort(), storedSpans: rows.map((r) => r.span_id), rowsPerSpan: [...new Set(rows.map((r) => Number(r.n)))] });
+    });
+    try {
+      let progressed = 0;
+      const n = await assessSpansBulk(orm.em.fork(), undefined, { now: NOW, clearBetweenBatches: true, onBatch: (k) => (progressed += k), shouldStop: () => seen.length >= 1 });
+      expect(seen).toHaveLength(1);
+      expect(seen[0].ids).toHaveLength(500);
+      expect(n).toBe(500);
+      expect(progressed).toBe(500);
+      // When the listener ran, exactly its batch was stored, every span with one row per active pair.
+      expect(seen[0].storedSpans).toEqual(seen[0].ids);
+      expect(seen[0].rowsPerSpan).toHaveLength(1);
+      // The next batch, built while the first was written, was never written.
+      const after = await stored();
+      expect([...new Set(after.map((r) => r.span_id as string))].sort()).toEqual(seen[0].ids);
+
+      // A full run: every listener call sees its own batch and those before it, never a later one.
+      await conn().execute('delete from assessments');
+      seen.length = 0;
+      expect(await assessSpansBulk(orm.em.fork(), undefined, { now: NOW })).toBe(800);
+      expect(seen.map((s) => s.ids.length)).toEqual([500, 300]);
+      expect(seen[1].storedSpans).toEqual([...seen[0].ids, ...seen[1].ids].sort());
+    } finally {
+      off();
+    }
   }, 120_000);
 });
 

@@ -28,7 +28,7 @@ import { Assessment } from './assessment.entity.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
 import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneModel, harvesterModel } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
-import { replaceAssessmentRows, deleteOrphanAssessments, readAssessmentSummaries } from '../../sql/assessments.ts';
+import { encodeAssessmentWrite, writeAssessmentRows, deleteOrphanAssessments, readAssessmentSummaries } from '../../sql/assessments.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
 import { sql } from '../../sql/query.ts';
 import { lockForTransaction } from '../../sql/dialect.ts';
@@ -384,38 +384,66 @@ export async function assessSpansBulk(em: EntityManager, spanIds?: readonly stri
   const fast = { pairs: pairModelsOf(harvesters, drones), memo: createAssessmentMemo() };
   let assessed = 0;
 
-  const runBatch = async (spans: Span[], ids: readonly string[]) => {
-    const records = await recordsFor(em, spans, lineCache, zonesOf);
-    const rows = assessmentRows(records, harvesters, drones, settings, settingsVersion, now, fast);
+  // Batches go through a two-stage pipeline: while one batch's transaction runs (its statements run off the main
+  // thread), the next batch, read before that transaction began, has its rows computed and encoded. Reads never run
+  // inside a write: each batch is read before the previous batch's transaction starts. Writes keep their order,
+  // one transaction per batch; progress, listeners and stopping happen after each commit as before.
+  let after = '';
+  let offset = 0;
+  const readNext = async (): Promise<{ spans: Span[]; ids: readonly string[]; records: SpanRecords[] } | null> => {
+    let spans: Span[];
+    let ids: readonly string[];
+    if (spanIds) {
+      if (offset >= spanIds.length) return null;
+      ids = spanIds.slice(offset, offset + BULK_BATCH);
+      offset += BULK_BATCH;
+      spans = await em.find(Span, { id: { $in: ids as string[] } });
+    } else {
+      const where = opts.lineId ? { lineId: opts.lineId, id: { $gt: after } } : { id: { $gt: after } };
+      spans = await em.find(Span, where, { orderBy: { id: 'asc' }, limit: BULK_BATCH });
+      if (spans.length === 0) return null;
+      after = spans[spans.length - 1].id;
+      ids = spans.map((s) => s.id);
+    }
+    return { spans, ids, records: await recordsFor(em, spans, lineCache, zonesOf) };
+  };
+  const build = async (batch: { ids: readonly string[]; records: SpanRecords[] }) => {
+    const rows: Partial<Assessment>[] = [];
+    for (let i = 0; i < batch.records.length; i += BUILD_SLICE) {
+      // Lets the running transaction's finished statement hand the next one to the database between slices.
+      if (i) await yieldToIo();
+      for (const r of assessmentRows(batch.records.slice(i, i + BUILD_SLICE), harvesters, drones, settings, settingsVersion, now, fast)) rows.push(r);
+    }
+    await yieldToIo();
     // Spans asked for that no longer exist lose their rows in the same transaction.
-    await replaceAssessmentRows(em, ids, rows);
-    assessed += records.length;
-    await notifyAssessed(em, [...ids]);
-    opts.onBatch?.(spans.length);
-    if (opts.clearBetweenBatches) em.clear();
-    await new Promise((r) => setImmediate(r));
+    return encodeAssessmentWrite(em, batch.ids, rows);
   };
 
-  if (spanIds) {
-    for (let i = 0; i < spanIds.length; i += BULK_BATCH) {
-      if (opts.shouldStop?.()) break;
-      const ids = spanIds.slice(i, i + BULK_BATCH);
-      await runBatch(await em.find(Span, { id: { $in: ids } }), ids);
-    }
-    return assessed;
-  }
-  let after = '';
-  for (;;) {
+  if (opts.shouldStop?.()) return assessed;
+  let batch = await readNext();
+  let write = batch ? await build(batch) : null;
+  while (batch && write) {
     if (opts.shouldStop?.()) break;
-    const where = opts.lineId ? { lineId: opts.lineId, id: { $gt: after } } : { id: { $gt: after } };
-    const spans = await em.find(Span, where, { orderBy: { id: 'asc' }, limit: BULK_BATCH });
-    if (spans.length === 0) break;
-    after = spans[spans.length - 1].id;
-    await runBatch(spans, spans.map((s) => s.id));
+    const next = await readNext();
+    const writing = writeAssessmentRows(em, write);
+    // A failed build must not leave the write unawaited.
+    const nextWrite = next ? await build(next).catch(async (err) => { await writing.catch(() => {}); throw err; }) : null;
+    await writing;
+    assessed += batch.records.length;
+    await notifyAssessed(em, [...batch.ids]);
+    opts.onBatch?.(batch.spans.length);
+    if (opts.clearBetweenBatches) em.clear();
+    await new Promise((r) => setImmediate(r));
+    batch = next;
+    write = nextWrite;
   }
-  if (!opts.lineId && !opts.shouldStop?.()) await deleteOrphanAssessments(em);
+  if (!spanIds && !opts.lineId && !opts.shouldStop?.()) await deleteOrphanAssessments(em);
   return assessed;
 }
+
+/** Spans whose rows are computed between two turns of the event loop while a batch is written. */
+const BUILD_SLICE = 50;
+const yieldToIo = () => new Promise<void>((r) => setImmediate(r));
 
 /** Deletes the stored rows of a span (when it is deleted). */
 export async function forgetSpan(em: EntityManager, spanId: string) {
