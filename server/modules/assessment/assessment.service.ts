@@ -30,17 +30,23 @@ import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneMode
 import { AppError } from '../../http/errors.ts';
 import { encodeAssessmentWrite, writeAssessmentRows, deleteOrphanAssessments, readAssessmentSummaries } from '../../sql/assessments.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
-import { sql } from '../../sql/query.ts';
+import { marks, sql } from '../../sql/query.ts';
 import { lockForTransaction } from '../../sql/dialect.ts';
 
 const BATCH = 500;
 const DAY_MS = 86_400_000;
 
+/** What an assessment reads of a structure. */
+export type StructurePosition = Pick<Structure, 'id' | 'lat' | 'lon'>;
+
+/** Ids per IN list of a batch read (under every database's bound-parameter limit). */
+const READ_CHUNK = 900;
+
 export interface SpanRecords {
   span: Span;
   line: Line;
-  from: Structure | null;
-  to: Structure | null;
+  from: StructurePosition | null;
+  to: StructurePosition | null;
   hazards: Hazard[];
   zones: { inExclude: boolean; inCautionCount: number; zoneIds: string[] };
 }
@@ -165,7 +171,7 @@ function zoneIndex(zones: Zone[], at: Date) {
   };
 }
 
-function lineStringOf(from: Structure | null, to: Structure | null): LineString | null {
+function lineStringOf(from: StructurePosition | null, to: StructurePosition | null): LineString | null {
   if (!from || !to) return null;
   return { type: 'LineString', coordinates: [[from.lon, from.lat], [to.lon, to.lat]] };
 }
@@ -176,7 +182,14 @@ async function recordsFor(em: EntityManager, spans: Span[], lineCache: Map<strin
   // A line with a metered series for this month is assessed on it instead of its estimate (load evidence).
   if (missingLines.length) for (const l of await withMeasuredLoad(em, await em.find(Line, { id: { $in: missingLines } }))) lineCache.set(l.id, l);
   const structureIds = [...new Set(spans.flatMap((s) => [s.fromStructureId, s.toStructureId]))];
-  const structures = new Map((await em.find(Structure, { id: { $in: structureIds } })).map((s) => [s.id, s]));
+  // Only the positions are read (the zone test's line); raw rows, so the identity map takes no structures.
+  const structures = new Map<string, StructurePosition>();
+  for (let i = 0; i < structureIds.length; i += READ_CHUNK) {
+    const ids = structureIds.slice(i, i + READ_CHUNK);
+    for (const r of await sql.all<StructurePosition>(em, `select id, lat, lon from structures where id in (${marks(ids.length)})`, ids)) {
+      structures.set(r.id, { id: r.id, lat: Number(r.lat), lon: Number(r.lon) });
+    }
+  }
   const hazards = await em.find(Hazard, { spanId: { $in: spans.map((s) => s.id) } });
   const hazardsBySpan = new Map<string, Hazard[]>();
   for (const h of hazards) hazardsBySpan.set(h.spanId, [...(hazardsBySpan.get(h.spanId) ?? []), h]);
