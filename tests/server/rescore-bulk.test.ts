@@ -102,6 +102,38 @@ describe('bulk rescoring', () => {
       off();
     }
   }, 120_000);
+
+  it('when a request edits a span of the next batch after that batch was read, then its stored rows come from the edited record, not the one the batch read', async () => {
+    const conn = () => orm.em.fork().getConnection();
+    await conn().execute('delete from assessments');
+    const ids = (await conn().execute<{ id: string }[]>('select id from spans order by id')).map((r) => r.id);
+    const target = ids[650]; // in the second batch of 500
+    const [before] = await conn().execute<{ clearance_m: number | null; version: number }[]>('select clearance_m, version from spans where id = ?', [target]);
+    let edited = false;
+    // The first batch's listener runs after the second batch was read and computed: an edit made then is one the
+    // second batch's rows do not know.
+    const off = registerAssessedListener(async () => {
+      if (edited) return;
+      edited = true;
+      await conn().execute('update spans set clearance_m = ?, version = version + 1 where id = ?', [0.5, target]);
+    });
+    try {
+      expect(await assessSpansBulk(orm.em.fork(), undefined, { now: NOW })).toBe(800);
+      expect(edited).toBe(true);
+      const rowsOf = async () => (await stored()).filter((r) => r.span_id === target);
+      const bulk = await rowsOf();
+      expect(bulk.length).toBeGreaterThan(0);
+      // 0.5 m is below the code ground clearance at any voltage (NESC Table 232-1 as coded in shared/engineering/clearance.ts: 18.5 ft ≈ 5.64 m at the least), so no pair perches.
+      expect(bulk.every((r) => !r.perchable)).toBe(true);
+      expect(bulk.every((r) => JSON.parse(String(r.inputs)).span.clearanceM === 0.5)).toBe(true);
+      // The same rows as the per-span path gives from the edited record.
+      await assessSpans(orm.em.fork(), [target], { now: NOW });
+      expect(await rowsOf()).toEqual(bulk);
+    } finally {
+      off();
+      await conn().execute('update spans set clearance_m = ?, version = ? where id = ?', [before.clearance_m, before.version, target]);
+    }
+  }, 120_000);
 });
 
 describe('assessment memo', () => {

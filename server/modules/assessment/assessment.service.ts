@@ -442,6 +442,10 @@ export async function assessSpansBulk(em: EntityManager, spanIds?: readonly stri
     // A failed build must not leave the write unawaited.
     const nextWrite = next ? await build(next).catch(async (err) => { await writing.catch(() => {}); throw err; }) : null;
     await writing;
+    // A span a request wrote after this batch was read has been assessed by that request from its new record,
+    // and this batch's rows for it came from the old one: such spans are assessed again from what is stored now.
+    const stale = await changedSince(em, batch.records);
+    if (stale.length) await assessSpans(em.fork(), stale, { now });
     assessed += batch.records.length;
     await notifyAssessed(em, [...batch.ids]);
     opts.onBatch?.(batch.spans.length);
@@ -452,6 +456,20 @@ export async function assessSpansBulk(em: EntityManager, spanIds?: readonly stri
   }
   if (!spanIds && !opts.lineId && !opts.shouldStop?.()) await deleteOrphanAssessments(em);
   return assessed;
+}
+
+/** Spans of a batch whose stored version is no longer the one the batch was computed from (deleted ones are not). */
+async function changedSince(em: EntityManager, records: readonly SpanRecords[]): Promise<string[]> {
+  const read = new Map(records.map((r) => [r.span.id, r.span.version]));
+  const out: string[] = [];
+  const all = [...read.keys()];
+  for (let i = 0; i < all.length; i += 900) {
+    const ids = all.slice(i, i + 900);
+    for (const row of await sql.all<{ id: string; version: number }>(em, `select id, version from spans where id in (${marks(ids.length)})`, ids)) {
+      if (Number(row.version) !== read.get(row.id)) out.push(row.id);
+    }
+  }
+  return out;
 }
 
 /** Spans whose rows are computed between two turns of the event loop while a batch is written. */
