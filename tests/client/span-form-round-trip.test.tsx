@@ -81,9 +81,10 @@ function fakeApi() {
   return { bodies, release };
 }
 
-function renderForm() {
-  const qc = new QueryClient({ defaultOptions: { queries: { retry: false } } });
+function renderForm(seed?: (qc: QueryClient) => void) {
+  const qc = new QueryClient({ defaultOptions: { queries: { retry: false, staleTime: 30_000 } } });
   qc.setQueryData(['me'], me);
+  seed?.(qc);
   const router = createMemoryRouter([{ path: '/field/spans/:id/edit', element: <SpanFormPage /> }, { path: '/field', element: <p>queue</p> }], {
     initialEntries: ['/field/spans/SP1/edit'],
   });
@@ -146,5 +147,17 @@ describe('span form round trip', () => {
       surveyDate: '2026-11-02',
       hazards: [{ id: 'H1', kindId: 'road-crossing', severity: 'high', positionAlongM: 40, note: 'County road' }],
     });
+  });
+
+  it("when the kept list of the line's structures predates the to-structure, then the form still shows it and reads the list again", async () => {
+    const api = fakeApi();
+    api.release();
+    // A copy kept on the device (fresh, so nothing would refetch it) read before the second structure was added.
+    renderForm((qc) => qc.setQueryData(['structures', 'L1'], [structures[0]]));
+    const to = await screen.findByLabelText('To structure');
+    expect(selected(to)).toContain('KR-002');
+    await waitFor(() => expect(selected(screen.getByLabelText('To structure'))).toBe('KR-002 · Pole'));
+    expect(api.bodies.filter((b) => b.url.startsWith('/api/structures')).length).toBe(1);
+    expect(selected(screen.getByLabelText('From structure'))).toBe('KR-001 · Pole');
   });
 });

@@ -147,6 +147,18 @@ function SpanForm({ saved: initial, queued, photoSlot }: { saved: Span | null; q
     () => [...(structures.data ?? []), ...offlineStructures.filter((o) => !structures.data?.some((s) => s.id === o.id))].sort((a, b) => a.label.localeCompare(b.label, undefined, { numeric: true })),
     [structures.data, offlineStructures],
   );
+  // A kept copy of the line's structures (read before a structure was added) may lack one the form has chosen:
+  // read the list again, once per missing structure, while the saved record's label stands in for it.
+  const askedFor = useRef(new Set<string>());
+  const fromId = watch('fromStructureId');
+  const toId = watch('toStructureId');
+  useEffect(() => {
+    if (!structures.data || structures.isFetching) return;
+    const missing = [fromId, toId].filter((v) => v && !isLocalId(v) && !askedFor.current.has(v) && !structureList.some((s) => s.id === v));
+    if (!missing.length) return;
+    for (const v of missing) askedFor.current.add(v);
+    void structures.refetch();
+  }, [fromId, toId, structures, structureList]);
   // A structure made offline has been sent: the form now names it by the server's id.
   useEffect(() => {
     for (const name of ['fromStructureId', 'toStructureId'] as const) {
@@ -414,6 +426,7 @@ function SpanForm({ saved: initial, queued, photoSlot }: { saved: Span | null; q
                 label={name === 'fromStructureId' ? 'From structure' : 'To structure'}
                 lineId={lineId}
                 structures={structureList}
+                savedLabel={saved && watch(name) === saved[name] ? (name === 'fromStructureId' ? saved.fromStructureLabel : saved.toStructureLabel) : undefined}
                 loading={structures.isPending}
                 value={watch(name)}
                 onChange={(v) => {

@@ -21,6 +21,8 @@ interface Props {
   label: string;
   lineId: string;
   structures: Structure[];
+  /** The label the saved record gives its chosen structure, shown while the line's list does not hold it yet. */
+  savedLabel?: string;
   loading: boolean;
   value: string;
   onChange: (structureId: string) => void;
@@ -30,9 +32,10 @@ interface Props {
   unitSystem: UnitSystem;
 }
 
-export function StructurePicker({ id, label, lineId, structures, loading, value, onChange, onBlur, disabled, error, unitSystem }: Props) {
+export function StructurePicker({ id, label, lineId, structures, savedLabel, loading, value, onChange, onBlur, disabled, error, unitSystem }: Props) {
   const [adding, setAdding] = useState(false);
   const [kept, setKept] = useState(false);
+  const listed = structures.some((s) => s.id === value);
   return (
     <div>
       <label className="field-label" htmlFor={id}>
@@ -54,6 +57,7 @@ export function StructurePicker({ id, label, lineId, structures, loading, value,
               {structureName(s)}
             </option>
           ))}
+          {value && !listed && savedLabel && <option value={value}>{savedLabel}</option>}
         </select>
         <button type="button" className="btn-ghost min-h-12 shrink-0" disabled={disabled || !lineId} onClick={() => setAdding((a) => !a)} aria-expanded={adding}>
           {adding ? 'Close' : 'Add here'}
