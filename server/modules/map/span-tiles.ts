@@ -3,6 +3,8 @@
 // the spans that touch it, and a generalised tile (below FULL_DETAIL_ZOOM) reads its cells from that zoom's layer,
 // built once per data version and patched on edits. Until the snapshot is read, tiles from DIRECT_MIN_ZOOM up come
 // from their own box query. Tiles are cached per data version; any span/structure/assessment change starts a new one.
+// On SQLite the cached tiles are kept in a file beside the database when the service closes (tile-store.ts); after
+// a restart, until the snapshot is read, a kept tile is served while the database still has its fingerprint.
 //
 // Interface (kept stable for other tile paths behind it, e.g. a PostGIS one): tile(), bounds(), syncNow(),
 // invalidate(), close(); plainTile(), layersReady() and stats for tests and the bench.
@@ -15,6 +17,8 @@ import { dataVersion } from '../../sql/data-version.ts';
 import { marks, sql } from '../../sql/query.ts';
 import { usesPostgis } from '../../sql/postgis.ts';
 import { postgisSpanTile } from './postgis-tiles.ts';
+import { isPostgres } from '../../sql/dialect.ts';
+import { readStoredTiles, writeStoredTiles, type StoredTiles } from './tile-store.ts';
 
 export const TILE_EXTENT = 4096;
 /** Tile buffer in tile units (as in the basemap): features this close outside the tile are included. */
@@ -175,6 +179,8 @@ export interface TileStats {
   layerBuilds: number;
   /** Tiles answered from their own box query while the snapshot (or that zoom's layer) was still being built. */
   directTiles: number;
+  /** Tiles answered from those kept when the service last closed (the database unchanged since). */
+  keptTiles: number;
 }
 
 type VtFeature = { type: 1 | 2; geometry: unknown; tags: Record<string, unknown> };
@@ -195,12 +201,23 @@ export class SpanTileService {
   private defaultPair: Promise<TilePair | null> | null = null;
   /** The fingerprint the cached PostGIS tiles are current with (null: none made since the last new version). */
   private postgisFp: Fingerprint | null = null;
-  readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0, layerBuilds: 0, directTiles: 0 };
+  readonly stats: TileStats = { builds: 0, hits: 0, snapshotLoads: 0, layerBuilds: 0, directTiles: 0, keptTiles: 0 };
+  /** The file the tiles are kept in between runs (SQLite on a file only). */
+  private readonly keptFile: string | null;
+  private kept: Promise<StoredTiles | null> | null = null;
+  /** Set once anything may have changed the tiles through this service: kept tiles are not served after it. */
+  private keptOff = false;
+  /** The database's data version when its fingerprint was last read for the kept tiles, and that fingerprint. */
+  private keptCheck: { version: string; fp: string } | null = null;
 
-  constructor(private readonly orm: MikroORM) {}
+  constructor(private readonly orm: MikroORM) {
+    const dbName = String(orm.config.get('dbName') ?? '');
+    this.keptFile = !isPostgres(orm.em) && dbName && dbName !== ':memory:' && !dbName.startsWith('file:') ? `${dbName}.tiles` : null;
+  }
 
   /** Starts a new data version: every cached tile and snapshot is dropped. */
   invalidate() {
+    this.keptOff = true;
     this.version += 1;
     this.snapshots.clear();
     this.loaded.clear();
@@ -234,6 +251,12 @@ export class SpanTileService {
    * Span writes call it right after saving; a background watcher calls it every FINGERPRINT_EVERY_MS.
    */
   syncNow(): Promise<void> {
+    // A write through this app: kept tiles are not trusted from here on (the fingerprint would catch it too).
+    this.keptOff = true;
+    return this.syncInBackground();
+  }
+
+  private syncInBackground(): Promise<void> {
     this.syncing = this.syncing.then(() => this.sync()).catch((err) => console.error('span tile sync failed', err));
     return this.syncing;
   }
@@ -340,15 +363,53 @@ export class SpanTileService {
    */
   private ensureWatcher() {
     if (this.watcher || this.closed) return;
-    this.watcher = setInterval(() => void this.syncNow(), FINGERPRINT_EVERY_MS);
+    this.watcher = setInterval(() => void this.syncInBackground(), FINGERPRINT_EVERY_MS);
     this.watcher.unref();
   }
 
-  /** Stops the background watcher (the app is closing). */
+  /** Stops the background watcher (the app is closing) and keeps the cached tiles for the next start. */
   close() {
+    if (this.closed) return;
     this.closed = true;
     if (this.watcher) clearInterval(this.watcher);
     this.watcher = null;
+    try {
+      this.keepTiles();
+    } catch (err) {
+      console.error('span tiles not kept for the next start', err);
+    }
+  }
+
+  /** Writes the cached tiles made from read snapshots, each snapshot key with the fingerprint its tiles came from. */
+  private keepTiles() {
+    if (!this.keptFile) return;
+    const fps: Record<string, string> = {};
+    for (const [key, snap] of this.loaded) if (this.snapshots.has(key)) fps[key] = JSON.stringify(snap.fp);
+    const tiles = new Map<string, Buffer>();
+    for (const [key, bytes] of this.cache) {
+      if (fps[key.slice(0, key.indexOf('/'))] !== undefined) tiles.set(key, bytes);
+    }
+    if (tiles.size) writeStoredTiles(this.keptFile, { fps, tiles });
+  }
+
+  /**
+   * A tile kept when the service last closed, while this start has no snapshot (or layer) to make it from: only
+   * while nothing was written through this service and the database's fingerprint is the one the tile was made
+   * from (read again whenever the database's data version moved, so another process's commit counts too).
+   */
+  private async keptTile(key: string): Promise<Buffer | null> {
+    if (!this.keptFile || this.keptOff) return null;
+    this.kept ??= readStoredTiles(this.keptFile);
+    const kept = await this.kept;
+    const bytes = kept?.tiles.get(key);
+    const wanted = kept?.fps[key.slice(0, key.indexOf('/'))];
+    if (!bytes || !wanted) return null;
+    const em = this.orm.em.fork();
+    const version = await dataVersion(em);
+    if (this.keptCheck?.version !== version) this.keptCheck = { version, fp: JSON.stringify(await this.readFingerprint(em)) };
+    if (this.keptOff || this.keptCheck.fp !== wanted) return null;
+    this.stats.keptTiles += 1;
+    return bytes;
   }
 
   private async resolvePair(em: EntityManager, pair: Partial<TilePair>): Promise<TilePair | null> {
@@ -440,12 +501,14 @@ export class SpanTileService {
     // Read in chunks in id order, so the first tiles' own queries (and every other request) get the connection
     // between chunks instead of waiting for the whole read.
     for (let after = ''; ; ) {
+      if (this.closed) throw new Error('span tile service closed');
       const rows = await this.spanRows(em, pair, undefined, { id: after, limit: SNAPSHOT_CHUNK });
       for (const r of rows) upsertSpan(snap, r);
       if (rows.length < SNAPSHOT_CHUNK) break;
       after = rows[rows.length - 1].id;
     }
     for (let after = ''; ; ) {
+      if (this.closed) throw new Error('span tile service closed');
       const rows = await sql.all<any>(em, 'select id, line_id, lon, lat, kind, label from structures where id > ? order by id limit ?', [after, SNAPSHOT_CHUNK]);
       for (const t of rows) upsertStructure(snap, t);
       if (rows.length < SNAPSHOT_CHUNK) break;
@@ -495,6 +558,14 @@ export class SpanTileService {
     const viaPostgis = z >= FULL_DETAIL_ZOOM ? await this.postgisTile(resolved, z, x, y, filters) : null;
     let snap = this.loaded.get(snapKey);
     const layered = z < FULL_DETAIL_ZOOM && !filters.lineId && filters.minHarvestW === undefined && filters.minScore === undefined;
+    if (!viaPostgis && (!snap || (layered && !snap.layers[z]?.isBuilt))) {
+      const kept = await this.keptTile(key);
+      if (kept) {
+        if (!snap) void this.loadSnapshot(resolved).catch(() => undefined);
+        else void layerOf(snap, z, this.stats);
+        return kept;
+      }
+    }
     // Not read yet (a start) or this zoom's layer still building: from its own query, not cached (no sync watches
     // the database before a snapshot is read), and the snapshot is read meanwhile.
     if (!viaPostgis && z >= DIRECT_MIN_ZOOM && (!snap || (layered && !snap.layers[z]?.isBuilt))) {
