@@ -10,6 +10,8 @@ import { Assessment } from '../../server/modules/assessment/assessment.entity.ts
 import { sql } from '../../server/sql/query.ts';
 import { activePairs, perchStandings, standingOf } from '../../server/modules/assessment/perchable.ts';
 import { listSpans, type SpanFilter } from '../../server/modules/inventory/spans.query.ts';
+import { spanViewOf } from '../../server/modules/inventory/inventory.service.ts';
+import { Span } from '../../server/modules/inventory/span.entity.ts';
 
 let t: TestApp;
 let planner: Client;
@@ -161,4 +163,70 @@ describe('span list keyset pages', () => {
       }
     }
   });
+});
+
+describe('span list with several active pairs', () => {
+  /** The page as the plain path gives it: the default pair and every active pair read as entities, each span's view on its own. */
+  async function plainPage(where: string, order: string, params: unknown[], page: number, pageSize: number) {
+    const em = t.orm.em.fork();
+    const p = (await defaultPair(em))!;
+    const ids = await sql.all<{ id: string }>(em, `select s.id as id ${FROM}${where ? `where ${where} ` : ''}order by ${order}, l.name, fs.label, s.id limit ? offset ?`, [p.harvester.id, p.drone.id, ...params, pageSize, (page - 1) * pageSize]);
+    const count = await sql.get<{ n: number }>(em, `select count(*) as n ${FROM}${where ? `where ${where}` : ''}`, [p.harvester.id, p.drone.id, ...params]);
+    const items = [];
+    for (const { id } of ids) items.push(await spanViewOf(t.orm.em.fork(), (await t.orm.em.fork().findOne(Span, { id }))!));
+    return { pair: p, body: JSON.parse(JSON.stringify({ items, total: Number(count!.n), page, pageSize })) };
+  }
+  const cases: [string, string, string, unknown[]][] = [
+    ['minHarvestW=1&sort=-score', 'a.harvest_w >= ?', 'a.score is null, a.score desc', [1]],
+    ['status=approved&sort=-updatedAt', "s.status = 'approved'", 's.updated_at desc', []],
+    ['sort=harvestW', '', 'a.harvest_w is null, a.harvest_w asc', []],
+  ];
+  const check = async () => {
+    for (const [query, where, order, params] of cases) {
+      for (const page of [1, 3]) {
+        const res = await planner.get(`/api/spans?${query}&page=${page}&pageSize=15`);
+        expect(res.status).toBe(200);
+        const plain = await plainPage(where, order, params, page, 15);
+        expect(res.body).toEqual(plain.body);
+      }
+    }
+  };
+  const active = async () => {
+    const { harvesterIds, droneIds } = await activePairs(t.orm.em.fork());
+    return { harvesterIds, droneIds };
+  };
+
+  it('when the default pair changes (a profile reordered, the default one deactivated), then every page equals the plain path for the new pair', async () => {
+    const em = t.orm.em.fork();
+    const start = await active();
+    expect(start.harvesterIds.length * start.droneIds.length).toBeGreaterThan(1);
+    const before = (await defaultPair(em))!;
+    const saved = await sql.all<{ id: string; sort_order: number; active: unknown }>(em, 'select id, sort_order, active from drone_profiles');
+    const savedH = await sql.all<{ id: string; sort_order: number; active: unknown }>(em, 'select id, sort_order, active from harvester_profiles');
+    try {
+      await check();
+      // Another active drone comes first: the default pair's drone changes.
+      const otherDrone = start.droneIds.find((id) => id !== before.drone.id);
+      const otherHarvester = start.harvesterIds.find((id) => id !== before.harvester.id);
+      if (otherDrone) {
+        await sql.run(t.orm.em.fork(), 'update drone_profiles set sort_order = ? where id = ?', [-1, otherDrone]);
+        expect((await defaultPair(t.orm.em.fork()))!.drone.id).toBe(otherDrone);
+        const res = await planner.get('/api/spans?minHarvestW=1&sort=-score&pageSize=15');
+        expect(res.body.items.length).toBeGreaterThan(0);
+        expect(res.body.items.every((s: { assessment: { droneProfileId: string } | null }) => s.assessment?.droneProfileId === otherDrone)).toBe(true);
+        await check();
+      }
+      // The default harvester is deactivated: the next active one is the default, and the standings count one pair fewer.
+      if (otherHarvester) {
+        await sql.run(t.orm.em.fork(), 'update harvester_profiles set active = ? where id = ?', [false, before.harvester.id]);
+        expect((await defaultPair(t.orm.em.fork()))!.harvester.id).not.toBe(before.harvester.id);
+        await check();
+      }
+      expect(otherDrone ?? otherHarvester).toBeDefined();
+    } finally {
+      for (const r of saved) await sql.run(t.orm.em.fork(), 'update drone_profiles set sort_order = ?, active = ? where id = ?', [r.sort_order, r.active, r.id]);
+      for (const r of savedH) await sql.run(t.orm.em.fork(), 'update harvester_profiles set sort_order = ?, active = ? where id = ?', [r.sort_order, r.active, r.id]);
+    }
+    expect(await active()).toEqual(start);
+  }, 120_000);
 });
