@@ -114,6 +114,27 @@ describe('span list pages', () => {
     expect((await planner.get(url)).body).toEqual(await fresh(filter()));
   });
 
+  it('when a page is served again from the kept bytes, then its type, ETag and 304 are those of the body as sent fresh', async () => {
+    const url = '/api/spans?status=submitted,returned&sort=-updatedAt&page=1&pageSize=10';
+    const etagOf = t.app.get('etag fn') as (body: Buffer) => string;
+    const first = await planner.get(url);
+    expect(first.status).toBe(200);
+    expect(first.headers['content-type']).toBe('application/json; charset=utf-8');
+    expect(first.headers.etag).toBe(etagOf(Buffer.from(first.text, 'utf8')));
+    const again = await planner.get(url);
+    expect(again.text).toBe(first.text);
+    expect(again.headers.etag).toBe(first.headers.etag);
+    expect(Number(again.headers['content-length'])).toBe(Buffer.byteLength(first.text, 'utf8'));
+    expect((await planner.get(url).set('If-None-Match', first.headers.etag)).status).toBe(304);
+    // A span of the page changes: a new body with its own ETag, and the old ETag no longer answers 304.
+    await sql.run(t.orm.em.fork(), 'update spans set clearance_m = clearance_m + 0.5 where id = ?', [first.body.items[0].id]);
+    const changed = await planner.get(url).set('If-None-Match', first.headers.etag);
+    expect(changed.status).toBe(200);
+    expect(changed.headers.etag).not.toBe(first.headers.etag);
+    expect(changed.headers.etag).toBe(etagOf(Buffer.from(changed.text, 'utf8')));
+    expect(changed.body).toEqual(await fresh(filter({ status: ['submitted', 'returned'], page: 1, pageSize: 10 })));
+  });
+
   it('when ten clients ask for pages at once, then each gets the page read fresh', async () => {
     const asked = Array.from({ length: 10 }, (_, i) => filter({ page: 1 + (i % 4), status: i % 2 ? ['approved'] : ['submitted', 'returned'] }));
     const bodies = await Promise.all(asked.map((f) => planner.get(`/api/spans?status=${f.status!.join(',')}&sort=-updatedAt&page=${f.page}&pageSize=20`).then((r) => r.body)));

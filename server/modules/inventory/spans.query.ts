@@ -194,38 +194,46 @@ export async function listSpans(em: EntityManager, f: SpanFilter): Promise<Page<
   return { items, total: Number(n), page: f.page, pageSize: f.pageSize };
 }
 
+/** The list page as sent: the JSON as UTF-8 bytes and its ETag (null when the app sends none). */
+export interface ListBody {
+  body: Buffer;
+  etag: string | null;
+}
+
 /** Serialised pages per filter, kept while the data version they were read at is current (bounded by size, least recent out). */
-const MAX_PAGE_CHARS = 32 * 1024 * 1024;
-const pages = new WeakMap<object, { chars: number; bodies: Map<string, string> }>();
+const MAX_PAGE_BYTES = 32 * 1024 * 1024;
+const pages = new WeakMap<object, { bytes: number; bodies: Map<string, ListBody> }>();
 
 /**
  * The list page as the JSON the API sends. Ten planners paging the same filter (or one paging back) are answered
  * from the body read at the current data version; any write anywhere (a span, a photo, a rescore batch, a profile)
- * moves the version, so a page is never older than the data.
+ * moves the version, so a page is never older than the data. The body is kept as bytes with its ETag (`etagOf`,
+ * the app's own ETag function), so a page served again is neither encoded nor hashed again.
  */
-export async function listSpansJson(em: EntityManager, f: SpanFilter): Promise<string> {
+export async function listSpansJson(em: EntityManager, f: SpanFilter, etagOf?: (body: Buffer) => string | undefined): Promise<ListBody> {
   const conn = em.getConnection();
   let cache = pages.get(conn);
-  if (!cache) pages.set(conn, (cache = { chars: 0, bodies: new Map() }));
+  if (!cache) pages.set(conn, (cache = { bytes: 0, bodies: new Map() }));
   // Read before the page: a write in between makes the next request miss, never serve an old page.
-  const key = `${await dataVersion(em, 'all')}\u0000${JSON.stringify(f)}`;
+  const key = `${await dataVersion(em, 'all')}\u0000${etagOf ? 'e' : '-'}${JSON.stringify(f)}`;
   const hit = cache.bodies.get(key);
   if (hit !== undefined) {
     cache.bodies.delete(key);
     cache.bodies.set(key, hit);
     return hit;
   }
-  const body = JSON.stringify(await listSpans(em, f));
-  if (body.length <= MAX_PAGE_CHARS / 8) {
-    while (cache.chars + body.length > MAX_PAGE_CHARS && cache.bodies.size) {
+  const body = Buffer.from(JSON.stringify(await listSpans(em, f)), 'utf8');
+  const page: ListBody = { body, etag: etagOf?.(body) ?? null };
+  if (body.length <= MAX_PAGE_BYTES / 8) {
+    while (cache.bytes + body.length > MAX_PAGE_BYTES && cache.bodies.size) {
       const [oldest, old] = cache.bodies.entries().next().value!;
       cache.bodies.delete(oldest);
-      cache.chars -= old.length;
+      cache.bytes -= old.body.length;
     }
-    cache.bodies.set(key, body);
-    cache.chars += body.length;
+    cache.bodies.set(key, page);
+    cache.bytes += body.length;
   }
-  return body;
+  return page;
 }
 
 /** Every span id matching the filter in the table order (exports): no pagination. */
