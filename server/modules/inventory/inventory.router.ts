@@ -127,8 +127,7 @@ export function inventoryRouter(ctx: AppContext) {
       typeof etagFn === 'function' ? (body) => etagFn(body) : undefined,
     );
     if (page.etag) res.set('ETag', page.etag);
-    // The same Content-Type as a string body gets (a Buffer gets no charset of its own).
-    res.set('Content-Type', 'application/json; charset=utf-8').send(page.body);
+    res.type('application/json').send(page.body);
   });
   spans.get('/:id', 'signed-in', async (req, res) => {
     res.json(await spanViewOf(req.em, await getSpanOr404(req.em, String(req.params.id))));
