@@ -1,6 +1,5 @@
 import type { MikroORM } from '@mikro-orm/sqlite';
-import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser } from 'lucia';
-import type { User as LuciaUser } from 'lucia';
+import { Lucia, TimeSpan, type Adapter, type DatabaseSession, type DatabaseUser, type User as LuciaUser } from 'lucia';
 import { Session } from './session.entity.ts';
 import { sql } from '../../sql/query.ts';
 
