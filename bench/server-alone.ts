@@ -29,11 +29,24 @@ export function vmRss(pid: number): number | null {
   }
 }
 
-/** Every child still running, ended if the bench process itself exits early. */
+/** Every child still running, ended if the bench process itself exits early or is stopped by a signal. */
 const running = new Set<ChildProcess>();
-process.on('exit', () => {
+const killAll = () => {
   for (const child of running) child.kill('SIGKILL');
-});
+};
+const onSignal = (signal: NodeJS.Signals) => {
+  killAll();
+  process.exit(signal === 'SIGINT' ? 130 : 143);
+};
+
+function track(child: ChildProcess) {
+  if (running.size === 0) {
+    process.on('exit', killAll);
+    process.on('SIGINT', onSignal);
+    process.on('SIGTERM', onSignal);
+  }
+  running.add(child);
+}
 
 async function stop(child: ChildProcess, exited: Promise<unknown>) {
   if (child.exitCode === null && child.signalCode === null) {
@@ -43,6 +56,11 @@ async function stop(child: ChildProcess, exited: Promise<unknown>) {
     clearTimeout(timer);
   }
   running.delete(child);
+  if (running.size === 0) {
+    process.off('exit', killAll);
+    process.off('SIGINT', onSignal);
+    process.off('SIGTERM', onSignal);
+  }
 }
 
 /**
@@ -58,8 +76,11 @@ export async function measureServerAlone(databaseFile: string, densest: [number,
     env: { ...process.env, PORT: String(port), DATABASE_PATH: databaseFile, UPLOADS_DIR: uploads, SEED_DEMO: 'false', SEED_SCALE_SPANS: '0', SIGN_IN_BURST: '1000', LOG_REQUESTS: 'false', BACKUP_DIR: '' },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
-  running.add(child);
-  const exited = new Promise((resolve) => child.once('exit', resolve));
+  track(child);
+  const exited = new Promise((resolve) => {
+    child.once('exit', resolve);
+    child.once('error', resolve);
+  });
   let log = '';
   child.stdout!.on('data', (d) => (log = (log + d).slice(-20_000)));
   child.stderr!.on('data', (d) => (log = (log + d).slice(-20_000)));
