@@ -21,6 +21,7 @@ import type { BenchRow } from './run.ts';
 import { concurrent, pct, tileOf } from './measure.ts';
 import { fillAssessments, openBenchDatabase } from './bench-db.ts';
 import { measureImport } from './import.bench.ts';
+import { measureServerAlone } from './server-alone.ts';
 
 const asked = Number(process.env.BENCH_SCALE_SPANS ?? 10_000);
 /** Seconds a full rescore may run before it is stopped and its rate taken from what it did (a 1 M run stays under 30 min). */
@@ -124,9 +125,9 @@ async function measure(spans: number): Promise<Record<string, string>> {
     const times = await concurrent(10, 200, (i) => fetch(`${base}/api/spans?status=approved&sort=-updatedAt&pageSize=50&page=${pages[i % pages.length]}`, { headers: { cookie } }).then((r) => r.json()));
     const conn = orm.em.fork().getConnection();
     const bare = await concurrent(10, 200, (i) => conn.execute("select s.id from spans s where s.status = ? order by s.updated_at desc limit 50 offset ?", ['approved', (pages[i % pages.length] - 1) * 50]));
-    out.list = `p50 ${f1(pct(times, 50))} / p95 ${f1(pct(times, 95))} ms`;
+    out['list (one process)'] = `p50 ${f1(pct(times, 50))} / p95 ${f1(pct(times, 95))} ms (bench and server in one process)`;
     out['list baseline'] = `p50 ${f1(pct(bare, 50))} / p95 ${f1(pct(bare, 95))} ms bare SQL`;
-    out['RSS idle'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process)`;
+    out['RSS idle (one process)'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process: includes the bench's seeding)`;
     // Reads while a full rescore runs (one client, one page after another, until the rescore ends).
     let rescoring = true;
     const during: number[] = [];
@@ -184,8 +185,13 @@ async function measure(spans: number): Promise<Record<string, string>> {
       out[`tile z${z}`] = `cold p95 ${f1(pct(cold, 95))} / cached p95 ${f1(pct(warm, 95))} ms`;
       out[`tile z${z} baseline`] = `plain path p95 ${f1(pct(plain, 95))} ms (${plain.length} tiles)`;
     }
-    out['RSS under tile load'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process); the tile service's own heap ${mb(heapAfterGc() - heapBefore)} MB (snapshot, grid, layers z6–z11, cached tiles)`;
+    out['RSS under tile load (one process)'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process: includes the bench's seeding); the tile service's own heap ${mb(heapAfterGc() - heapBefore)} MB (snapshot, grid, layers z6–z11, cached tiles)`;
     service.close();
+    // The real server as its own process on this database: list latency and its own RSS, idle and under tile load.
+    const alone = await measureServerAlone(db.file, seeded.densest, pages.map((p) => `/api/spans?status=approved&sort=-updatedAt&pageSize=50&page=${p}`));
+    out['list (server alone)'] = `p50 ${f1(pct(alone.list, 50))} / p95 ${f1(pct(alone.list, 95))} ms (the server as its own process, 10 concurrent clients)`;
+    out['server RSS idle'] = `${mb(alone.rssIdle)} MB (VmRSS of the server as its own process, after start-up, sign-in and the list run)`;
+    out['server RSS under tile load'] = `peak ${mb(alone.rssTilePeak)} MB, ${mb(alone.rssTileEnd)} MB at the end (${alone.tiles} tiles z6–z14 over the densest area from a fresh start, 10 clients; tile p95 ${f1(pct(alone.tileMs, 95))} ms)`;
     // Import of a CSV of new spans into this inventory: streamed dry run and commit beside a raw prepared insert.
     if (IMPORT_ROWS > 0) {
       const im = await measureImport(orm, db.surveyorId, IMPORT_ROWS);
@@ -225,7 +231,7 @@ function writeTable(results: Map<number, Record<string, string>>): BenchRow[] {
   const file = path.resolve('bench/RESULTS.md');
   const before = fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '';
   const others = before.indexOf('<!-- ');
-  const how = `\nRun with \`npm run bench -- --spans ${SIZES[SIZES.length - 1]}\`: each size seeded in full; a full rescore may run ${RESCORE_BUDGET_S} s (\`BENCH_RESCORE_S\`) and its rate is taken from what it did; "list during rescore" reads for the first ${DURING_BUDGET_S} s of a second rescore (\`BENCH_DURING_S\`); the import brings ${IMPORT_ROWS.toLocaleString('en-GB')} new CSV rows into each size's inventory (\`BENCH_SCALE_IMPORT_ROWS\`). Rows marked "bench and server in one process" include the bench's own seeding and client.\n`;
+  const how = `\nRun with \`npm run bench -- --spans ${SIZES[SIZES.length - 1]}\`: each size seeded in full; a full rescore may run ${RESCORE_BUDGET_S} s (\`BENCH_RESCORE_S\`) and its rate is taken from what it did; "list during rescore" reads for the first ${DURING_BUDGET_S} s of a second rescore (\`BENCH_DURING_S\`); the import brings ${IMPORT_ROWS.toLocaleString('en-GB')} new CSV rows into each size's inventory (\`BENCH_SCALE_IMPORT_ROWS\`). Rows marked "one process" run the server inside the bench process, so their RSS includes the bench's own seeding and client; "server alone" rows start the real server (\`server/index.ts\`) as a child process on the same database and read its own VmRSS.\n`;
   fs.writeFileSync(file, note + header + body + '\n' + how + (others >= 0 ? `\n${before.slice(others)}` : ''));
   return rows;
 }

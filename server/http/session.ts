@@ -2,6 +2,7 @@ import type { RequestHandler } from 'express';
 import { verifyRequestOrigin } from 'lucia';
 import type { AppContext } from '../context.ts';
 import { User } from '../modules/auth/user.entity.ts';
+import { userRowOf } from '../modules/auth/lucia.ts';
 import { AppError } from './errors.ts';
 
 /** Forks the EntityManager and resolves the session cookie to a user (an inactive user has no session). */
@@ -10,13 +11,14 @@ export function sessionMiddleware(ctx: AppContext): RequestHandler {
     req.em = ctx.orm.em.fork();
     const sessionId = ctx.lucia.readSessionCookie(req.headers.cookie ?? '');
     if (!sessionId) return next();
-    const { session } = await ctx.lucia.validateSession(sessionId);
+    const { session, user: found } = await ctx.lucia.validateSession(sessionId);
     if (!session) {
       res.append('Set-Cookie', ctx.lucia.createBlankSessionCookie().serialize());
       return next();
     }
-    const user = await req.em.findOne(User, { id: session.userId });
-    if (!user || !user.active) {
+    // The users row came with the session: mapped into the request's EntityManager, it is a managed entity as a load would give.
+    const user = req.em.map(User, userRowOf(found));
+    if (!user.active) {
       await ctx.lucia.invalidateSession(session.id);
       res.append('Set-Cookie', ctx.lucia.createBlankSessionCookie().serialize());
       return next();

@@ -4,6 +4,8 @@ import { ROLES } from '../../shared/roles.ts';
 import { DEMO_PASSWORD } from '../../server/seeders/demo-users.ts';
 import { routeTable } from '../../server/http/access.ts';
 import { Session } from '../../server/modules/auth/session.entity.ts';
+import { SESSION_COOKIE } from '../../server/modules/auth/lucia.ts';
+import { sql } from '../../server/sql/query.ts';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -122,6 +124,83 @@ describe('sessions', () => {
     expect(res.status).toBe(200);
     expect((await c.get('/api/me')).body.user).toMatchObject({ name: 'Imogen T.', unitSystem: 'us' });
     expect((await c.patch('/api/me', { unitSystem: 'imperial' })).body.error.issues[0].path).toBe('unitSystem');
+  });
+});
+
+describe('session checks', () => {
+  /** A fresh session of the role's demo account: the client that holds it and its id. */
+  async function session(role: string) {
+    const c = t.client();
+    const res = await c.post('/api/auth/sign-in', { email: `${role}@roostline.test`, password: DEMO_PASSWORD });
+    expect(res.status).toBe(200);
+    const id = new RegExp(`${SESSION_COOKIE}=([^;]+)`).exec(String(res.headers['set-cookie']))![1];
+    return { c, id };
+  }
+  const stored = (id: string) => t.orm.em.fork().findOne(Session, { id });
+
+  it('when a session has expired, then it is refused, its cookie is blanked and its row is deleted', async () => {
+    const { c, id } = await session('planner');
+    expect((await c.get('/api/spans')).status).toBe(200);
+    await t.orm.em.fork().nativeUpdate(Session, { id }, { expiresAt: new Date(Date.now() - 60_000) });
+    const res = await c.get('/api/me');
+    expect(res.status).toBe(401);
+    expect(String(res.headers['set-cookie'])).toMatch(new RegExp(`${SESSION_COOKIE}=;`));
+    expect(await stored(id)).toBeNull();
+    expect((await c.get('/api/spans')).status).toBe(401);
+  });
+
+  it('when a session is past half its life, then it is renewed: 12 hours from now, stored, and the cookie is sent again', async () => {
+    const { c, id } = await session('planner');
+    await t.orm.em.fork().nativeUpdate(Session, { id }, { expiresAt: new Date(Date.now() + 60 * 60_000) });
+    const before = Date.now();
+    const res = await c.get('/api/me');
+    expect(res.status).toBe(200);
+    expect(res.body.user.email).toBe('planner@roostline.test');
+    expect(String(res.headers['set-cookie'])).toContain(`${SESSION_COOKIE}=${id}`);
+    const renewed = (await stored(id))!.expiresAt.getTime();
+    expect(renewed).toBeGreaterThanOrEqual(before + 12 * 3600_000 - 1000);
+    expect(renewed).toBeLessThanOrEqual(Date.now() + 12 * 3600_000 + 1000);
+    // A session well inside its life is not renewed: no cookie, the stored expiry stays.
+    const again = await c.get('/api/me');
+    expect(again.status).toBe(200);
+    expect(again.headers['set-cookie']).toBeUndefined();
+    expect((await stored(id))!.expiresAt.getTime()).toBe(renewed);
+  });
+
+  it('when a session is well inside its life, then the request is answered as its user and the stored expiry stays', async () => {
+    const { c, id } = await session('safety');
+    const expiresAt = (await stored(id))!.expiresAt.getTime();
+    const res = await c.get('/api/me');
+    expect(res.status).toBe(200);
+    expect(res.body.user).toMatchObject({ email: 'safety@roostline.test', roles: ['safety'], unitSystem: 'metric' });
+    expect(res.headers['set-cookie']).toBeUndefined();
+    expect((await stored(id))!.expiresAt.getTime()).toBe(expiresAt);
+  });
+
+  it("when a user is deactivated while a session is open, then that session is refused and deleted, and the others' still work", async () => {
+    const { c, id } = await session('admin');
+    const other = await t.as('planner');
+    // Straight in the database, so only the request's own session check stands between the session and the data.
+    await sql.run(t.orm.em.fork(), 'update users set active = ? where email = ?', [false, 'admin@roostline.test']);
+    try {
+      const res = await c.get('/api/me');
+      expect(res.status).toBe(401);
+      expect(String(res.headers['set-cookie'])).toMatch(new RegExp(`${SESSION_COOKIE}=;`));
+      expect(await stored(id)).toBeNull();
+      expect((await c.get('/api/spans')).status).toBe(401);
+      expect((await other.get('/api/spans')).status).toBe(200);
+    } finally {
+      await sql.run(t.orm.em.fork(), 'update users set active = ? where email = ?', [true, 'admin@roostline.test']);
+    }
+  });
+
+  it('when the signed-in user changes their own name, then the user the session check gave the request is saved', async () => {
+    const { c } = await session('planner');
+    const name = (await c.get('/api/me')).body.user.name as string;
+    expect((await c.patch('/api/me', { name: 'Renamed Planner' })).status).toBe(200);
+    const row = await sql.get<{ name: string }>(t.orm.em.fork(), 'select name from users where email = ?', ['planner@roostline.test']);
+    expect(row!.name).toBe('Renamed Planner');
+    expect((await c.patch('/api/me', { name })).status).toBe(200);
   });
 });
 

@@ -10,6 +10,8 @@ import { Assessment } from '../../server/modules/assessment/assessment.entity.ts
 import { sql } from '../../server/sql/query.ts';
 import { activePairs, perchStandings, standingOf } from '../../server/modules/assessment/perchable.ts';
 import { listSpans, type SpanFilter } from '../../server/modules/inventory/spans.query.ts';
+import { spanViewOf } from '../../server/modules/inventory/inventory.service.ts';
+import { Span } from '../../server/modules/inventory/span.entity.ts';
 
 let t: TestApp;
 let planner: Client;
@@ -112,6 +114,27 @@ describe('span list pages', () => {
     expect((await planner.get(url)).body).toEqual(await fresh(filter()));
   });
 
+  it('when a page is served again from the kept bytes, then its type, ETag and 304 are those of the body as sent fresh', async () => {
+    const url = '/api/spans?status=submitted,returned&sort=-updatedAt&page=1&pageSize=10';
+    const etagOf = t.app.get('etag fn') as (body: Buffer) => string;
+    const first = await planner.get(url);
+    expect(first.status).toBe(200);
+    expect(first.headers['content-type']).toBe('application/json; charset=utf-8');
+    expect(first.headers.etag).toBe(etagOf(Buffer.from(first.text, 'utf8')));
+    const again = await planner.get(url);
+    expect(again.text).toBe(first.text);
+    expect(again.headers.etag).toBe(first.headers.etag);
+    expect(Number(again.headers['content-length'])).toBe(Buffer.byteLength(first.text, 'utf8'));
+    expect((await planner.get(url).set('If-None-Match', first.headers.etag)).status).toBe(304);
+    // A span of the page changes: a new body with its own ETag, and the old ETag no longer answers 304.
+    await sql.run(t.orm.em.fork(), 'update spans set clearance_m = clearance_m + 0.5 where id = ?', [first.body.items[0].id]);
+    const changed = await planner.get(url).set('If-None-Match', first.headers.etag);
+    expect(changed.status).toBe(200);
+    expect(changed.headers.etag).not.toBe(first.headers.etag);
+    expect(changed.headers.etag).toBe(etagOf(Buffer.from(changed.text, 'utf8')));
+    expect(changed.body).toEqual(await fresh(filter({ status: ['submitted', 'returned'], page: 1, pageSize: 10 })));
+  });
+
   it('when ten clients ask for pages at once, then each gets the page read fresh', async () => {
     const asked = Array.from({ length: 10 }, (_, i) => filter({ page: 1 + (i % 4), status: i % 2 ? ['approved'] : ['submitted', 'returned'] }));
     const bodies = await Promise.all(asked.map((f) => planner.get(`/api/spans?status=${f.status!.join(',')}&sort=-updatedAt&page=${f.page}&pageSize=20`).then((r) => r.body)));
@@ -161,4 +184,70 @@ describe('span list keyset pages', () => {
       }
     }
   });
+});
+
+describe('span list with several active pairs', () => {
+  /** The page as the plain path gives it: the default pair and every active pair read as entities, each span's view on its own. */
+  async function plainPage(where: string, order: string, params: unknown[], page: number, pageSize: number) {
+    const em = t.orm.em.fork();
+    const p = (await defaultPair(em))!;
+    const ids = await sql.all<{ id: string }>(em, `select s.id as id ${FROM}${where ? `where ${where} ` : ''}order by ${order}, l.name, fs.label, s.id limit ? offset ?`, [p.harvester.id, p.drone.id, ...params, pageSize, (page - 1) * pageSize]);
+    const count = await sql.get<{ n: number }>(em, `select count(*) as n ${FROM}${where ? `where ${where}` : ''}`, [p.harvester.id, p.drone.id, ...params]);
+    const items = [];
+    for (const { id } of ids) items.push(await spanViewOf(t.orm.em.fork(), (await t.orm.em.fork().findOne(Span, { id }))!));
+    return { pair: p, body: JSON.parse(JSON.stringify({ items, total: Number(count!.n), page, pageSize })) };
+  }
+  const cases: [string, string, string, unknown[]][] = [
+    ['minHarvestW=1&sort=-score', 'a.harvest_w >= ?', 'a.score is null, a.score desc', [1]],
+    ['status=approved&sort=-updatedAt', "s.status = 'approved'", 's.updated_at desc', []],
+    ['sort=harvestW', '', 'a.harvest_w is null, a.harvest_w asc', []],
+  ];
+  const check = async () => {
+    for (const [query, where, order, params] of cases) {
+      for (const page of [1, 3]) {
+        const res = await planner.get(`/api/spans?${query}&page=${page}&pageSize=15`);
+        expect(res.status).toBe(200);
+        const plain = await plainPage(where, order, params, page, 15);
+        expect(res.body).toEqual(plain.body);
+      }
+    }
+  };
+  const active = async () => {
+    const { harvesterIds, droneIds } = await activePairs(t.orm.em.fork());
+    return { harvesterIds, droneIds };
+  };
+
+  it('when the default pair changes (a profile reordered, the default one deactivated), then every page equals the plain path for the new pair', async () => {
+    const em = t.orm.em.fork();
+    const start = await active();
+    expect(start.harvesterIds.length * start.droneIds.length).toBeGreaterThan(1);
+    const before = (await defaultPair(em))!;
+    const saved = await sql.all<{ id: string; sort_order: number; active: unknown }>(em, 'select id, sort_order, active from drone_profiles');
+    const savedH = await sql.all<{ id: string; sort_order: number; active: unknown }>(em, 'select id, sort_order, active from harvester_profiles');
+    try {
+      await check();
+      // Another active drone comes first: the default pair's drone changes.
+      const otherDrone = start.droneIds.find((id) => id !== before.drone.id);
+      const otherHarvester = start.harvesterIds.find((id) => id !== before.harvester.id);
+      if (otherDrone) {
+        await sql.run(t.orm.em.fork(), 'update drone_profiles set sort_order = ? where id = ?', [-1, otherDrone]);
+        expect((await defaultPair(t.orm.em.fork()))!.drone.id).toBe(otherDrone);
+        const res = await planner.get('/api/spans?minHarvestW=1&sort=-score&pageSize=15');
+        expect(res.body.items.length).toBeGreaterThan(0);
+        expect(res.body.items.every((s: { assessment: { droneProfileId: string } | null }) => s.assessment?.droneProfileId === otherDrone)).toBe(true);
+        await check();
+      }
+      // The default harvester is deactivated: the next active one is the default, and the standings count one pair fewer.
+      if (otherHarvester) {
+        await sql.run(t.orm.em.fork(), 'update harvester_profiles set active = ? where id = ?', [false, before.harvester.id]);
+        expect((await defaultPair(t.orm.em.fork()))!.harvester.id).not.toBe(before.harvester.id);
+        await check();
+      }
+      expect(otherDrone ?? otherHarvester).toBeDefined();
+    } finally {
+      for (const r of saved) await sql.run(t.orm.em.fork(), 'update drone_profiles set sort_order = ?, active = ? where id = ?', [r.sort_order, r.active, r.id]);
+      for (const r of savedH) await sql.run(t.orm.em.fork(), 'update harvester_profiles set sort_order = ?, active = ? where id = ?', [r.sort_order, r.active, r.id]);
+    }
+    expect(await active()).toEqual(start);
+  }, 120_000);
 });

@@ -509,15 +509,20 @@ export function assessmentView(row: Omit<Assessment, 'id' | 'inputs'> & { inputs
 
 /**
  * The span API's `assessment` field: each span's row for the default pair (first active harvester and drone),
- * or null when it has none yet. For the inventory's span views.
+ * or null when it has none yet. For the inventory's span views. `given`: the default pair's ids when the caller
+ * has read them already (null: there is none).
  */
-export async function assessmentForSpans(em: EntityManager, spanIds: readonly string[]): Promise<Map<string, SpanAssessmentView | null>> {
+export async function assessmentForSpans(
+  em: EntityManager,
+  spanIds: readonly string[],
+  given?: { harvesterProfileId: string; droneProfileId: string } | null,
+): Promise<Map<string, SpanAssessmentView | null>> {
   const out = new Map<string, SpanAssessmentView | null>(spanIds.map((id) => [id, null]));
   if (spanIds.length === 0) return out;
-  const pair = await defaultPair(em);
+  const pair = given !== undefined ? given : await defaultPairIds(em);
   if (!pair) return out;
   // Read without the inputs column and without the identity map: the views need neither.
-  for (const row of await readAssessmentSummaries(em, spanIds, { harvesterIds: [pair.harvester.id], droneIds: [pair.drone.id] })) out.set(row.spanId, assessmentView(row));
+  for (const row of await readAssessmentSummaries(em, spanIds, { harvesterIds: [pair.harvesterProfileId], droneIds: [pair.droneProfileId] })) out.set(row.spanId, assessmentView(row));
   return out;
 }
 

@@ -7,6 +7,7 @@ import { Span } from '../inventory/span.entity.ts';
 import { Assessment } from './assessment.entity.ts';
 import { assessSpans } from './assessment.service.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
+import type { ActiveProfiles } from './profiles.service.ts';
 import { sql } from '../../sql/query.ts';
 import { readAssessmentSummaries, readPerchFlags } from '../../sql/assessments.ts';
 
@@ -124,17 +125,20 @@ export function standingOf(rows: Row[], names: Map<string, string>): PerchStandi
   return { perchable: rows.some((r) => r.perchable), pairCount: rows.length, failing: [...failing.values()] };
 }
 
-export async function activePairs(em: EntityManager) {
-  const [harvesters, drones] = await Promise.all([em.find(HarvesterProfile, { active: true }), em.find(DroneProfile, { active: true })]);
+export async function activePairs(em: EntityManager, given?: ActiveProfiles) {
+  const [harvesters, drones] = given ? [given.harvesters, given.drones] : await Promise.all([em.find(HarvesterProfile, { active: true }), em.find(DroneProfile, { active: true })]);
   const names = new Map<string, string>([...harvesters, ...drones].map((p) => [p.id, p.name]));
   return { harvesterIds: harvesters.map((h) => h.id), droneIds: drones.map((d) => d.id), names };
 }
 
-/** The perch standing of many spans from their stored rows (span views, the review desk). */
-export async function perchStandings(em: EntityManager, spanIds: readonly string[]): Promise<Map<string, PerchStanding>> {
+/**
+ * The perch standing of many spans from their stored rows (span views, the review desk). `profiles`: the active
+ * profiles when the caller has read them already (a list request reads them once).
+ */
+export async function perchStandings(em: EntityManager, spanIds: readonly string[], profiles?: ActiveProfiles): Promise<Map<string, PerchStanding>> {
   const out = new Map<string, PerchStanding>();
   if (!spanIds.length) return out;
-  const { harvesterIds, droneIds, names } = await activePairs(em);
+  const { harvesterIds, droneIds, names } = await activePairs(em, profiles);
   if (!harvesterIds.length || !droneIds.length) return out;
   // First which pairs perch (no JSON): a span that perches for some pair has no failing gates to list, and a pair
   // that perches fails no blocking gate; only the spans that perch for no pair have their gates read.

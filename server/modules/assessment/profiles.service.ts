@@ -8,6 +8,7 @@ import type { BenchTestView, DroneProfileView, HarvesterProfileView, ScoringSett
 import { BenchTest, DroneProfile, HarvesterProfile, ScoringSettingsVersion } from './profile.entity.ts';
 import type { HarvesterProfile as HarvesterModel } from '#shared/engineering/ct-harvester.ts';
 import type { DroneProfile as DroneModel } from '#shared/engineering/demo-profiles.ts';
+import { sql } from '../../sql/query.ts';
 
 /**
  * Puts the invented demo profiles and the default scoring settings into empty tables, whether or not the demo
@@ -67,6 +68,34 @@ export async function defaultPair(em: EntityManager): Promise<{ harvester: Harve
   const [harvester] = await em.find(HarvesterProfile, { active: true }, { orderBy: { sortOrder: 'asc', createdAt: 'asc', id: 'asc' }, limit: 1 });
   const [drone] = await em.find(DroneProfile, { active: true }, { orderBy: { sortOrder: 'asc', createdAt: 'asc', id: 'asc' }, limit: 1 });
   return harvester && drone ? { harvester, drone } : null;
+}
+
+/** The active harvesters and drones by id and name, each in the profiles' order (the first of each is the default pair). */
+export interface ActiveProfiles {
+  harvesters: { id: string; name: string }[];
+  drones: { id: string; name: string }[];
+}
+
+/**
+ * The active profiles in one bound statement, without entity loads: what a list request needs (the default pair's
+ * ids for its joins and views, every active pair's ids and names for the standings), read once per request.
+ * Same order as `activeHarvesters` / `activeDrones`.
+ */
+export async function readActiveProfiles(em: EntityManager): Promise<ActiveProfiles> {
+  const rows = await sql.all<{ kind: string; id: string; name: string }>(
+    em,
+    "select 'h' as kind, id, name, sort_order, created_at from harvester_profiles where active = ? " +
+      "union all select 'd' as kind, id, name, sort_order, created_at from drone_profiles where active = ? " +
+      'order by kind, sort_order, created_at, id',
+    [true, true],
+  );
+  const pick = (kind: string) => rows.filter((r) => r.kind === kind).map((r) => ({ id: r.id, name: r.name }));
+  return { harvesters: pick('h'), drones: pick('d') };
+}
+
+/** The default pair's ids from the active profiles (first active harvester and drone), or null. */
+export function defaultPairOf(p: ActiveProfiles): { harvesterProfileId: string; droneProfileId: string } | null {
+  return p.harvesters.length && p.drones.length ? { harvesterProfileId: p.harvesters[0].id, droneProfileId: p.drones[0].id } : null;
 }
 
 export async function currentSettings(em: EntityManager): Promise<{ version: number; settings: ScoringSettings; row: ScoringSettingsVersion | null }> {

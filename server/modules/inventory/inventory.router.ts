@@ -108,8 +108,11 @@ export function inventoryRouter(ctx: AppContext) {
   spans.get('/', 'signed-in', async (req, res) => {
     const q = parse(spanListQuerySchema, req.query);
     const user = currentUser(req);
-    res.type('application/json').send(
-      await listSpansJson(req.em, {
+    // The app's ETag function (Express's 'etag fn' setting; none when ETags are off), applied once per cached page.
+    const etagFn = req.app.get('etag fn') as ((body: Buffer, encoding?: string) => string | undefined) | undefined;
+    const page = await listSpansJson(
+      req.em,
+      {
         status: q.status,
         lineId: q.lineId || undefined,
         surveyorId: q.mine ? user.id : q.surveyorId || undefined,
@@ -120,8 +123,11 @@ export function inventoryRouter(ctx: AppContext) {
         sort: q.sort,
         page: q.page,
         pageSize: q.pageSize,
-      }),
+      },
+      typeof etagFn === 'function' ? (body) => etagFn(body) : undefined,
     );
+    if (page.etag) res.set('ETag', page.etag);
+    res.type('application/json').send(page.body);
   });
   spans.get('/:id', 'signed-in', async (req, res) => {
     res.json(await spanViewOf(req.em, await getSpanOr404(req.em, String(req.params.id))));

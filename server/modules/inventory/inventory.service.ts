@@ -15,6 +15,7 @@ import type {
 import { AppError } from '../../http/errors.ts';
 import { assessmentForSpans, defaultPairIds } from '../assessment/assessment.service.ts';
 import { perchStandings } from '../assessment/perchable.ts';
+import { defaultPairOf, type ActiveProfiles } from '../assessment/profiles.service.ts';
 import { ConductorType } from './conductor-type.entity.ts';
 import { Hazard } from './hazard.entity.ts';
 import { HazardKind } from './hazard-kind.entity.ts';
@@ -104,10 +105,10 @@ export async function defaultAssessmentPair(em: EntityManager): Promise<{ harves
 }
 
 /** The stored assessment of the default pair per span, in the shape the assessment module gives it. */
-async function assessmentsFor(em: EntityManager, spanIds: string[]): Promise<Map<string, SpanAssessmentSummary>> {
+async function assessmentsFor(em: EntityManager, spanIds: string[], profiles?: ActiveProfiles): Promise<Map<string, SpanAssessmentSummary>> {
   const out = new Map<string, SpanAssessmentSummary>();
   if (!spanIds.length) return out;
-  for (const [id, view] of await assessmentForSpans(em, spanIds)) if (view) out.set(id, view as unknown as SpanAssessmentSummary);
+  for (const [id, view] of await assessmentForSpans(em, spanIds, profiles && defaultPairOf(profiles))) if (view) out.set(id, view as unknown as SpanAssessmentSummary);
   return out;
 }
 
@@ -206,8 +207,11 @@ export function spanConductorView(s: Span): SpanView['conductor'] {
   };
 }
 
-/** The API shape of many spans at once (lines, structures, hazards, photos and assessments loaded in batches). */
-export async function spanViews(em: EntityManager, spans: Span[]): Promise<SpanView[]> {
+/**
+ * The API shape of many spans at once (lines, structures, hazards, photos and assessments loaded in batches).
+ * `profiles`: the active profiles when the caller has read them already (a list request reads them once).
+ */
+export async function spanViews(em: EntityManager, spans: Span[], profiles?: ActiveProfiles): Promise<SpanView[]> {
   if (!spans.length) return [];
   const ids = spans.map((s) => s.id);
   const lineIds = [...new Set(spans.map((s) => s.lineId))];
@@ -217,8 +221,8 @@ export async function spanViews(em: EntityManager, spans: Span[]): Promise<SpanV
     findStructures(em, structureIds),
     findHazards(em, ids),
     photoIdsFor(em, ids),
-    assessmentsFor(em, ids),
-    perchStandings(em, ids),
+    assessmentsFor(em, ids, profiles),
+    perchStandings(em, ids, profiles),
   ]);
   const lineById = new Map(lines.map((l) => [l.id, l]));
   const structureById = new Map(structures.map((s) => [s.id, s]));

@@ -5,7 +5,8 @@ import type { EntityManager } from '@mikro-orm/core';
 import type { Page, Span as SpanView, SpanListQuery, SpanSortKey } from '#shared/schemas/inventory.ts';
 import { Span } from './span.entity.ts';
 import { perchableSql } from '../assessment/perchable.ts';
-import { defaultAssessmentPair, spanViews } from './inventory.service.ts';
+import { spanViews } from './inventory.service.ts';
+import { defaultPairOf, readActiveProfiles } from '../assessment/profiles.service.ts';
 import { sql as bound } from '../../sql/query.ts';
 import { dataVersion, type VersionScope } from '../../sql/data-version.ts';
 import { isPostgres } from '../../sql/dialect.ts';
@@ -42,12 +43,15 @@ function likeEscape(q: string) {
   return `%${q.toLowerCase().replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 }
 
+/** The default pair's ids (read once per request), or null when there is none. */
+type Pair = { harvesterProfileId: string; droneProfileId: string } | null;
+
 /**
  * Builds the FROM/WHERE part shared by the page and the count. `forCount` leaves out the joins that cannot change
  * the number of rows: structures and the default pair's assessment are left joins on a unique key (at most one
  * row each), and every span has its line (foreign key); they are joined only when a filter reads them.
  */
-async function buildQuery(em: EntityManager, f: SpanFilter, forCount = false, extra?: { sql: string; params: unknown[] }) {
+function buildQuery(pair: Pair, f: SpanFilter, forCount = false, extra?: { sql: string; params: unknown[] }) {
   const params: unknown[] = [];
   const needsLabels = !forCount || !!f.q;
   const needsAssessment = !forCount || f.minHarvestW !== undefined || f.minScore !== undefined;
@@ -56,7 +60,6 @@ async function buildQuery(em: EntityManager, f: SpanFilter, forCount = false, ex
       'left join structures fs on fs.id = s.from_structure_id ' +
       'left join structures ts on ts.id = s.to_structure_id '
     : 'from spans s ';
-  const pair = await defaultAssessmentPair(em);
   const hasAssessment = !!pair;
   if (hasAssessment && needsAssessment) {
     from += 'left join assessments a on a.span_id = s.id and a.harvester_profile_id = ? and a.drone_profile_id = ? ';
@@ -124,8 +127,8 @@ function orderBy(sort: string | undefined, hasAssessment: boolean) {
 const MAX_TOTALS = 500;
 const totals = new WeakMap<object, Map<string, number>>();
 
-async function totalOf(em: EntityManager, f: SpanFilter): Promise<number> {
-  const { sql, params, scope } = await buildQuery(em, f, true);
+async function totalOf(em: EntityManager, pair: Pair, f: SpanFilter): Promise<number> {
+  const { sql, params, scope } = buildQuery(pair, f, true);
   const conn = em.getConnection();
   let cache = totals.get(conn);
   if (!cache) totals.set(conn, (cache = new Map()));
@@ -151,79 +154,91 @@ const KEYSET_SORTS: Partial<Record<SpanSortKey, string>> = { updatedAt: 's.updat
  * read from spans alone (the count's joins only), then only the rows between them are joined and ordered in full:
  * rows skipped over on deep pages are never joined. Same rows in the same order as the plain query (tested).
  */
-async function pageIds(em: EntityManager, f: SpanFilter): Promise<string[]> {
+async function pageIds(em: EntityManager, pair: Pair, f: SpanFilter): Promise<string[]> {
   const offset = (f.page - 1) * f.pageSize;
   const key = (f.sort?.replace(/^-/, '') || 'updatedAt') as SpanSortKey;
   const col = KEYSET_SORTS[key];
-  const base = await buildQuery(em, f);
+  const base = buildQuery(pair, f);
   // On PostgreSQL a timestamp read back into JavaScript keeps milliseconds only, so date bounds could drop a row: plain query there.
   if (!col || f.q || (isPostgres(em) && key !== 'lengthM')) {
     const rows = await bound.all<{ id: string }>(em, `select s.id as id ${base.sql}${orderBy(f.sort, base.hasAssessment)} limit ? offset ?`, [...base.params, f.pageSize, offset]);
     return rows.map((r) => r.id);
   }
   const desc = !!f.sort?.startsWith('-') || !f.sort;
-  const lean = await buildQuery(em, f, true);
+  const lean = buildQuery(pair, f, true);
   const keys = await bound.all<{ k: unknown }>(em, `select ${col} as k ${lean.sql}order by ${col} ${desc ? 'desc' : 'asc'} limit ? offset ?`, [...lean.params, f.pageSize, offset]);
   if (!keys.length) return [];
   const first = keys[0].k;
   const last = keys[keys.length - 1].k;
   // Rows ahead of the page's first value come before it in the full order; the page starts that many rows into the range.
-  const ahead = await buildQuery(em, f, true, { sql: `${col} ${desc ? '>' : '<'} ?`, params: [first] });
+  const ahead = buildQuery(pair, f, true, { sql: `${col} ${desc ? '>' : '<'} ?`, params: [first] });
   const [{ n }] = await bound.all<{ n: number }>(em, `select count(*) as n ${ahead.sql}`, ahead.params);
-  const range = await buildQuery(em, f, false, { sql: `${col} between ? and ?`, params: desc ? [last, first] : [first, last] });
+  const range = buildQuery(pair, f, false, { sql: `${col} between ? and ?`, params: desc ? [last, first] : [first, last] });
   const rows = await bound.all<{ id: string }>(em, `select s.id as id ${range.sql}${orderBy(f.sort, range.hasAssessment)} limit ? offset ?`, [...range.params, f.pageSize, offset - Number(n)]);
   return rows.map((r) => r.id);
 }
 
 export async function listSpans(em: EntityManager, f: SpanFilter): Promise<Page<SpanView>> {
-  const n = await totalOf(em, f);
-  const ids = await pageIds(em, f);
+  // The active profiles (the default pair for the joins and views, every pair for the standings): read once.
+  const profiles = await readActiveProfiles(em);
+  const pair = defaultPairOf(profiles);
+  const n = await totalOf(em, pair, f);
+  const ids = await pageIds(em, pair, f);
   const spans = ids.length ? await em.find(Span, { id: { $in: ids } }) : [];
   const byId = new Map(spans.map((s) => [s.id, s]));
   const items = await spanViews(
     em,
     ids.map((id) => byId.get(id)!).filter(Boolean),
+    profiles,
   );
   return { items, total: Number(n), page: f.page, pageSize: f.pageSize };
 }
 
+/** The list page as sent: the JSON as UTF-8 bytes and its ETag (null when the app sends none). */
+export interface ListBody {
+  body: Buffer;
+  etag: string | null;
+}
+
 /** Serialised pages per filter, kept while the data version they were read at is current (bounded by size, least recent out). */
-const MAX_PAGE_CHARS = 32 * 1024 * 1024;
-const pages = new WeakMap<object, { chars: number; bodies: Map<string, string> }>();
+const MAX_PAGE_BYTES = 32 * 1024 * 1024;
+const pages = new WeakMap<object, { bytes: number; bodies: Map<string, ListBody> }>();
 
 /**
  * The list page as the JSON the API sends. Ten planners paging the same filter (or one paging back) are answered
  * from the body read at the current data version; any write anywhere (a span, a photo, a rescore batch, a profile)
- * moves the version, so a page is never older than the data.
+ * moves the version, so a page is never older than the data. The body is kept as bytes with its ETag (`etagOf`,
+ * the app's own ETag function), so a page served again is neither encoded nor hashed again.
  */
-export async function listSpansJson(em: EntityManager, f: SpanFilter): Promise<string> {
+export async function listSpansJson(em: EntityManager, f: SpanFilter, etagOf?: (body: Buffer) => string | undefined): Promise<ListBody> {
   const conn = em.getConnection();
   let cache = pages.get(conn);
-  if (!cache) pages.set(conn, (cache = { chars: 0, bodies: new Map() }));
+  if (!cache) pages.set(conn, (cache = { bytes: 0, bodies: new Map() }));
   // Read before the page: a write in between makes the next request miss, never serve an old page.
-  const key = `${await dataVersion(em, 'all')}\u0000${JSON.stringify(f)}`;
+  const key = `${await dataVersion(em, 'all')}\u0000${etagOf ? 'e' : '-'}${JSON.stringify(f)}`;
   const hit = cache.bodies.get(key);
   if (hit !== undefined) {
     cache.bodies.delete(key);
     cache.bodies.set(key, hit);
     return hit;
   }
-  const body = JSON.stringify(await listSpans(em, f));
-  if (body.length <= MAX_PAGE_CHARS / 8) {
-    while (cache.chars + body.length > MAX_PAGE_CHARS && cache.bodies.size) {
+  const body = Buffer.from(JSON.stringify(await listSpans(em, f)), 'utf8');
+  const page: ListBody = { body, etag: etagOf?.(body) ?? null };
+  if (body.length <= MAX_PAGE_BYTES / 8) {
+    while (cache.bytes + body.length > MAX_PAGE_BYTES && cache.bodies.size) {
       const [oldest, old] = cache.bodies.entries().next().value!;
       cache.bodies.delete(oldest);
-      cache.chars -= old.length;
+      cache.bytes -= old.body.length;
     }
-    cache.bodies.set(key, body);
-    cache.chars += body.length;
+    cache.bodies.set(key, page);
+    cache.bytes += body.length;
   }
-  return body;
+  return page;
 }
 
 /** Every span id matching the filter in the table order (exports): no pagination. */
 export async function matchingSpanIds(em: EntityManager, f: Omit<SpanFilter, 'page' | 'pageSize'>): Promise<string[]> {
-  const { sql, params, hasAssessment } = await buildQuery(em, { ...f, page: 1, pageSize: 1 });
+  const { sql, params, hasAssessment } = buildQuery(defaultPairOf(await readActiveProfiles(em)), { ...f, page: 1, pageSize: 1 });
   const sort = f.sort ?? 'line';
   const rows = await bound.all<{ id: string }>(em, `select s.id as id ${sql}${orderBy(sort, hasAssessment)}`, params);
   return rows.map((r) => r.id);
