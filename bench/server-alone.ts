@@ -4,7 +4,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { freePort } from '../scripts/free-port.ts';
+import { untilServing } from '../scripts/free-port.ts';
 import { DEMO_PASSWORD } from '../server/seeders/demo-users.ts';
 import { concurrent, tileOf } from './measure.ts';
 
@@ -69,11 +69,9 @@ async function stop(child: ChildProcess, exited: Promise<unknown>) {
  * with 10 clients while its VmRSS is sampled. The child is ended on every path.
  */
 export async function measureServerAlone(databaseFile: string, densest: [number, number], listUrls: string[], opts: { listTotal?: number; tileRounds?: number } = {}): Promise<ServerAloneFigures> {
-  const port = await freePort();
-  const base = `http://127.0.0.1:${port}`;
   const uploads = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-bench-uploads-'));
   const child = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    env: { ...process.env, PORT: String(port), DATABASE_PATH: databaseFile, UPLOADS_DIR: uploads, SEED_DEMO: 'false', SEED_SCALE_SPANS: '0', SIGN_IN_BURST: '1000', LOG_REQUESTS: 'false', BACKUP_DIR: '' },
+    env: { ...process.env, PORT: '0', DATABASE_PATH: databaseFile, UPLOADS_DIR: uploads, SEED_DEMO: 'false', SEED_SCALE_SPANS: '0', SIGN_IN_BURST: '1000', LOG_REQUESTS: 'false', BACKUP_DIR: '' },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   track(child);
@@ -85,17 +83,7 @@ export async function measureServerAlone(databaseFile: string, densest: [number,
   child.stdout!.on('data', (d) => (log = (log + d).slice(-20_000)));
   child.stderr!.on('data', (d) => (log = (log + d).slice(-20_000)));
   try {
-    const deadline = Date.now() + 120_000;
-    for (;;) {
-      if (child.exitCode !== null || child.signalCode !== null) throw new Error(`server exited early:\n${log}`);
-      try {
-        if ((await fetch(`${base}/api/health`)).ok) break;
-      } catch {
-        /* not listening yet */
-      }
-      if (Date.now() > deadline) throw new Error(`server did not answer /api/health within 120 s:\n${log}`);
-      await new Promise((r) => setTimeout(r, 250));
-    }
+    const base = `http://127.0.0.1:${await untilServing(child, () => log, 120_000)}`;
     const signIn = await fetch(`${base}/api/auth/sign-in`, { method: 'POST', headers: { 'content-type': 'application/json', origin: base }, body: JSON.stringify({ email: 'planner@roostline.test', password: DEMO_PASSWORD }) });
     if (!signIn.ok) throw new Error(`sign-in as planner failed: ${signIn.status} ${await signIn.text()}`);
     const cookie = (signIn.headers.get('set-cookie') ?? '').split(';')[0];

@@ -1,3 +1,4 @@
+import type { AddressInfo } from 'node:net';
 import { databaseTarget, loadConfig } from './env.ts';
 import { initORM, whileHoldingStartLock } from './db.ts';
 import { createApp } from './app.ts';
@@ -40,7 +41,7 @@ if (removed.length) console.log(`photos: removed ${removed.length} file(s) an in
 const { app, ctx, close, lifecycle } = createApp({ orm, config, storage });
 const stopBackups = scheduleDailyBackups(ctx);
 const server = app.listen(config.port, () => {
-  console.log(`Roostline is listening on http://localhost:${config.port} (database ${config.databaseUrl ? 'PostgreSQL ' + redactUrl(config.databaseUrl) : config.databasePath}, files in ${storage.describe})`);
+  console.log(`Roostline is listening on http://localhost:${(server.address() as AddressInfo).port} (database ${config.databaseUrl ? 'PostgreSQL ' + redactUrl(config.databaseUrl) : config.databasePath}, files in ${storage.describe})`);
 });
 
 let stopping = false;

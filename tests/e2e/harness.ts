@@ -3,7 +3,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
-import { freePort } from '../../scripts/free-port.ts';
+import { untilServing } from '../../scripts/free-port.ts';
 
 export const DEMO_PASSWORD = 'roostline-demo';
 const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
@@ -23,27 +23,14 @@ export interface Harness {
 /** Starts the real server (npm start's server entry) on a fresh SQLite file with the demo scenario, and Chromium. */
 export async function startHarness(env: Record<string, string> = {}): Promise<Harness> {
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-e2e-'));
-  const port = await freePort();
-  const baseUrl = `http://127.0.0.1:${port}`;
   const server: ChildProcess = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
-    env: { ...process.env, PORT: String(port), DATABASE_PATH: path.join(dataDir, 'e2e.sqlite'), UPLOADS_DIR: path.join(dataDir, 'uploads'), SEED_DEMO: 'true', ...env },
+    env: { ...process.env, PORT: '0', DATABASE_PATH: path.join(dataDir, 'e2e.sqlite'), UPLOADS_DIR: path.join(dataDir, 'uploads'), SEED_DEMO: 'true', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
   });
   let log = '';
   server.stdout!.on('data', (d) => (log += d));
   server.stderr!.on('data', (d) => (log += d));
-  const deadline = Date.now() + 90_000;
-  for (;;) {
-    if (server.exitCode !== null) throw new Error(`server exited early:\n${log}`);
-    try {
-      const res = await fetch(`${baseUrl}/api/health`);
-      if (res.ok) break;
-    } catch {
-      /* not listening yet */
-    }
-    if (Date.now() > deadline) throw new Error(`server did not answer /api/health within 90 s:\n${log}`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
+  const baseUrl = `http://127.0.0.1:${await untilServing(server, () => log)}`;
   const browser = await chromium.launch({
     executablePath: CHROMIUM,
     headless: true,

@@ -5,7 +5,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import sqlite3 from 'sqlite3';
-import { freePort } from '../../scripts/free-port.ts';
+import { freePort, untilServing } from '../../scripts/free-port.ts';
 
 export { freePort };
 
@@ -19,12 +19,10 @@ export interface ChildServer {
 export const newDataDir = () => fs.mkdtempSync(path.join(os.tmpdir(), 'roostline-durability-'));
 
 export async function startServer(dataDir: string, env: Record<string, string> = {}): Promise<ChildServer> {
-  const port = await freePort();
-  const baseUrl = `http://127.0.0.1:${port}`;
   const proc = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
     env: {
       ...process.env,
-      PORT: String(port),
+      PORT: '0',
       DATABASE_PATH: path.join(dataDir, 'roostline.sqlite'),
       UPLOADS_DIR: path.join(dataDir, 'uploads'),
       SEED_DEMO: 'true',
@@ -37,17 +35,7 @@ export async function startServer(dataDir: string, env: Record<string, string> =
   proc.stdout!.on('data', (d) => (log += d));
   proc.stderr!.on('data', (d) => (log += d));
   const exited = new Promise<number | null>((resolve) => proc.once('exit', (code) => resolve(code)));
-  const deadline = Date.now() + 90_000;
-  for (;;) {
-    if (proc.exitCode !== null || proc.signalCode !== null) throw new Error(`server exited early:\n${log}`);
-    try {
-      if ((await fetch(`${baseUrl}/api/health`)).ok) break;
-    } catch {
-      /* not listening yet */
-    }
-    if (Date.now() > deadline) throw new Error(`server did not answer /api/health within 90 s:\n${log}`);
-    await new Promise((r) => setTimeout(r, 200));
-  }
+  const baseUrl = `http://127.0.0.1:${await untilServing(proc, () => log)}`;
   return { baseUrl, proc, log: () => log, exited };
 }
 
