@@ -186,7 +186,25 @@ async function measure(spans: number): Promise<Record<string, string>> {
       out[`tile z${z} baseline`] = `plain path p95 ${f1(pct(plain, 95))} ms (${plain.length} tiles)`;
     }
     out['RSS under tile load (one process)'] = `${mb(process.memoryUsage().rss)} MB (bench and server in one process: includes the bench's seeding); the tile service's own heap ${mb(heapAfterGc() - heapBefore)} MB (snapshot, grid, layers z6–z11, cached tiles)`;
+    // A restart of a server that had these tiles cached: it keeps them in a file at its stop and serves them at the
+    // next start while the database is unchanged (the "first tile after restart" above is a tile not kept).
+    t = performance.now();
     service.close();
+    const closeMs = performance.now() - t;
+    const keptFile = `${db.file}.tiles`;
+    const keptMb = fs.existsSync(keptFile) ? fs.statSync(keptFile).size / 1048576 : 0;
+    const restarted = new SpanTileService(orm);
+    const kept: string[] = [];
+    for (const z of [11, 14, 8]) {
+      const c = tileOf(lon, lat, z);
+      t = performance.now();
+      await restarted.tile(z, c.x, c.y);
+      kept.push(`${f1(performance.now() - t)} ms z${z}`);
+    }
+    out['first tile after restart, kept'] = `${kept.join(', ')} (${restarted.stats.keptTiles} of 3 kept; the stop wrote ${keptMb.toFixed(1)} MB of tiles in ${f1(closeMs)} ms)`;
+    restarted.close();
+    // The server below starts cold, as on a first start.
+    fs.rmSync(keptFile, { force: true });
     // The real server as its own process on this database: list latency and its own RSS, idle and under tile load.
     const alone = await measureServerAlone(db.file, seeded.densest, pages.map((p) => `/api/spans?status=approved&sort=-updatedAt&pageSize=50&page=${p}`));
     out['list (server alone)'] = `p50 ${f1(pct(alone.list, 50))} / p95 ${f1(pct(alone.list, 95))} ms (the server as its own process, 10 concurrent clients)`;
@@ -231,7 +249,7 @@ function writeTable(results: Map<number, Record<string, string>>): BenchRow[] {
   const file = path.resolve('bench/RESULTS.md');
   const before = fs.existsSync(file) ? fs.readFileSync(file, 'utf8') : '';
   const others = before.indexOf('<!-- ');
-  const how = `\nRun with \`npm run bench -- --spans ${SIZES[SIZES.length - 1]}\`: each size seeded in full; a full rescore may run ${RESCORE_BUDGET_S} s (\`BENCH_RESCORE_S\`) and its rate is taken from what it did; "list during rescore" reads for the first ${DURING_BUDGET_S} s of a second rescore (\`BENCH_DURING_S\`); the import brings ${IMPORT_ROWS.toLocaleString('en-GB')} new CSV rows into each size's inventory (\`BENCH_SCALE_IMPORT_ROWS\`). Rows marked "one process" run the server inside the bench process, so their RSS includes the bench's own seeding and client; "server alone" rows start the real server (\`server/index.ts\`) as a child process on the same database and read its own VmRSS.\n`;
+  const how = `\nRun with \`npm run bench -- --spans ${SIZES[SIZES.length - 1]}\`: each size seeded in full; a full rescore may run ${RESCORE_BUDGET_S} s (\`BENCH_RESCORE_S\`) and its rate is taken from what it did; "list during rescore" reads for the first ${DURING_BUDGET_S} s of a second rescore (\`BENCH_DURING_S\`); the import brings ${IMPORT_ROWS.toLocaleString('en-GB')} new CSV rows into each size's inventory (\`BENCH_SCALE_IMPORT_ROWS\`). Rows marked "one process" run the server inside the bench process, so their RSS includes the bench's own seeding and client; "server alone" rows start the real server (\`server/index.ts\`) as a child process on the same database and read its own VmRSS (from a cold start: the tiles kept by the bench's own tile service are removed first). "First tile after restart" is a tile no earlier run kept (its own box query); "kept" is the same tiles after a stop that kept them, the database unchanged.\n`;
   fs.writeFileSync(file, note + header + body + '\n' + how + (others >= 0 ? `\n${before.slice(others)}` : ''));
   return rows;
 }
