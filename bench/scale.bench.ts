@@ -25,9 +25,9 @@ import { measureServerAlone } from './server-alone.ts';
 
 const asked = Number(process.env.BENCH_SCALE_SPANS ?? 10_000);
 /** Seconds a full rescore may run before it is stopped and its rate taken from what it did (a 1 M run stays under 30 min). */
-const RESCORE_BUDGET_S = Number(process.env.BENCH_RESCORE_S ?? 240);
+const RESCORE_BUDGET_S = Number(process.env.BENCH_RESCORE_S ?? 150);
 /** Seconds the list is read while a second rescore runs. */
-const DURING_BUDGET_S = Number(process.env.BENCH_DURING_S ?? 60);
+const DURING_BUDGET_S = Number(process.env.BENCH_DURING_S ?? 30);
 /** CSV rows imported into each size's inventory (0 leaves the import out). */
 const IMPORT_ROWS = Number(process.env.BENCH_SCALE_IMPORT_ROWS ?? 100_000);
 const SIZES = [...new Set([...[10_000, 100_000, 1_000_000].filter((n) => n < asked), asked])];
