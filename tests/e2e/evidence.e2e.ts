@@ -86,8 +86,16 @@ describe('load evidence', () => {
     // A span of the desk's approved queue (the queue shows the longest-waiting ones).
     await page.getByRole('tab', { name: 'Approved' }).click();
     await page.getByRole('heading', { name: /^Approved · \d+ spans?/ }).waitFor({ timeout: 15_000 });
-    const spanId = await page.locator('[data-span-id]').nth(1).getAttribute('data-span-id');
-    const span = await (await page.request.get(`/api/spans/${spanId}`)).json();
+    // The previous queue's rows may stay on screen until the approved queue arrives: take a row once it is approved.
+    let found: { id: string; status: string; lineId: string; fromStructureId: string; toStructureId: string } | undefined;
+    await expect
+      .poll(async () => {
+        const id = await page.locator('[data-span-id]').nth(1).getAttribute('data-span-id');
+        found = id ? await (await page.request.get(`/api/spans/${id}`)).json() : undefined;
+        return found?.status;
+      }, { timeout: 15_000 })
+      .toBe('approved');
+    const span = found!;
     const structures = await (await page.request.get(`/api/structures?lineId=${span.lineId}`)).json();
     const a = structures.items.find((s: { id: string }) => s.id === span.fromStructureId);
     const b = structures.items.find((s: { id: string }) => s.id === span.toStructureId);
