@@ -26,7 +26,7 @@ import { Zone } from '../zones/zone.entity.ts';
 import { isZoneActive } from '../zones/zone.service.ts';
 import { Assessment } from './assessment.entity.ts';
 import { DroneProfile, HarvesterProfile } from './profile.entity.ts';
-import { activeDrones, activeHarvesters, currentSettings, defaultPair, droneModel, harvesterModel } from './profiles.service.ts';
+import { activeDrones, activeHarvesters, currentSettings, defaultPair, defaultPairOf, droneModel, harvesterModel, readActiveProfiles } from './profiles.service.ts';
 import { AppError } from '../../http/errors.ts';
 import { encodeAssessmentWrite, writeAssessmentRows, deleteOrphanAssessments, readAssessmentSummaries } from '../../sql/assessments.ts';
 import { withMeasuredLoad, type MeasuredLine } from '../evidence/load-series.service.ts';
@@ -528,8 +528,7 @@ export async function assessmentForSpans(
 
 /** The default pair's ids, for the inventory's minHarvestW filter and sort (join on assessments). */
 export async function defaultPairIds(em: EntityManager): Promise<{ harvesterProfileId: string; droneProfileId: string } | null> {
-  const pair = await defaultPair(em);
-  return pair ? { harvesterProfileId: pair.harvester.id, droneProfileId: pair.drone.id } : null;
+  return defaultPairOf(await readActiveProfiles(em));
 }
 
 /** Every stored pair of one span, default pair first. */

@@ -153,6 +153,8 @@ function named(snap: Snapshot, v: string): string {
 /** Generalised zooms built in the background once a snapshot is read: those a planner opens the map at (lower ones on first use). */
 const WARM_ZOOMS = [8, 9, 10, 11, 7, 6];
 const pairKey = (pair: TilePair | null) => (pair ? `${pair.harvesterProfileId}|${pair.droneProfileId}` : '-');
+/** The snapshot key a cached tile's key starts with (`pairKey/filters/z/x/y`). */
+const snapKeyOf = (tileKey: string) => tileKey.slice(0, tileKey.indexOf('/'));
 
 const sameFp = (a: Fingerprint, b: Fingerprint) => JSON.stringify(a) === JSON.stringify(b);
 /** Above this many changed spans a snapshot is re-read whole rather than patched. */
@@ -217,7 +219,7 @@ export class SpanTileService {
 
   /** Starts a new data version: every cached tile and snapshot is dropped. */
   invalidate() {
-    this.keptOff = true;
+    this.stopKept();
     this.version += 1;
     this.snapshots.clear();
     this.loaded.clear();
@@ -252,7 +254,7 @@ export class SpanTileService {
    */
   syncNow(): Promise<void> {
     // A write through this app: kept tiles are not trusted from here on (the fingerprint would catch it too).
-    this.keptOff = true;
+    this.stopKept();
     return this.syncInBackground();
   }
 
@@ -387,9 +389,15 @@ export class SpanTileService {
     for (const [key, snap] of this.loaded) if (this.snapshots.has(key)) fps[key] = JSON.stringify(snap.fp);
     const tiles = new Map<string, Buffer>();
     for (const [key, bytes] of this.cache) {
-      if (fps[key.slice(0, key.indexOf('/'))] !== undefined) tiles.set(key, bytes);
+      if (fps[snapKeyOf(key)] !== undefined) tiles.set(key, bytes);
     }
     if (tiles.size) writeStoredTiles(this.keptFile, { fps, tiles });
+  }
+
+  /** Kept tiles are never served again by this service; their bytes are let go. */
+  private stopKept() {
+    this.keptOff = true;
+    this.kept = null;
   }
 
   /**
@@ -402,7 +410,7 @@ export class SpanTileService {
     this.kept ??= readStoredTiles(this.keptFile);
     const kept = await this.kept;
     const bytes = kept?.tiles.get(key);
-    const wanted = kept?.fps[key.slice(0, key.indexOf('/'))];
+    const wanted = kept?.fps[snapKeyOf(key)];
     if (!bytes || !wanted) return null;
     const em = this.orm.em.fork();
     const version = await dataVersion(em);
@@ -558,7 +566,9 @@ export class SpanTileService {
     const viaPostgis = z >= FULL_DETAIL_ZOOM ? await this.postgisTile(resolved, z, x, y, filters) : null;
     let snap = this.loaded.get(snapKey);
     const layered = z < FULL_DETAIL_ZOOM && !filters.lineId && filters.minHarvestW === undefined && filters.minScore === undefined;
-    if (!viaPostgis && (!snap || (layered && !snap.layers[z]?.isBuilt))) {
+    // Not read yet (a start) or this zoom's layer still building.
+    const unready = !viaPostgis && (!snap || (layered && !snap.layers[z]?.isBuilt));
+    if (unready) {
       const kept = await this.keptTile(key);
       if (kept) {
         if (!snap) void this.loadSnapshot(resolved).catch(() => undefined);
@@ -566,9 +576,9 @@ export class SpanTileService {
         return kept;
       }
     }
-    // Not read yet (a start) or this zoom's layer still building: from its own query, not cached (no sync watches
-    // the database before a snapshot is read), and the snapshot is read meanwhile.
-    if (!viaPostgis && z >= DIRECT_MIN_ZOOM && (!snap || (layered && !snap.layers[z]?.isBuilt))) {
+    // Not kept either: from its own query, not cached (no sync watches the database before a snapshot is read),
+    // and the snapshot is read meanwhile.
+    if (unready && z >= DIRECT_MIN_ZOOM) {
       const bytes = await this.directTile(resolved, z, x, y, filters);
       if (!snap) void this.loadSnapshot(resolved).catch(() => undefined);
       else void layerOf(snap, z, this.stats);
